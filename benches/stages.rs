@@ -1,0 +1,2 @@
+//! Benchmarks per stage.
+fn main() {}

@@ -1,0 +1,2 @@
+//! Calibration (lead).
+fn main() {}

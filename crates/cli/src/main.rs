@@ -1,0 +1,4 @@
+//! The `pkarta` command-line tool (CLI helper).
+fn main() {
+    println!("pkarta: under construction");
+}

@@ -1,0 +1,20 @@
+//! The fragment library (site classes and substituent constants, as data in `fragments/`),
+//! site finding, and linear free-energy scoring with term-by-term explanations.
+#![deny(missing_docs)]
+
+mod library;
+mod sites;
+mod substituents;
+mod score;
+
+pub use library::{
+    Kind, Library, LibraryError, Scale, SiteClass, SubstituentEntry, Calibration,
+};
+pub use sites::{find_sites, FoundSite};
+pub use substituents::{recognize, Recognized};
+pub use score::{score_sites, interactions, Site, Term};
+
+/// The aqueous window: sites whose estimate falls outside it are reported apart.
+/// Common practice: water levels acids stronger than about pKa -2 and bases whose
+/// conjugate acid is weaker than about pKa 16.
+pub const AQUEOUS_WINDOW: (f64, f64) = (-2.0, 16.0);

@@ -1,0 +1,138 @@
+/// Hybridization of an atom, as perceived.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Hybridization {
+    /// No orbital model applies (hydrogen, metal ions, wildcard).
+    Other,
+    /// sp
+    Sp,
+    /// sp2 (including aromatic atoms)
+    Sp2,
+    /// sp3
+    Sp3,
+}
+
+/// An atom, as read and perceived.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Atom {
+    /// Atomic number; 0 for the `*` wildcard.
+    pub element: u8,
+    /// Mass number, where written.
+    pub isotope: Option<u16>,
+    /// Formal charge.
+    pub charge: i8,
+    /// Attached hydrogens not written as atoms: implicit (organic subset) or bracket count.
+    pub hydrogens: u8,
+    /// Written in brackets.
+    pub bracket: bool,
+    /// Written lower case (aromatic) in the input.
+    pub written_aromatic: bool,
+    /// Aromatic as perceived.
+    pub aromatic: bool,
+    /// Atom class (`[CH4:3]`), where written.
+    pub atom_class: Option<u16>,
+    /// Hybridization as perceived.
+    pub hybridization: Hybridization,
+    /// Where the atom was written in the input.
+    pub span: crate::Span,
+    /// Index of the component (`.`-separated part) the atom belongs to.
+    pub component: usize,
+    /// Number of rings of the smallest set of smallest rings that contain the atom (SMARTS `R`).
+    pub ring_count: u8,
+    /// Size of the smallest ring that contains the atom, 0 if none (SMARTS `r`).
+    pub smallest_ring: u8,
+}
+
+/// A bond between two atoms.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Bond {
+    /// First atom (lower index).
+    pub a: usize,
+    /// Second atom.
+    pub b: usize,
+    /// Kekulé order: 1, 2 or 3 (aromatic bonds get the order of one Kekulé form).
+    pub order: u8,
+    /// Aromatic as perceived.
+    pub aromatic: bool,
+    /// Written aromatic (`:` or between two lower-case atoms) in the input.
+    pub written_aromatic: bool,
+    /// Member of a ring.
+    pub in_ring: bool,
+}
+
+/// One neighbour of an atom: the atom and the bond that leads to it.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Neighbor {
+    /// The neighbouring atom.
+    pub atom: usize,
+    /// The bond between them.
+    pub bond: usize,
+}
+
+/// A molecule as read and perceived: atoms, bonds, rings and components.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Molecule {
+    pub(crate) input: String,
+    pub(crate) atoms: Vec<Atom>,
+    pub(crate) bonds: Vec<Bond>,
+    pub(crate) neighbors: Vec<Vec<Neighbor>>,
+    pub(crate) rings: Vec<Vec<usize>>,
+    pub(crate) components: Vec<Vec<usize>>,
+}
+
+impl Molecule {
+    /// The text the molecule was read from.
+    pub fn input(&self) -> &str {
+        &self.input
+    }
+    /// All atoms, in input order.
+    pub fn atoms(&self) -> &[Atom] {
+        &self.atoms
+    }
+    /// All bonds.
+    pub fn bonds(&self) -> &[Bond] {
+        &self.bonds
+    }
+    /// The neighbours of an atom (atoms written explicitly, hydrogens in counts excluded).
+    pub fn neighbors(&self, atom: usize) -> &[Neighbor] {
+        &self.neighbors[atom]
+    }
+    /// The bond between two atoms, if any.
+    pub fn bond_between(&self, a: usize, b: usize) -> Option<usize> {
+        self.neighbors[a].iter().find(|n| n.atom == b).map(|n| n.bond)
+    }
+    /// The smallest set of smallest rings, each as atoms in ring order.
+    pub fn rings(&self) -> &[Vec<usize>] {
+        &self.rings
+    }
+    /// Components (`.`-separated parts) as atom lists, in input order.
+    pub fn components(&self) -> &[Vec<usize>] {
+        &self.components
+    }
+    /// Explicit connections (SMARTS `D`).
+    pub fn degree(&self, atom: usize) -> usize {
+        self.neighbors[atom].len()
+    }
+    /// Total connections including hydrogens in counts (SMARTS `X`).
+    pub fn total_degree(&self, atom: usize) -> usize {
+        self.neighbors[atom].len() + self.atoms[atom].hydrogens as usize
+    }
+    /// Total hydrogens on an atom: in counts plus explicit `[H]` neighbours (SMARTS `H`).
+    pub fn total_hydrogens(&self, atom: usize) -> usize {
+        self.atoms[atom].hydrogens as usize
+            + self.neighbors[atom].iter().filter(|n| self.atoms[n.atom].element == 1).count()
+    }
+    /// A copy of the molecule with protons moved: each `(atom, delta)` adds `delta`
+    /// hydrogens to the atom and changes its formal charge by `delta`. Used to write
+    /// protonation microstates.
+    pub fn with_protons(&self, edits: &[(usize, i8)]) -> Molecule {
+        let mut m = self.clone();
+        for &(atom, delta) in edits {
+            let a = &mut m.atoms[atom];
+            a.hydrogens = (a.hydrogens as i16 + delta as i16).max(0) as u8;
+            a.charge += delta;
+            a.bracket = true;
+        }
+        m
+    }
+}

@@ -1,0 +1,1 @@
+//! Integration tests of the `pkarta` program, built into one binary.
