@@ -167,3 +167,64 @@ pub fn inspect(input: &str, id: Option<&str>) -> InspectRecord {
         },
     }
 }
+
+/// A site as the pattern found it, before scoring (`pkarta debug sites`).
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct DebugSite {
+    /// Atom index in the input.
+    pub atom: usize,
+    /// Class id.
+    pub class: String,
+    /// Class name.
+    pub class_name: String,
+    /// Acid or base.
+    pub kind: model::Kind,
+    /// The pattern text.
+    pub pattern: String,
+    /// Input atom indices matched, per pattern atom.
+    pub matched: Vec<usize>,
+    /// Symmetry group.
+    pub group: usize,
+}
+
+/// Finds sites without scoring them.
+pub fn debug_sites(input: &str) -> Result<Vec<DebugSite>, ErrorReport> {
+    let _ = input;
+    todo!("lead")
+}
+
+/// One point of a speciation curve.
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct CurvePoint {
+    /// pH.
+    pub ph: f64,
+    /// Mean net charge.
+    pub charge: f64,
+    /// Fraction of each species of `Curve::species`, same order.
+    pub fractions: Vec<f64>,
+}
+
+/// Species fractions and charge over a pH range.
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct Curve {
+    /// The parent used, as SMILES.
+    pub smiles: String,
+    /// The species that reach a noticeable fraction anywhere on the range.
+    pub species: Vec<SpeciesReport>,
+    /// The points, ascending pH.
+    pub points: Vec<CurvePoint>,
+    /// The pH of interest, marked on plots.
+    pub ph: f64,
+}
+
+/// Computes a speciation curve from `from` to `to` in steps of `step`.
+pub fn curve(input: &str, options: &Options, from: f64, to: f64, step: f64) -> Result<Curve, ErrorReport> {
+    let _ = (input, options, from, to, step);
+    todo!("lead")
+}
+
+/// Renders a curve as an SVG plot of species fractions against pH.
+pub fn plot_svg(curve: &Curve) -> String {
+    let _ = curve;
+    todo!("lead")
+}
