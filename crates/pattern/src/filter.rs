@@ -1,0 +1,161 @@
+//! The anchor pre-filter: which (element, aromatic) pairs and charges the anchored pattern
+//! atom could possibly match, worked out once at parse time.
+//!
+//! Each projection over-approximates: a conjunction intersects, a disjunction unites, and a
+//! negation complements only when its operand depends on that projection alone (otherwise
+//! it may hold anywhere). So a `false` from the filter is certain, a `true` is a maybe.
+
+use mol::Molecule;
+
+use crate::expr::Expr;
+use crate::primitive::AtomPrim;
+
+/// Sets the projections are computed in.
+trait Lattice: Copy {
+    fn full() -> Self;
+    fn empty() -> Self;
+    fn meet(self, other: Self) -> Self;
+    fn join(self, other: Self) -> Self;
+    fn complement(self) -> Self;
+}
+
+/// (element, aromatic) pairs, bit `element * 2 + aromatic`, elements 0 to 127.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+struct Elements([u64; 4]);
+
+impl Lattice for Elements {
+    fn full() -> Self {
+        Elements([u64::MAX; 4])
+    }
+    fn empty() -> Self {
+        Elements([0; 4])
+    }
+    fn meet(self, o: Self) -> Self {
+        Elements(std::array::from_fn(|i| self.0[i] & o.0[i]))
+    }
+    fn join(self, o: Self) -> Self {
+        Elements(std::array::from_fn(|i| self.0[i] | o.0[i]))
+    }
+    fn complement(self) -> Self {
+        Elements(std::array::from_fn(|i| !self.0[i]))
+    }
+}
+
+impl Elements {
+    fn with(mut self, element: u8, aromatic: bool) -> Self {
+        let bit = element as usize * 2 + aromatic as usize;
+        if bit < 256 {
+            self.0[bit / 64] |= 1 << (bit % 64);
+        }
+        self
+    }
+    fn contains(&self, element: u8, aromatic: bool) -> bool {
+        let bit = element as usize * 2 + aromatic as usize;
+        bit >= 256 || self.0[bit / 64] & (1 << (bit % 64)) != 0
+    }
+}
+
+/// Formal charges -32 to +31, bit `charge + 32`.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+struct Charges(u64);
+
+impl Lattice for Charges {
+    fn full() -> Self {
+        Charges(u64::MAX)
+    }
+    fn empty() -> Self {
+        Charges(0)
+    }
+    fn meet(self, o: Self) -> Self {
+        Charges(self.0 & o.0)
+    }
+    fn join(self, o: Self) -> Self {
+        Charges(self.0 | o.0)
+    }
+    fn complement(self) -> Self {
+        Charges(!self.0)
+    }
+}
+
+impl Charges {
+    fn bit(charge: i8) -> Option<u32> {
+        let b = charge as i32 + 32;
+        (0..64).contains(&b).then_some(b as u32)
+    }
+    fn contains(&self, charge: i8) -> bool {
+        Charges::bit(charge).map_or(true, |b| self.0 & (1 << b) != 0)
+    }
+}
+
+/// Projects an expression: the set, and whether it is exact (depends on this projection
+/// only).
+fn project<L: Lattice>(expr: &Expr<AtomPrim>, prim: &impl Fn(&AtomPrim) -> Option<L>) -> (L, bool) {
+    match expr {
+        Expr::Prim(p) => match prim(p) {
+            Some(set) => (set, true),
+            None => (L::full(), false),
+        },
+        Expr::Not(e) => match project(e, prim) {
+            (set, true) => (set.complement(), true),
+            (_, false) => (L::full(), false),
+        },
+        Expr::And(es) => es.iter().fold((L::full(), true), |(s, x), e| {
+            let (t, y) = project(e, prim);
+            (s.meet(t), x && y)
+        }),
+        Expr::Or(es) => es.iter().fold((L::empty(), true), |(s, x), e| {
+            let (t, y) = project(e, prim);
+            (s.join(t), x && y)
+        }),
+    }
+}
+
+fn elements_of(p: &AtomPrim) -> Option<Elements> {
+    match *p {
+        AtomPrim::Any => Some(Elements::full()),
+        AtomPrim::Aromatic(want) => {
+            Some((0..128u8).fold(Elements::empty(), |s, e| s.with(e, want)))
+        }
+        AtomPrim::Element { number, aromatic } => Some(match aromatic {
+            Some(want) => Elements::empty().with(number, want),
+            None => Elements::empty().with(number, false).with(number, true),
+        }),
+        _ => None,
+    }
+}
+
+fn charges_of(p: &AtomPrim) -> Option<Charges> {
+    match *p {
+        AtomPrim::Any => Some(Charges::full()),
+        AtomPrim::Charge(c) => Some(Charges::bit(c).map_or(Charges::empty(), |b| Charges(1 << b))),
+        _ => None,
+    }
+}
+
+/// What the anchored atom could match, by element/aromaticity and by charge.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(crate) struct AnchorFilter {
+    elements: Elements,
+    charges: Charges,
+}
+
+impl AnchorFilter {
+    pub(crate) fn new(expr: &Expr<AtomPrim>) -> AnchorFilter {
+        AnchorFilter {
+            elements: project(expr, &elements_of).0,
+            charges: project(expr, &charges_of).0,
+        }
+    }
+    /// Matches nothing (an empty pattern has no anchor).
+    pub(crate) fn none() -> AnchorFilter {
+        AnchorFilter {
+            elements: Elements::empty(),
+            charges: Charges::empty(),
+        }
+    }
+    #[inline]
+    pub(crate) fn admits(&self, molecule: &Molecule, atom: usize) -> bool {
+        let a = &molecule.atoms()[atom];
+        self.elements.contains(a.element, a.aromatic) && self.charges.contains(a.charge)
+    }
+}

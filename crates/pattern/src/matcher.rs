@@ -1,0 +1,172 @@
+//! The backtracking search.
+//!
+//! # Reference
+//!
+//! Depth-first backtracking over a spanning tree of the pattern, extending each partial
+//! match only along the molecule's neighbour lists and checking ring-closure bonds when both
+//! ends are placed (the scheme of J. R. Ullmann, "An Algorithm for Subgraph Isomorphism",
+//! J. ACM 1976, 23, 31, without its refinement step; common practice for small patterns).
+
+use std::collections::HashSet;
+
+use mol::Molecule;
+
+use crate::expr::Expr;
+use crate::graph::Graph;
+use crate::primitive::AtomPrim;
+
+/// Marks a pattern atom not placed yet.
+const UNPLACED: usize = usize::MAX;
+/// Patterns up to this size search in a stack buffer.
+const INLINE: usize = 32;
+
+/// One matching call: the molecule, the pattern's environments, and the answers about
+/// environments found so far.
+pub(crate) struct Search<'a> {
+    molecule: &'a Molecule,
+    subs: &'a [Graph],
+    /// Per (environment, atom): 0 not asked yet, 1 no, 2 yes. Allocated on first use.
+    memo: Vec<u8>,
+}
+
+impl<'a> Search<'a> {
+    pub(crate) fn new(molecule: &'a Molecule, subs: &'a [Graph]) -> Search<'a> {
+        Search {
+            molecule,
+            subs,
+            memo: Vec::new(),
+        }
+    }
+
+    /// Whether molecule atom `atom` satisfies an atom expression.
+    pub(crate) fn atom_matches(&mut self, expr: &Expr<AtomPrim>, atom: usize) -> bool {
+        let molecule = self.molecule;
+        expr.eval(&mut |p| match p {
+            AtomPrim::Recursive(id) => self.environment(*id as usize, atom),
+            _ => p.holds(molecule, atom),
+        })
+    }
+
+    /// Whether environment `id` holds with its first atom on `atom`, memoized.
+    fn environment(&mut self, id: usize, atom: usize) -> bool {
+        let n = self.molecule.atoms().len();
+        if self.memo.is_empty() {
+            self.memo = vec![0; self.subs.len() * n];
+        }
+        let slot = id * n + atom;
+        match self.memo.get(slot).copied() {
+            Some(1) => return false,
+            Some(2) => return true,
+            _ => {}
+        }
+        let subs = self.subs;
+        let found = match subs.get(id) {
+            Some(graph) => {
+                let mut found = false;
+                self.search(graph, atom, &[], &mut |_| {
+                    found = true;
+                    true
+                });
+                found
+            }
+            None => false,
+        };
+        if let Some(m) = self.memo.get_mut(slot) {
+            *m = if found { 2 } else { 1 };
+        }
+        found
+    }
+
+    /// Runs `graph` with its root on `anchor`, giving each complete match (molecule atom per
+    /// pattern atom) to `sink`; `sink` returns true to stop. Returns whether it stopped.
+    pub(crate) fn search(
+        &mut self,
+        graph: &Graph,
+        anchor: usize,
+        avoid: &[usize],
+        sink: &mut dyn FnMut(&[usize]) -> bool,
+    ) -> bool {
+        let n = graph.atoms.len();
+        if n == 0
+            || anchor >= self.molecule.atoms().len()
+            || avoid.contains(&anchor)
+            || !graph.filter.admits(self.molecule, anchor)
+            || !self.atom_matches(&graph.atoms[graph.root].expr, anchor)
+        {
+            return false;
+        }
+        let mut inline = [UNPLACED; INLINE];
+        let mut heap = Vec::new();
+        let assign: &mut [usize] = if n <= INLINE {
+            &mut inline[..n]
+        } else {
+            heap.resize(n, UNPLACED);
+            &mut heap
+        };
+        assign[graph.root] = anchor;
+        self.extend(graph, 0, assign, avoid, sink)
+    }
+
+    /// Places step `step` and the ones after it.
+    fn extend(
+        &mut self,
+        graph: &Graph,
+        step: usize,
+        assign: &mut [usize],
+        avoid: &[usize],
+        sink: &mut dyn FnMut(&[usize]) -> bool,
+    ) -> bool {
+        let Some(s) = graph.steps.get(step) else {
+            return sink(assign);
+        };
+        let molecule = self.molecule;
+        let bonds = molecule.bonds();
+        let from = assign[s.parent];
+        let bond_expr = &graph.bonds[s.bond].expr;
+        let atom_expr = &graph.atoms[s.atom].expr;
+        for nb in molecule.neighbors(from) {
+            let candidate = nb.atom;
+            if assign.contains(&candidate) || avoid.contains(&candidate) {
+                continue;
+            }
+            if !bond_expr.eval(&mut |b| b.holds(&bonds[nb.bond])) {
+                continue;
+            }
+            if !self.atom_matches(atom_expr, candidate) {
+                continue;
+            }
+            let closed = s.closures.iter().all(|&(other, bond)| {
+                molecule
+                    .bond_between(candidate, assign[other])
+                    .is_some_and(|mb| graph.bonds[bond].expr.eval(&mut |b| b.holds(&bonds[mb])))
+            });
+            if !closed {
+                continue;
+            }
+            assign[s.atom] = candidate;
+            let stop = self.extend(graph, step + 1, assign, avoid, sink);
+            assign[s.atom] = UNPLACED;
+            if stop {
+                return true;
+            }
+        }
+        false
+    }
+}
+
+/// Collects matches, dropping those whose atom set was seen already.
+#[derive(Default)]
+pub(crate) struct Distinct {
+    seen: HashSet<Vec<usize>>,
+    pub(crate) matches: Vec<Vec<usize>>,
+}
+
+impl Distinct {
+    pub(crate) fn add(&mut self, atoms: &[usize]) {
+        let mut key = atoms.to_vec();
+        key.sort_unstable();
+        if self.seen.insert(key) {
+            self.matches.push(atoms.to_vec());
+        }
+    }
+}
