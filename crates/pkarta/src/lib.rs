@@ -12,6 +12,6 @@ pub use pattern;
 pub use speciation;
 
 pub use record::{
-    curve, debug_sites, estimate, inspect, plot_svg, Curve, CurvePoint, DebugSite, ErrorReport, InspectAtom, InspectBond, InspectRecord, Options, Record,
+    curve, debug_sites, estimate, estimate_with, inspect, plot_svg, Curve, CurvePoint, DebugSite, ErrorReport, InspectAtom, InspectBond, InspectRecord, Options, Record,
     SiteReport, SpeciesReport,
 };

@@ -81,10 +81,185 @@ pub struct Record {
     pub error: Option<ErrorReport>,
 }
 
-/// Estimates one input. Never panics on input; a failure is a record with `error` set.
+/// Estimates one input with the built-in fragment library. Never panics on input; a
+/// failure is a record with `error` set.
+///
+/// ```
+/// let record = pkarta::estimate("CC(=O)O", Some("acetic acid"), &pkarta::Options::default());
+/// assert!(record.error.is_none());
+/// assert_eq!(record.sites.len(), 1);
+/// # Ok::<(), Box<dyn std::error::Error>>(())
+/// ```
 pub fn estimate(input: &str, id: Option<&str>, options: &Options) -> Record {
-    let _ = (input, id, options);
-    todo!("lead")
+    estimate_with(model::Library::builtin(), input, id, options)
+}
+
+/// Estimates one input with a given fragment library (a user's own, or the calibration
+/// program's trial values).
+pub fn estimate_with(
+    library: &model::Library,
+    input: &str,
+    id: Option<&str>,
+    options: &Options,
+) -> Record {
+    let mut record = Record {
+        input: input.to_string(),
+        id: id.map(str::to_string),
+        smiles: None,
+        sites: Vec::new(),
+        sites_outside_window: Vec::new(),
+        macro_pka: Vec::new(),
+        ph: options.ph,
+        charge_at_ph: None,
+        species: Vec::new(),
+        isoelectric_point: None,
+        warnings: Vec::new(),
+        error: None,
+    };
+    match analyze(library, input) {
+        Ok(analysis) => {
+            let at_ph = analysis.speciate(options.ph);
+            record.smiles = Some(mol::write_smiles(&analysis.parent));
+            record.warnings = analysis.warnings();
+            record.warnings.extend(cautions(&analysis.sites));
+            for site in &analysis.sites {
+                let report = analysis.report(site);
+                if site.in_window {
+                    record.sites.push(report);
+                } else {
+                    record.sites_outside_window.push(report);
+                }
+            }
+            record.macro_pka = at_ph.macro_pka.clone();
+            record.charge_at_ph = Some(at_ph.charge_at_ph);
+            record.isoelectric_point = at_ph.isoelectric_point;
+            record.species = at_ph
+                .species
+                .iter()
+                .map(|sp| SpeciesReport {
+                    smiles: analysis.species_smiles(&sp.charged),
+                    charge: sp.charge,
+                    fraction: sp.fraction,
+                })
+                .collect();
+            if at_ph.method != "exact" {
+                record.warnings.push(format!("speciation: {}", at_ph.method));
+            }
+        }
+        Err(e) => record.error = Some(e),
+    }
+    record
+}
+
+/// Cautions carried in the output where an estimate could guide lab work.
+fn cautions(sites: &[model::Site]) -> Vec<String> {
+    let mut out = Vec::new();
+    if let Some(s) = sites.iter().filter(|s| s.kind == model::Kind::Acid && s.in_window).min_by(|a, b| a.pka.total_cmp(&b.pka)) {
+        if s.pka < 1.0 {
+            out.push(format!(
+                "caution: strong acid site (estimated pKa {:.1}); an estimate, not a measurement: handle and choose reagents by measured data, local safety rules and licensed practice",
+                s.pka
+            ));
+        }
+    }
+    if let Some(s) = sites.iter().filter(|s| s.kind == model::Kind::Base && s.in_window).max_by(|a, b| a.pka.total_cmp(&b.pka)) {
+        if s.pka > 12.0 {
+            out.push(format!(
+                "caution: strong base site (estimated conjugate-acid pKa {:.1}); an estimate, not a measurement: handle and choose reagents by measured data, local safety rules and licensed practice",
+                s.pka
+            ));
+        }
+    }
+    out
+}
+
+/// One molecule carried through reading, standardizing, site finding and scoring.
+pub(crate) struct Analysis<'l> {
+    pub(crate) library: &'l model::Library,
+    pub(crate) parent: mol::Molecule,
+    pub(crate) origin: Vec<usize>,
+    pub(crate) standardized: mol::Standardized,
+    pub(crate) found: Vec<model::FoundSite>,
+    pub(crate) sites: Vec<model::Site>,
+    /// Indices into `sites` of the sites inside the aqueous window, which speciation uses.
+    pub(crate) window: Vec<usize>,
+    pub(crate) system: speciation::System,
+}
+
+pub(crate) fn analyze<'l>(library: &'l model::Library, input: &str) -> Result<Analysis<'l>, ErrorReport> {
+    let molecule = mol::parse(input).map_err(|e| ErrorReport { message: e.to_string() })?;
+    let standardized = mol::standardize(&molecule).map_err(|e| ErrorReport { message: e.to_string() })?;
+    let parent = standardized.parent.clone();
+    let origin = standardized.origin.clone();
+    let found = model::find_sites(library, &parent);
+    let sites = model::score_sites(library, &parent, &found);
+    let window: Vec<usize> = (0..sites.len()).filter(|&i| sites[i].in_window).collect();
+    let in_window: Vec<model::Site> = window.iter().map(|&i| sites[i].clone()).collect();
+    let interaction = model::interactions(library, &parent, &in_window);
+    let base_charge: i32 = parent.atoms().iter().map(|a| a.charge as i32).sum();
+    let system = speciation::System {
+        sites: in_window
+            .iter()
+            .map(|s| speciation::SiteInput {
+                kind: match s.kind {
+                    model::Kind::Acid => speciation::Kind::Acid,
+                    model::Kind::Base => speciation::Kind::Base,
+                },
+                pka: s.pka,
+            })
+            .collect(),
+        interaction,
+        base_charge,
+    };
+    Ok(Analysis { library, parent, origin, standardized, found, sites, window, system })
+}
+
+impl Analysis<'_> {
+    pub(crate) fn speciate(&self, ph: f64) -> speciation::Speciation {
+        speciation::speciate(&self.system, ph)
+    }
+
+    pub(crate) fn warnings(&self) -> Vec<String> {
+        let mut out: Vec<String> = Vec::new();
+        for other in &self.standardized.others {
+            out.push(format!("set aside component {other} (counter-ion or solvent)"));
+        }
+        out.extend(self.standardized.changes.iter().cloned());
+        for site in &self.sites {
+            for w in &site.warnings {
+                out.push(format!("site at atom {}: {w}", self.origin[site.atom]));
+            }
+        }
+        out
+    }
+
+    pub(crate) fn report(&self, site: &model::Site) -> SiteReport {
+        SiteReport {
+            atom: self.origin[site.atom],
+            kind: site.kind,
+            pka: site.pka,
+            uncertainty: site.uncertainty,
+            group: site.group,
+            class: site.class.clone(),
+            class_name: site.class_name.clone(),
+            terms: site.terms.clone(),
+        }
+    }
+
+    /// The SMILES of a microspecies: each charged site gains (base) or loses (acid) a proton.
+    pub(crate) fn species_smiles(&self, charged: &[bool]) -> String {
+        let edits: Vec<(usize, i8)> = self
+            .window
+            .iter()
+            .zip(charged)
+            .filter(|(_, &c)| c)
+            .map(|(&i, _)| {
+                let s = &self.sites[i];
+                (s.atom, if s.kind == model::Kind::Acid { -1 } else { 1 })
+            })
+            .collect();
+        mol::write_smiles(&self.parent.with_protons(&edits))
+    }
 }
 
 /// An atom in `inspect` output.
@@ -189,8 +364,23 @@ pub struct DebugSite {
 
 /// Finds sites without scoring them.
 pub fn debug_sites(input: &str) -> Result<Vec<DebugSite>, ErrorReport> {
-    let _ = input;
-    todo!("lead")
+    let library = model::Library::builtin();
+    let a = analyze(library, input)?;
+    Ok(a.found
+        .iter()
+        .map(|f| {
+            let class = &library.classes[f.class];
+            DebugSite {
+                atom: a.origin[f.atom],
+                class: class.id.clone(),
+                class_name: class.name.clone(),
+                kind: class.kind,
+                pattern: class.pattern.clone(),
+                matched: f.matched.iter().map(|&m| a.origin[m]).collect(),
+                group: f.group,
+            }
+        })
+        .collect())
 }
 
 /// One point of a speciation curve.
@@ -217,14 +407,65 @@ pub struct Curve {
     pub ph: f64,
 }
 
+/// Species below this fraction everywhere on a curve are left out of it.
+const CURVE_MIN_FRACTION: f64 = 0.01;
+
 /// Computes a speciation curve from `from` to `to` in steps of `step`.
 pub fn curve(input: &str, options: &Options, from: f64, to: f64, step: f64) -> Result<Curve, ErrorReport> {
-    let _ = (input, options, from, to, step);
-    todo!("lead")
+    if !(step > 0.0) || !from.is_finite() || !to.is_finite() || to < from || (to - from) / step > 10_000.0 {
+        return Err(ErrorReport {
+            message: format!("pH range {from} to {to} in steps of {step} is not a usable range (at most 10000 points)"),
+        });
+    }
+    let a = analyze(model::Library::builtin(), input)?;
+    let count = ((to - from) / step + 1e-9).floor() as usize + 1;
+    let results: Vec<speciation::Speciation> =
+        (0..count).map(|i| a.speciate(from + i as f64 * step)).collect();
+    // Species by their charged-site pattern, kept where they reach a noticeable fraction.
+    let mut keys: Vec<Vec<bool>> = Vec::new();
+    let mut charges: Vec<i32> = Vec::new();
+    for r in &results {
+        for sp in &r.species {
+            if sp.fraction >= CURVE_MIN_FRACTION && !keys.contains(&sp.charged) {
+                keys.push(sp.charged.clone());
+                charges.push(sp.charge);
+            }
+        }
+    }
+    // Order species from most protonated (highest charge) to least, as a titration runs.
+    let mut order: Vec<usize> = (0..keys.len()).collect();
+    order.sort_by_key(|&i| std::cmp::Reverse(charges[i]));
+    let keys: Vec<Vec<bool>> = order.iter().map(|&i| keys[i].clone()).collect();
+    let points = results
+        .iter()
+        .map(|r| CurvePoint {
+            ph: r.ph,
+            charge: r.charge_at_ph,
+            fractions: keys
+                .iter()
+                .map(|k| r.species.iter().find(|sp| &sp.charged == k).map_or(0.0, |sp| sp.fraction))
+                .collect(),
+        })
+        .collect();
+    let at_ph = a.speciate(options.ph);
+    let species = keys
+        .iter()
+        .map(|k| SpeciesReport {
+            smiles: a.species_smiles(k),
+            charge: a.system.base_charge
+                + k.iter()
+                    .zip(&a.system.sites)
+                    .filter(|(&c, _)| c)
+                    .map(|(_, s)| if s.kind == speciation::Kind::Acid { -1 } else { 1 })
+                    .sum::<i32>(),
+            fraction: at_ph.species.iter().find(|sp| &sp.charged == k).map_or(0.0, |sp| sp.fraction),
+        })
+        .collect();
+    Ok(Curve { smiles: mol::write_smiles(&a.parent), species, points, ph: options.ph })
 }
 
 /// Renders a curve as an SVG plot of species fractions against pH.
 pub fn plot_svg(curve: &Curve) -> String {
     let _ = curve;
-    todo!("lead")
+    todo!("lead: wire to speciation's plot once it lands")
 }
