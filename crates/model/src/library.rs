@@ -96,10 +96,6 @@ pub struct SubstituentEntry {
     pub name: String,
     /// Pattern matched with its `:1` atom on the atom bonded to the ring or chain.
     pub pattern: String,
-    /// Further patterns for the same group (other ways of writing it, e.g. the branched
-    /// forms of a generic alkyl); any one matching counts as a match of this entry.
-    #[serde(default)]
-    pub alt_patterns: Vec<String>,
     /// Precedence among entries matching the same atom (highest wins).
     #[serde(default)]
     pub priority: i32,
@@ -111,11 +107,6 @@ pub struct SubstituentEntry {
     pub sigma_p_minus: Option<f64>,
     /// sigma-plus (para).
     pub sigma_p_plus: Option<f64>,
-    /// sigma for the adjacent (ortho) position, where one is tabulated or derived: used by
-    /// the ring-member entries (`ring-*`, `fused-ring`); ortho substituents otherwise get
-    /// the class's ortho correction.
-    #[serde(default)]
-    pub sigma_o: Option<f64>,
     /// Taft sigma* of the group bonded directly to the reaction centre, where tabulated.
     pub sigma_star: Option<f64>,
     /// Taft sigma* of X-CH2 (the group one methylene away), where tabulated.
