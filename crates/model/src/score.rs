@@ -120,7 +120,9 @@ fn constants(library: &Library, class: &SiteClass) -> Constants {
                 parent_source: provenance.clone(),
                 rho: fit.rho,
                 rho_source: provenance,
-                uncertainty: fit.rmse.max(class.uncertainty.min(fit.rmse * 2.0)),
+                // The class's cross-validated error, as a standard deviation (for normal errors
+                // sd = MAE * sqrt(pi / 2)); never below the residual of the fit itself.
+                uncertainty: (fit.cv_mae * 1.2533).max(fit.rmse).max(0.1),
             }
         }
         None => Constants {
