@@ -1,0 +1,489 @@
+//! A system prepared for evaluation at any pH.
+
+use crate::cluster::partition;
+use crate::enumerate::{Candidate, Group, Table};
+use crate::logsum::{self, exp10};
+use crate::{
+    Kind, Microspecies, Speciation, SpeciationError, System, MAX_CLUSTER_SITES, MAX_MAGNITUDE,
+    MAX_SITES, MAX_SPECIES, MIN_FRACTION, PI_RANGE,
+};
+
+/// A validated system, enumerated once; evaluating it at a pH is then cheap.
+#[derive(Clone, Debug)]
+pub struct Microstates {
+    n: usize,
+    base_charge: i32,
+    bases: usize,
+    groups: Vec<Group>,
+    tables: Vec<Table>,
+    /// log10 coefficients of the whole binding polynomial, by protons lost.
+    log_g: Vec<f64>,
+    macro_pka: Vec<f64>,
+    isoelectric_point: Option<f64>,
+    method: String,
+}
+
+impl Microstates {
+    /// Checks and enumerates the system, splitting coupled groups past
+    /// [`MAX_CLUSTER_SITES`].
+    pub fn new(system: &System) -> Result<Self, SpeciationError> {
+        Self::with_max_cluster(system, MAX_CLUSTER_SITES)
+    }
+
+    /// As [`Microstates::new`] with another limit on exactly enumerated groups (clamped to
+    /// 1..=24), e.g. to measure what the approximation costs in accuracy.
+    pub fn with_max_cluster(system: &System, max_cluster: usize) -> Result<Self, SpeciationError> {
+        validate(system)?;
+        let cap = max_cluster.clamp(1, 24);
+        let n = system.sites.len();
+        let part = partition(&system.interaction, n, cap);
+        let mut groups = Vec::with_capacity(part.groups.len());
+        for sites in &part.groups {
+            let m = sites.len();
+            let mut w = vec![0.0; m * m];
+            if !system.interaction.is_empty() {
+                for (a, &i) in sites.iter().enumerate() {
+                    for (b, &j) in sites.iter().enumerate() {
+                        w[a * m + b] = system.interaction[i][j];
+                    }
+                }
+            }
+            let kinds: Vec<Kind> = sites.iter().map(|&i| system.sites[i].kind).collect();
+            let pka: Vec<f64> = sites.iter().map(|&i| system.sites[i].pka).collect();
+            let field = kinds
+                .iter()
+                .zip(&pka)
+                .map(|(k, &p)| match k {
+                    Kind::Acid => -p,
+                    Kind::Base => 0.0,
+                })
+                .collect();
+            let bases = kinds.iter().filter(|&&k| k == Kind::Base).count();
+            groups.push(Group {
+                sites: sites.clone(),
+                kinds,
+                field,
+                w,
+                bases,
+                pka,
+            });
+        }
+        let tables: Vec<Table> = groups.iter().map(|g| g.enumerate(MAX_SPECIES)).collect();
+        let mut log_g = vec![0.0];
+        for t in &tables {
+            log_g = logsum::convolve(&log_g, &t.log_g);
+        }
+        let mut macro_pka: Vec<f64> = log_g.windows(2).map(|p| p[0] - p[1]).collect();
+        let ordered = macro_pka.windows(2).all(|p| p[0] <= p[1]);
+        macro_pka.sort_by(f64::total_cmp);
+        let mut method = if part.dropped == 0 {
+            "exact".to_string()
+        } else {
+            let mut sizes: Vec<usize> = part.groups.iter().map(Vec::len).collect();
+            sizes.sort_unstable_by(|a, b| b.cmp(a));
+            let sizes: Vec<String> = sizes.iter().map(usize::to_string).collect();
+            format!(
+                "clusters of {} sites: exact within, independent across ({} couplings ignored, largest |w| {:.3} pK)",
+                sizes.join("+"),
+                part.dropped,
+                part.dropped_max
+            )
+        };
+        if !ordered {
+            // Cooperative couplings can invert stepwise constants (see Ullmann 2003); the
+            // contract is an ascending list, so say that it was reordered.
+            method.push_str("; stepwise constants not in order (cooperative coupling), sorted");
+        }
+        let bases = groups.iter().map(|g| g.bases).sum();
+        let mut states = Self {
+            n,
+            base_charge: system.base_charge,
+            bases,
+            groups,
+            tables,
+            log_g,
+            macro_pka,
+            isoelectric_point: None,
+            method,
+        };
+        states.isoelectric_point = states.find_isoelectric_point();
+        Ok(states)
+    }
+
+    /// Number of sites.
+    pub fn len(&self) -> usize {
+        self.n
+    }
+
+    /// Whether there are no sites.
+    pub fn is_empty(&self) -> bool {
+        self.n == 0
+    }
+
+    /// Macroscopic constants, ascending.
+    pub fn macro_pka(&self) -> &[f64] {
+        &self.macro_pka
+    }
+
+    /// How the system is evaluated (`exact`, or the approximation used).
+    pub fn method(&self) -> &str {
+        &self.method
+    }
+
+    /// Isoelectric point in [`PI_RANGE`], if the mean charge crosses zero there.
+    pub fn isoelectric_point(&self) -> Option<f64> {
+        self.isoelectric_point
+    }
+
+    /// Mean number of protons lost relative to fully protonated, at `ph`.
+    fn mean_lost(&self, ph: f64) -> f64 {
+        let terms = self
+            .log_g
+            .iter()
+            .enumerate()
+            .map(|(p, &g)| g + p as f64 * ph);
+        let log_z = logsum::sum(terms.clone());
+        terms
+            .enumerate()
+            .map(|(p, t)| p as f64 * exp10(t - log_z))
+            .sum()
+    }
+
+    /// Mean net charge at `ph` (NaN when `ph` is not finite).
+    pub fn charge(&self, ph: f64) -> f64 {
+        if self.n == 0 {
+            return f64::from(self.base_charge);
+        }
+        f64::from(self.base_charge) + self.bases as f64 - self.mean_lost(ph)
+    }
+
+    fn find_isoelectric_point(&self) -> Option<f64> {
+        if self.n == 0 {
+            return None;
+        }
+        let (mut lo, mut hi) = PI_RANGE;
+        let (c_lo, c_hi) = (self.charge(lo), self.charge(hi));
+        if !(c_lo >= 0.0 && c_hi <= 0.0) || (c_lo == 0.0 && c_hi == 0.0) {
+            return None;
+        }
+        if c_lo == 0.0 {
+            return Some(lo);
+        }
+        // The mean charge falls strictly with pH (its slope is -ln10 times the variance of
+        // the proton count), so bisection on the sign converges to the one root.
+        for _ in 0..200 {
+            let mid = 0.5 * (lo + hi);
+            if mid <= lo || mid >= hi {
+                break;
+            }
+            if self.charge(mid) > 0.0 {
+                lo = mid;
+            } else {
+                hi = mid;
+            }
+            if hi - lo < 1e-12 {
+                break;
+            }
+        }
+        Some(0.5 * (lo + hi))
+    }
+
+    /// log10 of each group's partition function at `ph`.
+    fn group_log_z(&self, ph: f64) -> Vec<f64> {
+        self.tables
+            .iter()
+            .map(|t| logsum::sum(t.log_g.iter().enumerate().map(|(p, &g)| g + p as f64 * ph)))
+            .collect()
+    }
+
+    /// The `keep` most abundant microstates at `ph`, as (log10 fraction, mask per group).
+    fn top_states(&self, ph: f64, keep: usize) -> Vec<(f64, Vec<u32>)> {
+        let log_z = self.group_log_z(ph);
+        let mut combined: Vec<(f64, Vec<u32>)> = vec![(0.0, Vec::with_capacity(self.groups.len()))];
+        for (t, &lz) in self.tables.iter().zip(&log_z) {
+            let mut own: Vec<(f64, &Candidate)> = t
+                .candidates
+                .iter()
+                .map(|c| (c.log_w + c.lost as f64 * ph - lz, c))
+                .collect();
+            own.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.mask.cmp(&b.1.mask)));
+            own.truncate(keep);
+            let mut next = Vec::with_capacity(combined.len() * own.len());
+            for (f, masks) in &combined {
+                for (g, c) in &own {
+                    let mut m = masks.clone();
+                    m.push(c.mask);
+                    next.push((f + g, m));
+                }
+            }
+            // Any of the `keep` best full states restricts to one of the `keep` best over
+            // the groups seen so far, so pruning here loses none of them.
+            next.sort_by(|a, b| b.0.total_cmp(&a.0).then_with(|| a.1.cmp(&b.1)));
+            next.truncate(keep);
+            combined = next;
+        }
+        combined
+    }
+
+    fn species_from_masks(&self, masks: &[u32], log_fraction: f64) -> Microspecies {
+        let mut charged = vec![false; self.n];
+        let mut charge = self.base_charge;
+        for (g, &mask) in self.groups.iter().zip(masks) {
+            for (local, &site) in g.sites.iter().enumerate() {
+                charged[site] = mask >> local & 1 == 1;
+            }
+            charge += g.charge(mask);
+        }
+        Microspecies {
+            charged,
+            charge,
+            fraction: exp10(log_fraction),
+        }
+    }
+
+    /// Microspecies at `ph` as listed in [`Speciation::species`].
+    pub fn species(&self, ph: f64) -> Vec<Microspecies> {
+        let top = self.top_states(ph, MAX_SPECIES);
+        let cut = MIN_FRACTION.log10();
+        let mut out: Vec<Microspecies> = Vec::with_capacity(top.len());
+        for (i, (f, masks)) in top.iter().enumerate() {
+            if i > 0 && *f < cut {
+                break;
+            }
+            out.push(self.species_from_masks(masks, *f));
+        }
+        // Equal fractions (symmetry-equivalent microstates) list in site order.
+        out.sort_by(|a, b| {
+            b.fraction
+                .total_cmp(&a.fraction)
+                .then_with(|| b.charged.cmp(&a.charged))
+        });
+        out
+    }
+
+    /// Fraction at `ph` of the microstate with these charged sites (0 when the list does not
+    /// have one entry per site).
+    pub fn fraction(&self, charged: &[bool], ph: f64) -> f64 {
+        if charged.len() != self.n {
+            return 0.0;
+        }
+        let log_z = self.group_log_z(ph);
+        let mut lf = 0.0;
+        for (g, lz) in self.groups.iter().zip(log_z) {
+            let mut mask = 0u32;
+            for (local, &site) in g.sites.iter().enumerate() {
+                if charged[site] {
+                    mask |= 1 << local;
+                }
+            }
+            lf += g.state_log_weight(mask) + g.lost(mask) as f64 * ph - lz;
+        }
+        exp10(lf)
+    }
+
+    /// The full result at `ph`.
+    pub fn speciation(&self, ph: f64) -> Result<Speciation, SpeciationError> {
+        check_ph(ph)?;
+        Ok(Speciation {
+            macro_pka: self.macro_pka.clone(),
+            ph,
+            charge_at_ph: self.charge(ph),
+            species: self.species(ph),
+            isoelectric_point: self.isoelectric_point,
+            method: self.method.clone(),
+        })
+    }
+}
+
+pub(crate) fn check_ph(ph: f64) -> Result<(), SpeciationError> {
+    if ph.is_finite() && ph.abs() <= MAX_MAGNITUDE {
+        Ok(())
+    } else {
+        Err(SpeciationError::BadPh { value: ph })
+    }
+}
+
+fn validate(system: &System) -> Result<(), SpeciationError> {
+    let n = system.sites.len();
+    if n > MAX_SITES {
+        return Err(SpeciationError::TooManySites {
+            count: n,
+            max: MAX_SITES,
+        });
+    }
+    for (site, s) in system.sites.iter().enumerate() {
+        if !(s.pka.is_finite() && s.pka.abs() <= MAX_MAGNITUDE) {
+            return Err(SpeciationError::BadPka { site, value: s.pka });
+        }
+    }
+    let w = &system.interaction;
+    if w.is_empty() {
+        return Ok(());
+    }
+    if w.len() != n {
+        return Err(SpeciationError::InteractionRows {
+            rows: w.len(),
+            sites: n,
+        });
+    }
+    for (row, r) in w.iter().enumerate() {
+        if r.len() != n {
+            return Err(SpeciationError::InteractionRowLength {
+                row,
+                len: r.len(),
+                sites: n,
+            });
+        }
+    }
+    for i in 0..n {
+        for j in 0..n {
+            let value = w[i][j];
+            if !(value.is_finite() && value.abs() <= MAX_MAGNITUDE) {
+                return Err(SpeciationError::BadInteraction { i, j, value });
+            }
+        }
+    }
+    for i in 0..n {
+        if w[i][i] != 0.0 {
+            return Err(SpeciationError::Diagonal { i, value: w[i][i] });
+        }
+        for j in (i + 1)..n {
+            let (a, b) = (w[i][j], w[j][i]);
+            if (a - b).abs() > 1e-9 * a.abs().max(b.abs()).max(1.0) {
+                return Err(SpeciationError::Asymmetric {
+                    i,
+                    j,
+                    wij: a,
+                    wji: b,
+                });
+            }
+        }
+    }
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::SiteInput;
+
+    fn acid(pka: f64) -> SiteInput {
+        SiteInput {
+            kind: Kind::Acid,
+            pka,
+        }
+    }
+    fn base(pka: f64) -> SiteInput {
+        SiteInput {
+            kind: Kind::Base,
+            pka,
+        }
+    }
+
+    #[test]
+    fn diacid_second_constant_shifted_by_w() {
+        // Two different acid sites far apart in pKa: macro constants are the micro ones,
+        // the second pushed up by w.
+        let s = System {
+            sites: vec![acid(3.0), acid(8.0)],
+            interaction: vec![vec![0.0, 1.5], vec![1.5, 0.0]],
+            base_charge: 0,
+        };
+        let m = Microstates::new(&s).unwrap();
+        assert!((m.macro_pka()[0] - 3.0).abs() < 1e-3);
+        assert!((m.macro_pka()[1] - 9.5).abs() < 1e-3);
+    }
+
+    #[test]
+    fn identical_acids_get_statistical_factors() {
+        let s = System {
+            sites: vec![acid(4.0), acid(4.0)],
+            interaction: vec![],
+            base_charge: 0,
+        };
+        let m = Microstates::new(&s).unwrap();
+        let l2 = 2f64.log10();
+        assert!((m.macro_pka()[0] - (4.0 - l2)).abs() < 1e-12);
+        assert!((m.macro_pka()[1] - (4.0 + l2)).abs() < 1e-12);
+    }
+
+    #[test]
+    fn amino_acid_attraction_favours_zwitterion() {
+        // Acid 4.0, base 8.0, attraction 2 pK units: the zwitterion outweighs the neutral
+        // tautomer by 10^(8 - 4 + 2) = 10^6 at any pH.
+        let s = System {
+            sites: vec![acid(4.0), base(8.0)],
+            interaction: vec![vec![0.0, -2.0], vec![-2.0, 0.0]],
+            base_charge: 0,
+        };
+        let m = Microstates::new(&s).unwrap();
+        let zw = m.fraction(&[true, true], 6.0);
+        let neutral = m.fraction(&[false, false], 6.0);
+        assert!(((zw / neutral).log10() - 6.0).abs() < 1e-9);
+        let sp = m.speciation(6.0).unwrap();
+        assert_eq!(sp.species[0].charged, vec![true, true]);
+        assert_eq!(sp.species[0].charge, 0);
+    }
+
+    #[test]
+    fn fractions_from_candidates_match_direct_fraction() {
+        let s = System {
+            sites: vec![acid(3.0), base(9.0), acid(4.5), base(10.5)],
+            interaction: vec![
+                vec![0.0, -0.8, 0.6, -0.3],
+                vec![-0.8, 0.0, -0.5, 0.7],
+                vec![0.6, -0.5, 0.0, -0.4],
+                vec![-0.3, 0.7, -0.4, 0.0],
+            ],
+            base_charge: 0,
+        };
+        let m = Microstates::new(&s).unwrap();
+        let sp = m.species(5.0);
+        for x in &sp {
+            assert!((x.fraction - m.fraction(&x.charged, 5.0)).abs() < 1e-12);
+        }
+        // All 16 microstates listed at most: they add up to the whole.
+        let all = m.top_states(5.0, 16);
+        let total: f64 = all.iter().map(|(f, _)| exp10(*f)).sum();
+        assert!((total - 1.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn permanent_cation_with_bases_has_no_isoelectric_point() {
+        let s = System {
+            sites: vec![base(9.0)],
+            interaction: vec![],
+            base_charge: 1,
+        };
+        let m = Microstates::new(&s).unwrap();
+        assert_eq!(m.isoelectric_point(), None);
+        assert!((m.charge(20.0) - 1.0).abs() < 1e-9);
+    }
+
+    #[test]
+    fn no_sites() {
+        let s = System {
+            sites: vec![],
+            interaction: vec![],
+            base_charge: 0,
+        };
+        let sp = crate::try_speciate(&s, 7.0).unwrap();
+        assert!(sp.macro_pka.is_empty());
+        assert_eq!(sp.isoelectric_point, None);
+        assert_eq!(sp.species.len(), 1);
+        assert_eq!(sp.species[0].fraction, 1.0);
+        assert_eq!(sp.charge_at_ph, 0.0);
+    }
+
+    #[test]
+    fn invalid_input_is_reported_not_panicked() {
+        let s = System {
+            sites: vec![acid(f64::NAN)],
+            interaction: vec![],
+            base_charge: 0,
+        };
+        let sp = crate::speciate(&s, 7.0);
+        assert_eq!(sp.method, "invalid input: site 0: pKa NaN is not usable; a pKa must be a finite number between -1000 and 1000");
+        assert!(sp.species.is_empty());
+    }
+}
