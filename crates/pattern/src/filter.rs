@@ -159,3 +159,59 @@ impl AnchorFilter {
         self.elements.contains(a.element, a.aromatic) && self.charges.contains(a.charge)
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn filter(text: &str) -> AnchorFilter {
+        let (graph, _) = crate::parse::parse(text).expect("parses");
+        graph.filter
+    }
+    fn admits_element(f: &AnchorFilter, element: u8, aromatic: bool) -> bool {
+        f.elements.contains(element, aromatic)
+    }
+
+    #[test]
+    fn element_sets_follow_the_expression() {
+        let f = filter("[N,O;H1]");
+        assert!(admits_element(&f, 7, false));
+        assert!(admits_element(&f, 8, false));
+        assert!(!admits_element(&f, 7, true));
+        assert!(!admits_element(&f, 6, false));
+        let f = filter("[#7]");
+        assert!(admits_element(&f, 7, false) && admits_element(&f, 7, true));
+        let f = filter("[a;!c]");
+        assert!(admits_element(&f, 7, true));
+        assert!(!admits_element(&f, 6, true));
+        assert!(!admits_element(&f, 7, false));
+    }
+
+    #[test]
+    fn negated_non_element_primitives_admit_everything() {
+        // `!H1` says nothing about the element, so it must not exclude any.
+        let f = filter("[!H1]");
+        assert!(admits_element(&f, 6, false) && admits_element(&f, 17, false));
+        // The conjunction still narrows to nitrogen.
+        let f = filter("[N;!$(NC=O)]");
+        assert!(admits_element(&f, 7, false));
+        assert!(!admits_element(&f, 8, false));
+        let f = filter("[!$(C=O)]");
+        assert!(admits_element(&f, 6, false));
+    }
+
+    #[test]
+    fn charge_sets_follow_the_expression() {
+        let f = filter("[N+,N+0]");
+        assert!(f.charges.contains(1) && f.charges.contains(0));
+        assert!(!f.charges.contains(-1));
+        let f = filter("[O-]");
+        assert!(f.charges.contains(-1) && !f.charges.contains(0));
+        let f = filter("[!-;O]");
+        assert!(f.charges.contains(0) && !f.charges.contains(-1));
+        // Charges outside the table are never ruled out.
+        assert!(f.charges.contains(-100));
+        let f = filter("C");
+        assert!(f.charges.contains(-1) && f.charges.contains(0));
+    }
+}

@@ -163,3 +163,111 @@ impl Parser<'_> {
         Ok(AtomPrim::Charge(if sign == b'-' { -value } else { value }))
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use crate::expr::Expr;
+    use crate::primitive::AtomPrim::{self, *};
+
+    /// The primitives of a one-atom pattern, flattened from a top-level conjunction.
+    fn prims(text: &str) -> Vec<AtomPrim> {
+        let (graph, _) = super::super::parse(text).expect("parses");
+        match &graph.atoms[0].expr {
+            Expr::Prim(p) => vec![*p],
+            Expr::And(es) => es
+                .iter()
+                .map(|e| match e {
+                    Expr::Prim(p) => *p,
+                    other => panic!("not a primitive: {other:?}"),
+                })
+                .collect(),
+            other => panic!("not a conjunction: {other:?}"),
+        }
+    }
+    fn el(number: u8, aromatic: Option<bool>) -> AtomPrim {
+        Element { number, aromatic }
+    }
+
+    #[test]
+    fn organic_shorthand() {
+        assert_eq!(prims("C"), vec![el(6, Some(false))]);
+        assert_eq!(prims("c"), vec![el(6, Some(true))]);
+        assert_eq!(prims("Cl"), vec![el(17, Some(false))]);
+        assert_eq!(prims("Br"), vec![el(35, Some(false))]);
+        assert_eq!(prims("*"), vec![Any]);
+        assert_eq!(prims("a"), vec![Aromatic(true)]);
+        assert_eq!(prims("A"), vec![Aromatic(false)]);
+    }
+
+    #[test]
+    fn bracket_elements() {
+        assert_eq!(prims("[Cl]"), vec![el(17, Some(false))]);
+        assert_eq!(prims("[Na]"), vec![el(11, Some(false))]);
+        assert_eq!(prims("[se]"), vec![el(34, Some(true))]);
+        assert_eq!(prims("[#7]"), vec![el(7, None)]);
+        assert_eq!(prims("[#0]"), vec![el(0, None)]);
+    }
+
+    #[test]
+    fn one_letter_element_then_primitive() {
+        assert_eq!(prims("[CR]"), vec![el(6, Some(false)), RingCount(None)]);
+        assert_eq!(prims("[Ch]"), vec![el(6, Some(false)), ImplicitH(None)]);
+        assert_eq!(prims("[nH]"), vec![el(7, Some(true)), TotalH(1)]);
+    }
+
+    #[test]
+    fn counts() {
+        assert_eq!(prims("[NH2]"), vec![el(7, Some(false)), TotalH(2)]);
+        assert_eq!(prims("[CH]"), vec![el(6, Some(false)), TotalH(1)]);
+        assert_eq!(prims("[H0]"), vec![TotalH(0)]);
+        assert_eq!(prims("[D3]"), vec![Degree(3)]);
+        assert_eq!(prims("[D]"), vec![Degree(1)]);
+        assert_eq!(prims("[X4]"), vec![Connectivity(4)]);
+        assert_eq!(prims("[h2]"), vec![ImplicitH(Some(2))]);
+        assert_eq!(prims("[R]"), vec![RingCount(None)]);
+        assert_eq!(prims("[R0]"), vec![RingCount(Some(0))]);
+        assert_eq!(prims("[R2]"), vec![RingCount(Some(2))]);
+        assert_eq!(prims("[r]"), vec![RingSize(None)]);
+        assert_eq!(prims("[r6]"), vec![RingSize(Some(6))]);
+    }
+
+    #[test]
+    fn hydrogen_as_element() {
+        assert_eq!(prims("[H]"), vec![el(1, Some(false))]);
+        assert_eq!(prims("[2H]"), vec![Isotope(2), el(1, Some(false))]);
+        assert_eq!(prims("[H+]"), vec![el(1, Some(false)), Charge(1)]);
+        assert_eq!(prims("[H:1]"), vec![el(1, Some(false))]);
+    }
+
+    #[test]
+    fn charges() {
+        assert_eq!(prims("[+]"), vec![Charge(1)]);
+        assert_eq!(prims("[-]"), vec![Charge(-1)]);
+        assert_eq!(prims("[+2]"), vec![Charge(2)]);
+        assert_eq!(prims("[--]"), vec![Charge(-2)]);
+        assert_eq!(prims("[+++]"), vec![Charge(3)]);
+        assert_eq!(prims("[N+0]"), vec![el(7, Some(false)), Charge(0)]);
+        assert_eq!(prims("[O-1]"), vec![el(8, Some(false)), Charge(-1)]);
+    }
+
+    #[test]
+    fn isotope() {
+        assert_eq!(prims("[13C]"), vec![Isotope(13), el(6, Some(false))]);
+    }
+
+    #[test]
+    fn recursive_environments_are_numbered_in_reading_order() {
+        let (graph, subs) = super::super::parse("[C;$(C=O),$(C[$(N)])]").expect("parses");
+        assert_eq!(subs.len(), 3);
+        assert_eq!(subs[0].atoms.len(), 2);
+        assert_eq!(subs[1].atoms.len(), 2);
+        assert_eq!(subs[2].atoms.len(), 1);
+        assert_eq!(
+            graph.atoms[0].expr,
+            Expr::And(vec![
+                Expr::Prim(el(6, Some(false))),
+                Expr::Or(vec![Expr::Prim(Recursive(0)), Expr::Prim(Recursive(1))])
+            ])
+        );
+    }
+}

@@ -9,7 +9,7 @@ use super::parser::{Builder, Parser};
 
 impl Parser<'_> {
     // <chain> ::= ( <branch> | <bond>? <ring_closure> | <bond>? <atom> )*
-    /// Reads what follows atom `prev` until the end of the text or a `)`.
+    /// Reads what follows atom `prev` until the end of the text, a `)` or a stray `]`.
     pub(crate) fn chain(
         &mut self,
         builder: &mut Builder,
@@ -17,7 +17,8 @@ impl Parser<'_> {
     ) -> Result<(), PatternError> {
         loop {
             match self.peek() {
-                None | Some(b')') => return Ok(()),
+                // `]` ends a `$()` left open inside a bracket; the caller names the error.
+                None | Some(b')' | b']') => return Ok(()),
                 Some(b'(') => self.branch(builder, prev)?,
                 Some(b'.') => {
                     return Err(self.error_here("disconnected patterns ('.') are not supported"))

@@ -70,3 +70,106 @@ impl Parser<'_> {
         }
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use crate::expr::Expr;
+    use crate::primitive::AtomPrim::{self, *};
+    use crate::primitive::BondPrim;
+
+    fn atom_expr(text: &str) -> Expr<AtomPrim> {
+        let (graph, _) = super::super::parse(text).expect("parses");
+        graph.atoms[0].expr.clone()
+    }
+    fn p(prim: AtomPrim) -> Expr<AtomPrim> {
+        Expr::Prim(prim)
+    }
+    const C: AtomPrim = Element {
+        number: 6,
+        aromatic: Some(false),
+    };
+    const N: AtomPrim = Element {
+        number: 7,
+        aromatic: Some(false),
+    };
+    const O: AtomPrim = Element {
+        number: 8,
+        aromatic: Some(false),
+    };
+
+    #[test]
+    fn comma_binds_tighter_than_semicolon() {
+        assert_eq!(
+            atom_expr("[C,N;H1]"),
+            Expr::And(vec![Expr::Or(vec![p(C), p(N)]), p(TotalH(1))])
+        );
+    }
+
+    #[test]
+    fn ampersand_binds_tighter_than_comma() {
+        assert_eq!(
+            atom_expr("[C&H1,N]"),
+            Expr::Or(vec![Expr::And(vec![p(C), p(TotalH(1))]), p(N)])
+        );
+    }
+
+    #[test]
+    fn implicit_and_binds_like_ampersand() {
+        assert_eq!(atom_expr("[CH1,N]"), atom_expr("[C&H1,N]"));
+    }
+
+    #[test]
+    fn not_binds_tightest() {
+        assert_eq!(
+            atom_expr("[!C&!N,O]"),
+            Expr::Or(vec![
+                Expr::And(vec![Expr::Not(Box::new(p(C))), Expr::Not(Box::new(p(N)))]),
+                p(O)
+            ])
+        );
+    }
+
+    #[test]
+    fn double_negation_cancels() {
+        assert_eq!(atom_expr("[!!C]"), p(C));
+    }
+
+    #[test]
+    fn semicolon_joins_disjunctions() {
+        assert_eq!(
+            atom_expr("[C,N;O,H1]"),
+            Expr::And(vec![
+                Expr::Or(vec![p(C), p(N)]),
+                Expr::Or(vec![p(O), p(TotalH(1))])
+            ])
+        );
+    }
+
+    #[test]
+    fn bond_expressions_share_the_precedence() {
+        let (graph, _) = super::super::parse("C-,=;@C").expect("parses");
+        assert_eq!(
+            graph.bonds[0].expr,
+            Expr::And(vec![
+                Expr::Or(vec![
+                    Expr::Prim(BondPrim::Single),
+                    Expr::Prim(BondPrim::Double)
+                ]),
+                Expr::Prim(BondPrim::Ring)
+            ])
+        );
+        let (graph, _) = super::super::parse("C!:C").expect("parses");
+        assert_eq!(
+            graph.bonds[0].expr,
+            Expr::Not(Box::new(Expr::Prim(BondPrim::Aromatic)))
+        );
+        let (graph, _) = super::super::parse("C-@C").expect("parses");
+        assert_eq!(
+            graph.bonds[0].expr,
+            Expr::And(vec![
+                Expr::Prim(BondPrim::Single),
+                Expr::Prim(BondPrim::Ring)
+            ])
+        );
+    }
+}
