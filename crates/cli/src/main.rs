@@ -1,4 +1,50 @@
-//! The `pkarta` command-line tool (CLI helper).
-fn main() {
-    println!("pkarta: under construction");
+//! The `pkarta` command-line tool: argument parsing, input and output, formatting. The
+//! chemistry is in the `pkarta` library.
+
+mod batch;
+mod curve;
+mod debug;
+mod explain;
+mod flags;
+mod fmt;
+mod input;
+mod inspect;
+mod predict;
+mod progress;
+
+use std::io::Write;
+use std::process::ExitCode;
+
+use clap::Parser;
+
+use crate::flags::{Cli, Command};
+
+/// Every record was read and estimated.
+const OK: u8 = 0;
+/// Some records failed; their errors are in the output.
+const SOME_FAILED: u8 = 1;
+/// Usage or I/O error.
+const ERROR: u8 = 2;
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    match run(cli) {
+        Ok(false) => ExitCode::from(OK),
+        Ok(true) => ExitCode::from(SOME_FAILED),
+        Err(e) => {
+            let _ = writeln!(std::io::stderr(), "pkarta: {e:#}");
+            ExitCode::from(ERROR)
+        }
+    }
+}
+
+/// Runs a command; `Ok(true)` when some records failed.
+fn run(cli: Cli) -> anyhow::Result<bool> {
+    match cli.command {
+        Command::Predict(args) => predict::run(&args),
+        Command::Inspect(args) => inspect::run(&args),
+        Command::Explain(args) => explain::run(&args),
+        Command::Debug { view } => debug::run(&view),
+        Command::Curve(args) => curve::run(&args),
+    }
 }

@@ -1,0 +1,346 @@
+//! `pkarta predict`: estimates for every record of a file or stream.
+
+use std::io::{self, IsTerminal, Write};
+
+use pkarta::{ErrorReport, Options, Record, SiteReport};
+
+use crate::batch::{self, Job, Outcome, Sink};
+use crate::flags::{InputFormat, PredictArgs, PredictFormat};
+use crate::fmt::{align, hang, num, opt_num, percent, CAUTION};
+use crate::input::{self, Item};
+use crate::progress::{self, Progress};
+
+/// The columns `predict` adds to CSV/TSV output, in order (see docs/usage.md).
+pub const COLUMNS: &[&str] = &[
+    "pkarta_parent",
+    "pkarta_acid_pka",
+    "pkarta_base_pka",
+    "pkarta_macro_pka",
+    "pkarta_charge",
+    "pkarta_species",
+    "pkarta_species_fraction",
+    "pkarta_isoelectric_point",
+    "pkarta_warnings",
+    "pkarta_error",
+];
+
+/// Runs `predict`; returns whether any record failed.
+pub fn run(args: &PredictArgs) -> anyhow::Result<bool> {
+    let opened = input::open(&args.input)?;
+    let format = args.format.unwrap_or_else(|| {
+        if io::stdout().is_terminal() {
+            PredictFormat::Table
+        } else {
+            PredictFormat::Jsonl
+        }
+    });
+    let progress = Progress::new(args.batch.quiet, opened.len);
+    let out = batch::stdout();
+    let mut sink: Box<dyn Sink<Record> + Send> = match format {
+        PredictFormat::Jsonl => Box::new(Jsonl { out }),
+        PredictFormat::Table => Box::new(Table { out, first: true }),
+        PredictFormat::Csv | PredictFormat::Tsv => {
+            let delimiter = if format == PredictFormat::Tsv {
+                b'\t'
+            } else {
+                b','
+            };
+            let writer = csv::WriterBuilder::new()
+                .delimiter(delimiter)
+                .flexible(true)
+                .from_writer(out);
+            Box::new(Delimited {
+                writer,
+                header: opened.header.clone(),
+                header_written: false,
+                csv_input: opened.format != InputFormat::Smi,
+            })
+        }
+    };
+    let job = PredictJob {
+        options: Options { ph: args.ph.ph },
+    };
+    let threads = args.batch.threads.map(usize::from);
+    let summary = batch::run(opened.source, threads, &job, sink.as_mut(), &progress)?;
+    progress::summary(args.batch.quiet, "estimated", &summary);
+    Ok(summary.failed > 0)
+}
+
+/// Estimates one record.
+pub struct PredictJob {
+    /// Options of every estimate.
+    pub options: Options,
+}
+
+impl Outcome for Record {
+    fn failed(&self) -> bool {
+        self.error.is_some()
+    }
+}
+
+impl Job for PredictJob {
+    type Out = Record;
+
+    fn run(&self, item: &Item) -> Record {
+        match &item.problem {
+            Some(problem) => failed(item, self.options.ph, problem.clone()),
+            None => pkarta::estimate(&item.text, item.id.as_deref(), &self.options),
+        }
+    }
+
+    fn internal_error(&self, item: &Item, message: String) -> Record {
+        failed(item, self.options.ph, message)
+    }
+}
+
+/// The record of an input that failed before it reached the library.
+pub fn failed(item: &Item, ph: f64, message: String) -> Record {
+    Record {
+        input: item.text.clone(),
+        id: item.id.clone(),
+        smiles: None,
+        sites: Vec::new(),
+        sites_outside_window: Vec::new(),
+        macro_pka: Vec::new(),
+        ph,
+        charge_at_ph: None,
+        species: Vec::new(),
+        isoelectric_point: None,
+        warnings: Vec::new(),
+        error: Some(ErrorReport { message }),
+    }
+}
+
+/// The strongest acid site: the lowest pKa among acid sites in the aqueous window.
+pub fn strongest_acid(record: &Record) -> Option<&SiteReport> {
+    record
+        .sites
+        .iter()
+        .filter(|s| s.kind == pkarta::model::Kind::Acid)
+        .min_by(|a, b| a.pka.total_cmp(&b.pka))
+}
+
+/// The strongest base site: the highest conjugate-acid pKa among base sites in the window.
+pub fn strongest_base(record: &Record) -> Option<&SiteReport> {
+    record
+        .sites
+        .iter()
+        .filter(|s| s.kind == pkarta::model::Kind::Base)
+        .max_by(|a, b| a.pka.total_cmp(&b.pka))
+}
+
+fn kind_name(kind: pkarta::model::Kind) -> &'static str {
+    match kind {
+        pkarta::model::Kind::Acid => "acid",
+        pkarta::model::Kind::Base => "base",
+    }
+}
+
+struct Jsonl<W> {
+    out: W,
+}
+
+impl<W: Write + Send> Sink<Record> for Jsonl<W> {
+    fn write(&mut self, _item: &Item, record: &Record) -> io::Result<()> {
+        serde_json::to_writer(&mut self.out, record)?;
+        self.out.write_all(b"\n")
+    }
+    fn flush(&mut self) -> io::Result<()> {
+        self.out.flush()
+    }
+    fn finish(&mut self) -> io::Result<()> {
+        self.out.flush()
+    }
+}
+
+/// CSV/TSV: the input columns untouched, then [`COLUMNS`].
+struct Delimited<W: Write> {
+    writer: csv::Writer<W>,
+    header: Option<csv::ByteRecord>,
+    header_written: bool,
+    csv_input: bool,
+}
+
+impl<W: Write> Delimited<W> {
+    fn write_header(&mut self) -> io::Result<()> {
+        let mut header = match (&self.header, self.csv_input) {
+            (Some(h), true) => h.clone(),
+            _ => csv::ByteRecord::from(vec!["input", "id"]),
+        };
+        for c in COLUMNS {
+            header.push_field(c.as_bytes());
+        }
+        self.writer.write_byte_record(&header).map_err(csv_io)?;
+        self.header_written = true;
+        Ok(())
+    }
+}
+
+fn csv_io(e: csv::Error) -> io::Error {
+    match e.into_kind() {
+        csv::ErrorKind::Io(e) => e,
+        other => io::Error::other(format!("{other:?}")),
+    }
+}
+
+/// The pkarta_* cells of one record.
+pub fn cells(record: &Record) -> Vec<String> {
+    let dominant = record.species.first();
+    vec![
+        record.smiles.clone().unwrap_or_default(),
+        opt_num(strongest_acid(record).map(|s| s.pka)),
+        opt_num(strongest_base(record).map(|s| s.pka)),
+        record
+            .macro_pka
+            .iter()
+            .map(|&p| num(p))
+            .collect::<Vec<_>>()
+            .join(";"),
+        opt_num(record.charge_at_ph),
+        dominant.map(|s| s.smiles.clone()).unwrap_or_default(),
+        opt_num(dominant.map(|s| s.fraction)),
+        opt_num(record.isoelectric_point),
+        record.warnings.join("; "),
+        // A spreadsheet cell shows one line: the message, without its caret rendering.
+        record
+            .error
+            .as_ref()
+            .map(|e| e.message.lines().next().unwrap_or("").to_string())
+            .unwrap_or_default(),
+    ]
+}
+
+impl<W: Write + Send> Sink<Record> for Delimited<W> {
+    fn write(&mut self, item: &Item, record: &Record) -> io::Result<()> {
+        if !self.header_written {
+            self.write_header()?;
+        }
+        let mut row = match (&item.row, self.csv_input) {
+            (Some(row), true) => row.clone(),
+            _ => csv::ByteRecord::from(vec![
+                record.input.as_str(),
+                record.id.as_deref().unwrap_or(""),
+            ]),
+        };
+        if self.csv_input {
+            if let Some(header) = &self.header {
+                // Short rows are padded so the pkarta_* cells land in their columns.
+                while row.len() < header.len() {
+                    row.push_field(b"");
+                }
+            }
+        }
+        for cell in cells(record) {
+            row.push_field(cell.as_bytes());
+        }
+        self.writer.write_byte_record(&row).map_err(csv_io)
+    }
+    fn flush(&mut self) -> io::Result<()> {
+        self.writer.flush()
+    }
+    fn finish(&mut self) -> io::Result<()> {
+        if !self.header_written {
+            self.write_header()?;
+        }
+        self.writer.flush()
+    }
+}
+
+struct Table<W> {
+    out: W,
+    first: bool,
+}
+
+impl<W: Write + Send> Sink<Record> for Table<W> {
+    fn write(&mut self, item: &Item, record: &Record) -> io::Result<()> {
+        if !self.first {
+            self.out.write_all(b"\n")?;
+        }
+        self.first = false;
+        self.out.write_all(render(item.number, record).as_bytes())
+    }
+    fn flush(&mut self) -> io::Result<()> {
+        self.out.flush()
+    }
+    fn finish(&mut self) -> io::Result<()> {
+        if !self.first {
+            self.out.write_all(b"\n")?;
+        }
+        writeln!(self.out, "{CAUTION}")?;
+        self.out.flush()
+    }
+}
+
+/// One record as text for people: a heading, a row per site, then the molecule summary.
+pub fn render(number: u64, record: &Record) -> String {
+    let mut s = format!("#{number}");
+    if let Some(id) = &record.id {
+        s.push_str(&format!("  {id}"));
+    }
+    s.push_str(&format!("  {}\n", record.input));
+    if let Some(error) = &record.error {
+        s.push_str(&format!("  error: {}\n", hang(&error.message, "         ")));
+        return s;
+    }
+    if let Some(parent) = &record.smiles {
+        if parent != &record.input {
+            s.push_str(&format!("  parent: {parent}\n"));
+        }
+    }
+    if record.sites.is_empty() && record.sites_outside_window.is_empty() {
+        s.push_str("  no ionizable sites found\n");
+    } else {
+        let mut rows = vec![["atom", "kind", "pKa", "+/-", "class", ""]
+            .map(String::from)
+            .to_vec()];
+        let outside = record
+            .sites_outside_window
+            .iter()
+            .map(|s| (s, "outside the aqueous window"));
+        for (site, note) in record.sites.iter().map(|s| (s, "")).chain(outside) {
+            rows.push(vec![
+                site.atom.to_string(),
+                kind_name(site.kind).to_string(),
+                num(site.pka),
+                num(site.uncertainty),
+                site.class_name.clone(),
+                note.to_string(),
+            ]);
+        }
+        s.push_str(&align(&rows, &[0, 2, 3], "  "));
+    }
+    let macro_pka = if record.macro_pka.is_empty() {
+        "none".to_string()
+    } else {
+        record
+            .macro_pka
+            .iter()
+            .map(|&p| num(p))
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
+    s.push_str(&format!("  macro pKa: {macro_pka}\n"));
+    s.push_str(&format!(
+        "  at pH {}: charge {}",
+        num(record.ph),
+        record
+            .charge_at_ph
+            .map(num)
+            .unwrap_or_else(|| "-".to_string())
+    ));
+    if let Some(dominant) = record.species.first() {
+        s.push_str(&format!(
+            ", dominant species {} ({})",
+            dominant.smiles,
+            percent(dominant.fraction)
+        ));
+    }
+    s.push('\n');
+    if let Some(pi) = record.isoelectric_point {
+        s.push_str(&format!("  isoelectric point: {}\n", num(pi)));
+    }
+    for w in &record.warnings {
+        s.push_str(&format!("  warning: {w}\n"));
+    }
+    s
+}
