@@ -97,12 +97,12 @@ impl<'t> Parser<'t> {
         self.error_at(message, self.pos, end)
     }
 
-    /// Byte length of the next character (at least 1, so carets always show).
+    /// Byte length of the next character; 0 at the end (the caret still shows there).
     pub(crate) fn char_len(&self) -> usize {
         self.text
             .get(self.pos..)
             .and_then(|s| s.chars().next())
-            .map_or(1, char::len_utf8)
+            .map_or(0, char::len_utf8)
     }
 
     /// The next character, for messages.
