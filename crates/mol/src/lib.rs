@@ -11,17 +11,21 @@
 //! signatures stay.
 #![deny(missing_docs)]
 
+mod elements;
 mod error;
 mod molecule;
+mod perceive;
+mod read;
 
 pub use error::{Error, ErrorKind, Span};
 pub use molecule::{Atom, Bond, Hybridization, Molecule, Neighbor};
+pub use read::{MAX_INLINE_LENGTH, MAX_LENGTH};
 
 /// Reads SMILES text and perceives it (hydrogens, rings, aromaticity, Kekulé form,
 /// hybridization). All components are kept, in input order.
 pub fn parse(smiles: &str) -> Result<Molecule, Error> {
-    let _ = smiles;
-    todo!("mol helper")
+    let written = read::read(smiles)?;
+    perceive::perceive(smiles, written)
 }
 
 /// The parent component chosen by [`standardize`], in its neutral form where one exists.
@@ -60,6 +64,5 @@ pub fn symmetry_classes(molecule: &Molecule) -> Vec<u32> {
 
 /// The element symbol for an atomic number (`*` for 0), e.g. `Cl` for 17.
 pub fn element_symbol(element: u8) -> &'static str {
-    let _ = element;
-    todo!("mol helper")
+    elements::symbol(element)
 }

@@ -99,7 +99,10 @@ impl Molecule {
     }
     /// The bond between two atoms, if any.
     pub fn bond_between(&self, a: usize, b: usize) -> Option<usize> {
-        self.neighbors[a].iter().find(|n| n.atom == b).map(|n| n.bond)
+        self.neighbors[a]
+            .iter()
+            .find(|n| n.atom == b)
+            .map(|n| n.bond)
     }
     /// The smallest set of smallest rings, each as atoms in ring order.
     pub fn rings(&self) -> &[Vec<usize>] {
@@ -120,7 +123,10 @@ impl Molecule {
     /// Total hydrogens on an atom: in counts plus explicit `[H]` neighbours (SMARTS `H`).
     pub fn total_hydrogens(&self, atom: usize) -> usize {
         self.atoms[atom].hydrogens as usize
-            + self.neighbors[atom].iter().filter(|n| self.atoms[n.atom].element == 1).count()
+            + self.neighbors[atom]
+                .iter()
+                .filter(|n| self.atoms[n.atom].element == 1)
+                .count()
     }
     /// A copy of the molecule with protons moved: each `(atom, delta)` adds `delta`
     /// hydrogens to the atom and changes its formal charge by `delta`. Used to write

@@ -1,0 +1,324 @@
+//! Ring perception: ring bonds, the smallest set of smallest rings, per-atom ring counts.
+
+use std::collections::{HashSet, VecDeque};
+
+use crate::molecule::Molecule;
+
+/// Ring systems with more atoms than this take only the shortest cycle through each bond as
+/// candidates; smaller ones also take Horton's vertex-rooted candidates, which guarantee a
+/// minimum cycle basis. Bounds the work on very large fused systems.
+const HORTON_LIMIT: usize = 300;
+
+/// Finds ring bonds, the SSSR (stored in ring order), and each atom's ring count and
+/// smallest ring.
+///
+/// # Reference
+///
+/// J. D. Horton, "A polynomial-time algorithm to find the shortest cycle basis of a graph",
+/// SIAM J. Comput. 1987, 16, 358-366: candidate cycles, then a greedy choice of the
+/// shortest linearly independent ones (Gaussian elimination over GF(2)). The number of
+/// rings is the cyclomatic number E - V + C.
+pub(crate) fn perceive_rings(m: &mut Molecule) {
+    let n = m.atoms.len();
+    for a in &mut m.atoms {
+        a.ring_count = 0;
+        a.smallest_ring = 0;
+    }
+    let ring_bond = ring_bonds(m);
+    for (b, &r) in m.bonds.iter_mut().zip(&ring_bond) {
+        b.in_ring = r;
+    }
+    // Ring systems: components of the ring-bond subgraph.
+    let mut system = vec![usize::MAX; n];
+    let mut systems: Vec<(Vec<usize>, Vec<usize>)> = Vec::new();
+    for start in 0..n {
+        if system[start] != usize::MAX || !m.neighbors[start].iter().any(|nb| ring_bond[nb.bond]) {
+            continue;
+        }
+        let id = systems.len();
+        let mut atoms = vec![start];
+        let mut bonds = HashSet::new();
+        system[start] = id;
+        let mut stack = vec![start];
+        while let Some(a) = stack.pop() {
+            for nb in &m.neighbors[a] {
+                if !ring_bond[nb.bond] {
+                    continue;
+                }
+                bonds.insert(nb.bond);
+                if system[nb.atom] == usize::MAX {
+                    system[nb.atom] = id;
+                    atoms.push(nb.atom);
+                    stack.push(nb.atom);
+                }
+            }
+        }
+        let mut bonds: Vec<usize> = bonds.into_iter().collect();
+        bonds.sort_unstable();
+        systems.push((atoms, bonds));
+    }
+    let mut rings = Vec::new();
+    for (atoms, bonds) in &systems {
+        rings.extend(system_rings(m, atoms, bonds, &ring_bond));
+    }
+    for ring in &rings {
+        for &a in ring {
+            let atom = &mut m.atoms[a];
+            atom.ring_count = atom.ring_count.saturating_add(1);
+            let size = ring.len().min(255) as u8;
+            if atom.smallest_ring == 0 || size < atom.smallest_ring {
+                atom.smallest_ring = size;
+            }
+        }
+    }
+    m.rings = rings;
+}
+
+/// Bonds on a cycle (not bridges), by an iterative low-link depth-first search.
+fn ring_bonds(m: &Molecule) -> Vec<bool> {
+    let n = m.atoms.len();
+    let mut order = vec![usize::MAX; n];
+    let mut low = vec![0usize; n];
+    let mut is_bridge = vec![false; m.bonds.len()];
+    let mut counter = 0;
+    for root in 0..n {
+        if order[root] != usize::MAX {
+            continue;
+        }
+        // (atom, bond we came by, next neighbour index)
+        let mut stack: Vec<(usize, usize, usize)> = vec![(root, usize::MAX, 0)];
+        order[root] = counter;
+        low[root] = counter;
+        counter += 1;
+        while let Some(&mut (v, via, ref mut k)) = stack.last_mut() {
+            if *k < m.neighbors[v].len() {
+                let nb = m.neighbors[v][*k];
+                *k += 1;
+                if nb.bond == via {
+                    continue;
+                }
+                if order[nb.atom] == usize::MAX {
+                    order[nb.atom] = counter;
+                    low[nb.atom] = counter;
+                    counter += 1;
+                    stack.push((nb.atom, nb.bond, 0));
+                } else {
+                    low[v] = low[v].min(order[nb.atom]);
+                }
+            } else {
+                stack.pop();
+                if let Some(&(parent, _, _)) = stack.last() {
+                    low[parent] = low[parent].min(low[v]);
+                    if low[v] > order[parent] {
+                        is_bridge[via] = true;
+                    }
+                }
+            }
+        }
+    }
+    is_bridge.iter().map(|b| !b).collect()
+}
+
+/// Shortest path from `from` to `to` over ring bonds of the system, not using bond `skip`;
+/// returns the atoms in order.
+fn shortest_path(
+    m: &Molecule,
+    from: usize,
+    to: usize,
+    skip: usize,
+    ring_bond: &[bool],
+    prev: &mut [usize],
+) -> Option<Vec<usize>> {
+    let mut touched = vec![from];
+    prev[from] = from;
+    let mut queue = VecDeque::from([from]);
+    let mut found = false;
+    'search: while let Some(v) = queue.pop_front() {
+        for nb in &m.neighbors[v] {
+            if nb.bond == skip || !ring_bond[nb.bond] || prev[nb.atom] != usize::MAX {
+                continue;
+            }
+            prev[nb.atom] = v;
+            touched.push(nb.atom);
+            if nb.atom == to {
+                found = true;
+                break 'search;
+            }
+            queue.push_back(nb.atom);
+        }
+    }
+    let path = found.then(|| {
+        let mut path = vec![to];
+        let mut v = to;
+        while v != from {
+            v = prev[v];
+            path.push(v);
+        }
+        path.reverse();
+        path
+    });
+    for t in touched {
+        prev[t] = usize::MAX;
+    }
+    path
+}
+
+/// Breadth-first tree from `root`: parent of each atom (`usize::MAX` outside the tree).
+fn bfs_tree(m: &Molecule, root: usize, ring_bond: &[bool], n: usize) -> (Vec<usize>, Vec<usize>) {
+    let mut parent = vec![usize::MAX; n];
+    let mut depth = vec![usize::MAX; n];
+    parent[root] = root;
+    depth[root] = 0;
+    let mut queue = VecDeque::from([root]);
+    while let Some(v) = queue.pop_front() {
+        for nb in &m.neighbors[v] {
+            if ring_bond[nb.bond] && depth[nb.atom] == usize::MAX {
+                depth[nb.atom] = depth[v] + 1;
+                parent[nb.atom] = v;
+                queue.push_back(nb.atom);
+            }
+        }
+    }
+    (parent, depth)
+}
+
+fn path_to_root(parent: &[usize], mut v: usize) -> Vec<usize> {
+    let mut p = vec![v];
+    while parent[v] != v {
+        v = parent[v];
+        p.push(v);
+    }
+    p
+}
+
+fn system_rings(
+    m: &Molecule,
+    atoms: &[usize],
+    bonds: &[usize],
+    ring_bond: &[bool],
+) -> Vec<Vec<usize>> {
+    let n = m.atoms.len();
+    let wanted = bonds.len() + 1 - atoms.len();
+    let mut column = vec![usize::MAX; m.bonds.len()];
+    for (k, &b) in bonds.iter().enumerate() {
+        column[b] = k;
+    }
+    let words = bonds.len().div_ceil(64);
+    let mut prev = vec![usize::MAX; n];
+    let mut candidates: Vec<Vec<usize>> = Vec::new();
+    let mut seen: HashSet<Vec<u64>> = HashSet::new();
+    let mut add = |cycle: Vec<usize>, candidates: &mut Vec<Vec<usize>>| {
+        let v = bits(m, &cycle, &column, words);
+        if seen.insert(v) {
+            candidates.push(cycle);
+        }
+    };
+    for &b in bonds {
+        let (x, y) = (m.bonds[b].a, m.bonds[b].b);
+        if let Some(path) = shortest_path(m, x, y, b, ring_bond, &mut prev) {
+            add(path, &mut candidates);
+        }
+    }
+    let mut basis = choose(m, candidates.clone(), &column, words, wanted);
+    if basis.len() < wanted && atoms.len() <= HORTON_LIMIT {
+        for &r in atoms {
+            let (parent, depth) = bfs_tree(m, r, ring_bond, n);
+            for &b in bonds {
+                let (x, y) = (m.bonds[b].a, m.bonds[b].b);
+                if depth[x] == usize::MAX || depth[y] == usize::MAX {
+                    continue;
+                }
+                if parent[x] == y || parent[y] == x {
+                    continue;
+                }
+                let px = path_to_root(&parent, x);
+                let py = path_to_root(&parent, y);
+                // The two tree paths may meet only at the root.
+                let sx: HashSet<usize> = px[..px.len() - 1].iter().copied().collect();
+                if py[..py.len() - 1].iter().any(|a| sx.contains(a)) {
+                    continue;
+                }
+                let mut cycle = px;
+                cycle.pop();
+                cycle.extend(py.into_iter().rev());
+                add(cycle, &mut candidates);
+            }
+        }
+        basis = choose(m, candidates, &column, words, wanted);
+    }
+    basis
+}
+
+fn bits(m: &Molecule, cycle: &[usize], column: &[usize], words: usize) -> Vec<u64> {
+    let mut v = vec![0u64; words];
+    for k in 0..cycle.len() {
+        let (a, b) = (cycle[k], cycle[(k + 1) % cycle.len()]);
+        if let Some(bond) = m.bond_between(a, b) {
+            let c = column[bond];
+            if c != usize::MAX {
+                v[c / 64] |= 1 << (c % 64);
+            }
+        }
+    }
+    v
+}
+
+/// Greedy choice of short, independent cycles: Gaussian elimination over GF(2).
+fn choose(
+    m: &Molecule,
+    mut candidates: Vec<Vec<usize>>,
+    column: &[usize],
+    words: usize,
+    wanted: usize,
+) -> Vec<Vec<usize>> {
+    candidates.sort_by(|a, b| {
+        a.len()
+            .cmp(&b.len())
+            .then_with(|| canonical(a).cmp(&canonical(b)))
+    });
+    // Reduced rows, each with its pivot bit.
+    let mut rows: Vec<(usize, Vec<u64>)> = Vec::new();
+    let mut chosen = Vec::new();
+    for cycle in candidates {
+        if chosen.len() == wanted {
+            break;
+        }
+        let mut v = bits(m, &cycle, column, words);
+        for (pivot, row) in &rows {
+            if v[pivot / 64] >> (pivot % 64) & 1 == 1 {
+                for (x, y) in v.iter_mut().zip(row) {
+                    *x ^= y;
+                }
+            }
+        }
+        let Some(pivot) = first_bit(&v) else { continue };
+        // Rows stay sorted by their lowest bit, so one pass in order reduces fully.
+        let at = rows.partition_point(|(p, _)| *p < pivot);
+        rows.insert(at, (pivot, v));
+        chosen.push(canonical(&cycle));
+    }
+    chosen
+}
+
+fn first_bit(v: &[u64]) -> Option<usize> {
+    v.iter()
+        .enumerate()
+        .find(|(_, w)| **w != 0)
+        .map(|(i, w)| i * 64 + w.trailing_zeros() as usize)
+}
+
+/// The ring rotated to start at its lowest atom, going towards the lower neighbour: the same
+/// ring always reads the same way.
+fn canonical(cycle: &[usize]) -> Vec<usize> {
+    let n = cycle.len();
+    let Some(start) = (0..n).min_by_key(|&i| cycle[i]) else {
+        return Vec::new();
+    };
+    let forward: Vec<usize> = (0..n).map(|k| cycle[(start + k) % n]).collect();
+    let backward: Vec<usize> = (0..n).map(|k| cycle[(start + n - k) % n]).collect();
+    if n > 1 && backward[1] < forward[1] {
+        backward
+    } else {
+        forward
+    }
+}

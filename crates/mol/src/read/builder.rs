@@ -1,0 +1,322 @@
+//! Builds atoms and bonds from `purr`'s reading events and turns its errors into ours.
+
+use std::collections::HashMap;
+
+use purr::feature::{AtomKind, BondKind, Rnum};
+use purr::read::Trace;
+use purr::walk::Follower;
+
+use super::atom_kind::{convert, WrittenAtom};
+use super::scan::{scan, Scan, MAX_INLINE_LENGTH};
+use crate::{Error, ErrorKind, Span};
+
+/// A bond symbol as written.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(crate) enum Symbol {
+    /// No symbol: single, or aromatic between two aromatic atoms.
+    Elided,
+    /// `-`, `/` or `\`.
+    Single,
+    /// `=`
+    Double,
+    /// `#`
+    Triple,
+    /// `$`
+    Quadruple,
+    /// `:`
+    Aromatic,
+}
+
+impl Symbol {
+    fn of(kind: &BondKind) -> Symbol {
+        match kind {
+            BondKind::Elided => Symbol::Elided,
+            BondKind::Single | BondKind::Up | BondKind::Down => Symbol::Single,
+            BondKind::Double => Symbol::Double,
+            BondKind::Triple => Symbol::Triple,
+            BondKind::Quadruple => Symbol::Quadruple,
+            BondKind::Aromatic => Symbol::Aromatic,
+        }
+    }
+}
+
+/// Atoms and bonds as written, before perception.
+pub(crate) struct Written {
+    pub atoms: Vec<WrittenAtom>,
+    /// Byte spans of the atoms.
+    pub spans: Vec<Span>,
+    /// (first atom, second atom, symbol, span of the bond or ring-closure digit)
+    pub bonds: Vec<(usize, usize, Symbol, Span)>,
+}
+
+struct Open {
+    atom: usize,
+    symbol: Symbol,
+    join: usize,
+}
+
+/// The `purr` follower: records atoms and bonds; remembers the first meaning error (it
+/// cannot return one) to report after the reading.
+#[derive(Default)]
+struct Builder {
+    atoms: Vec<WrittenAtom>,
+    bonds: Vec<(usize, usize, Symbol, usize)>,
+    stack: Vec<usize>,
+    opens: HashMap<Rnum, Open>,
+    joins: usize,
+    // (kind, index of the join whose digit is at fault)
+    error: Option<(ErrorKind, usize)>,
+}
+
+impl Follower for Builder {
+    fn root(&mut self, root: AtomKind) {
+        self.stack.push(self.atoms.len());
+        self.atoms.push(convert(&root));
+    }
+
+    fn extend(&mut self, bond_kind: BondKind, atom_kind: AtomKind) {
+        let id = self.atoms.len();
+        if let Some(&head) = self.stack.last() {
+            self.bonds
+                .push((head, id, Symbol::of(&bond_kind), usize::MAX));
+        }
+        self.atoms.push(convert(&atom_kind));
+        self.stack.push(id);
+    }
+
+    fn join(&mut self, bond_kind: BondKind, rnum: Rnum) {
+        let join = self.joins;
+        self.joins += 1;
+        let Some(&head) = self.stack.last() else {
+            return;
+        };
+        let symbol = Symbol::of(&bond_kind);
+        match self.opens.remove(&rnum) {
+            None => {
+                self.opens.insert(
+                    rnum,
+                    Open {
+                        atom: head,
+                        symbol,
+                        join,
+                    },
+                );
+            }
+            Some(open) => {
+                let merged = match (open.symbol, symbol) {
+                    (Symbol::Elided, s) | (s, Symbol::Elided) => Some(s),
+                    (a, b) if a == b => Some(a),
+                    _ => None,
+                };
+                if self.error.is_none() {
+                    if open.atom == head {
+                        self.error = Some((
+                            ErrorKind::Other(format!("ring bond '{rnum}' joins an atom to itself")),
+                            join,
+                        ));
+                    } else if merged.is_none() {
+                        self.error = Some((
+                            ErrorKind::Other(format!(
+                                "ring bond '{rnum}' is written with two different bond symbols"
+                            )),
+                            join,
+                        ));
+                    }
+                }
+                if let Some(s) = merged {
+                    if open.atom != head {
+                        self.bonds.push((open.atom, head, s, join));
+                    }
+                }
+            }
+        }
+    }
+
+    fn pop(&mut self, depth: usize) {
+        let keep = self.stack.len().saturating_sub(depth);
+        self.stack.truncate(keep);
+    }
+}
+
+/// Byte offset of each character, plus the length at the end.
+fn byte_offsets(smiles: &str) -> Vec<usize> {
+    let mut v: Vec<usize> = smiles.char_indices().map(|(i, _)| i).collect();
+    v.push(smiles.len());
+    v
+}
+
+/// Reads SMILES text into atoms and bonds as written.
+pub(crate) fn read(smiles: &str) -> Result<Written, Error> {
+    let info = scan(smiles)?;
+    let (builder, trace, result) = if info.chars <= MAX_INLINE_LENGTH {
+        run_purr(smiles)
+    } else {
+        // Deep recursion: a helper thread with a stack sized for it. purr uses a few
+        // hundred bytes per character in release builds and about 1 KiB in debug builds
+        // (measured: a 2,000-atom chain fits 2 MiB in debug); twice that, plus 1 MiB.
+        let stack = 2 * 1024 * info.chars + (1 << 20);
+        let handle = std::thread::Builder::new()
+            .name("mol-read".to_string())
+            .stack_size(stack)
+            .spawn({
+                let text = smiles.to_string();
+                move || run_purr(&text)
+            });
+        match handle.map(|h| h.join()) {
+            Ok(Ok(r)) => r,
+            _ => {
+                return Err(Error::new(
+                    ErrorKind::TooLarge(format!(
+                        "could not start a reader for an input of {} characters",
+                        info.chars
+                    )),
+                    smiles,
+                    Span::new(0, smiles.len()),
+                ))
+            }
+        }
+    };
+    let offsets = byte_offsets(smiles);
+    let at = |c: usize| offsets.get(c).copied().unwrap_or(smiles.len());
+    if let Err(e) = result {
+        return Err(reader_error(smiles, &info, e, &offsets));
+    }
+    let rnum_span = |join: usize| {
+        trace
+            .rnum(join)
+            .map_or(Span::new(smiles.len(), smiles.len()), |r| {
+                Span::new(at(r.start), at(r.end))
+            })
+    };
+    if let Some((kind, join)) = builder.error {
+        return Err(Error::new(kind, smiles, rnum_span(join)));
+    }
+    if let Some(open) = builder.opens.values().min_by_key(|o| o.join) {
+        return Err(Error::new(
+            ErrorKind::UnclosedRing,
+            smiles,
+            rnum_span(open.join),
+        ));
+    }
+    let spans: Vec<Span> = (0..builder.atoms.len())
+        .map(|i| {
+            trace
+                .atom(i)
+                .map_or(Span::default(), |r| Span::new(at(r.start), at(r.end)))
+        })
+        .collect();
+    let mut seen = std::collections::HashSet::new();
+    let mut bonds = Vec::with_capacity(builder.bonds.len());
+    for (a, b, symbol, join) in builder.bonds {
+        let span = if join == usize::MAX {
+            // A chain bond's symbol sits just before its second atom.
+            match trace.bond(a, b) {
+                Some(c) if symbol != Symbol::Elided => Span::new(at(c), at(c + 1)),
+                _ => spans[b],
+            }
+        } else {
+            rnum_span(join)
+        };
+        if !seen.insert((a.min(b), a.max(b))) {
+            return Err(Error::new(
+                ErrorKind::Other("two bonds between the same pair of atoms".to_string()),
+                smiles,
+                span,
+            ));
+        }
+        if symbol == Symbol::Quadruple {
+            return Err(Error::new(
+                ErrorKind::Other("quadruple bonds are not supported".to_string()),
+                smiles,
+                span,
+            ));
+        }
+        bonds.push((a.min(b), a.max(b), symbol, span));
+    }
+    Ok(Written {
+        atoms: builder.atoms,
+        spans,
+        bonds,
+    })
+}
+
+fn run_purr(smiles: &str) -> (Builder, Trace, Result<(), purr::read::Error>) {
+    let mut builder = Builder::default();
+    let mut trace = Trace::new();
+    let result = purr::read::read(smiles, &mut builder, Some(&mut trace));
+    (builder, trace, result)
+}
+
+/// purr reports a character index, or the end of the line; name the problem and its place.
+fn reader_error(smiles: &str, info: &Scan, e: purr::read::Error, offsets: &[usize]) -> Error {
+    let end = smiles.len();
+    match e {
+        purr::read::Error::EndOfLine => {
+            if let Some(i) = info.unclosed_bracket {
+                Error::new(
+                    ErrorKind::Other("unclosed '[': bracket atom never closed".to_string()),
+                    smiles,
+                    Span::new(i, i + 1),
+                )
+            } else if let Some(i) = info.unclosed_branch {
+                Error::new(ErrorKind::UnmatchedParenthesis, smiles, Span::new(i, i + 1))
+            } else {
+                Error::new(ErrorKind::UnexpectedEnd, smiles, Span::new(end, end))
+            }
+        }
+        purr::read::Error::Character(c) => {
+            let start = offsets.get(c).copied().unwrap_or(end);
+            let rest = &smiles[start..];
+            let mut chars = rest.chars();
+            let Some(first) = chars.next() else {
+                return Error::new(ErrorKind::UnexpectedEnd, smiles, Span::new(end, end));
+            };
+            let one = Span::new(start, start + first.len_utf8());
+            if first == ')' && info.unmatched_close == Some(start) {
+                return Error::new(ErrorKind::UnmatchedParenthesis, smiles, one);
+            }
+            let open = smiles[..start].rfind('[');
+            let in_bracket = open.is_some() && open > smiles[..start].rfind(']');
+            if let (true, Some(open)) = (in_bracket, open) {
+                // The symbol follows the bracket and its isotope digits; name all of it.
+                let body = &smiles[open + 1..];
+                let digits = body.chars().take_while(|c| c.is_ascii_digit()).count();
+                let sym_start = open + 1 + digits;
+                let letters = smiles[sym_start..]
+                    .chars()
+                    .take_while(|c| c.is_ascii_alphabetic())
+                    .count()
+                    .min(3);
+                if letters > 0 && start < sym_start + letters + 1 && start >= sym_start {
+                    // Upper case, then lower case letters only, make one symbol.
+                    let sym = &smiles[sym_start..sym_start + letters];
+                    let len = 1 + sym[1..]
+                        .chars()
+                        .take_while(|c| c.is_ascii_lowercase())
+                        .count();
+                    return Error::new(
+                        ErrorKind::UnknownElement,
+                        smiles,
+                        Span::new(sym_start, sym_start + len),
+                    );
+                }
+            }
+            if first.is_ascii_alphabetic() {
+                let mut len = 1;
+                if first.is_ascii_uppercase() || in_bracket {
+                    len += rest[1..]
+                        .chars()
+                        .take_while(|c| c.is_ascii_lowercase())
+                        .count()
+                        .min(2);
+                }
+                return Error::new(
+                    ErrorKind::UnknownElement,
+                    smiles,
+                    Span::new(start, start + len),
+                );
+            }
+            Error::new(ErrorKind::UnexpectedCharacter, smiles, one)
+        }
+    }
+}
