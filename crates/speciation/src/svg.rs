@@ -40,6 +40,9 @@ const PALETTE: [&str; 10] = [
     "#ff9da7", "#5f6b6d",
 ];
 const FONT: &str = "font-family=\"Helvetica, Arial, sans-serif\"";
+// A white outline under labels that sit on the lines, so they stay legible.
+const HALO: &str =
+    "paint-order=\"stroke\" stroke=\"#ffffff\" stroke-width=\"3\" stroke-linejoin=\"round\"";
 const LEGEND_WIDTH: f64 = 300.0;
 const LABEL_CHARS: usize = 34;
 
@@ -308,7 +311,7 @@ pub fn svg_plot(curve: &Curve, labels: &[String], options: &PlotOptions) -> Stri
         let _ = writeln!(
             s,
             "<circle cx=\"{x:.1}\" cy=\"{zero:.1}\" r=\"4\" fill=\"#ffffff\" stroke=\"#222\" stroke-width=\"1.5\"/>\
-             <text x=\"{:.1}\" y=\"{:.1}\" {FONT} font-size=\"12\" fill=\"#222\">pI {pi:.2}</text>",
+             <text x=\"{:.1}\" y=\"{:.1}\" {FONT} font-size=\"12\" fill=\"#222\" {HALO}>pI {pi:.2}</text>",
             x + 7.0,
             zero - 7.0
         );
@@ -327,7 +330,7 @@ pub fn svg_plot(curve: &Curve, labels: &[String], options: &PlotOptions) -> Stri
         let dx = if anchor == "end" { -5.0 } else { 5.0 };
         let _ = writeln!(
             s,
-            "<text x=\"{:.1}\" y=\"{:.1}\" text-anchor=\"{anchor}\" {FONT} font-size=\"12\" font-weight=\"bold\" fill=\"#c0392b\">pH {ph:.2}</text>",
+            "<text x=\"{:.1}\" y=\"{:.1}\" text-anchor=\"{anchor}\" {FONT} font-size=\"12\" font-weight=\"bold\" fill=\"#c0392b\" {HALO}>pH {ph:.2}</text>",
             x + dx,
             frac_top + 15.0
         );
@@ -335,7 +338,7 @@ pub fn svg_plot(curve: &Curve, labels: &[String], options: &PlotOptions) -> Stri
             let c = curve.points[i].charge;
             let _ = writeln!(
                 s,
-                "<text x=\"{:.1}\" y=\"{:.1}\" text-anchor=\"{anchor}\" {FONT} font-size=\"12\" fill=\"#c0392b\">charge {}</text>",
+                "<text x=\"{:.1}\" y=\"{:.1}\" text-anchor=\"{anchor}\" {FONT} font-size=\"12\" fill=\"#c0392b\" {HALO}>charge {}</text>",
                 x + dx,
                 charge_top + 15.0,
                 signed_frac(c)
