@@ -16,10 +16,14 @@ mod error;
 mod molecule;
 mod perceive;
 mod read;
+mod standardize;
+mod symmetry;
+mod write;
 
 pub use error::{Error, ErrorKind, Span};
 pub use molecule::{Atom, Bond, Hybridization, Molecule, Neighbor};
 pub use read::{MAX_INLINE_LENGTH, MAX_LENGTH};
+pub use write::write_smiles_ordered;
 
 /// Reads SMILES text and perceives it (hydrogens, rings, aromaticity, Kekulé form,
 /// hybridization). All components are kept, in input order.
@@ -44,22 +48,19 @@ pub struct Standardized {
 /// Picks the parent component (largest organic one) and neutralizes charges that have a
 /// neutral form, keeping permanent ones (quaternary N, nitro, N-oxide, sulfonium).
 pub fn standardize(molecule: &Molecule) -> Result<Standardized, Error> {
-    let _ = molecule;
-    todo!("mol helper")
+    standardize::standardize(molecule)
 }
 
 /// Writes a molecule as SMILES (aromatic atoms lower case, charges and hydrogens in brackets
 /// where needed). Reading the output back gives the same molecule.
 pub fn write_smiles(molecule: &Molecule) -> String {
-    let _ = molecule;
-    todo!("mol helper")
+    write::write_smiles_ordered(molecule).0
 }
 
 /// Symmetry classes: atoms with the same number are topologically equivalent (iterated
 /// graph invariants, refined until stable). Used to group equivalent sites.
 pub fn symmetry_classes(molecule: &Molecule) -> Vec<u32> {
-    let _ = molecule;
-    todo!("mol helper")
+    symmetry::symmetry_classes(molecule)
 }
 
 /// The element symbol for an atomic number (`*` for 0), e.g. `Cl` for 17.

@@ -141,4 +141,39 @@ impl Molecule {
         }
         m
     }
+
+    /// Rebuilds neighbour lists and components from the bonds.
+    pub(crate) fn rebuild_graph(&mut self) {
+        self.neighbors = vec![Vec::new(); self.atoms.len()];
+        for (i, b) in self.bonds.iter().enumerate() {
+            self.neighbors[b.a].push(Neighbor { atom: b.b, bond: i });
+            self.neighbors[b.b].push(Neighbor { atom: b.a, bond: i });
+        }
+        let n = self.atoms.len();
+        let mut seen = vec![false; n];
+        let mut out = Vec::new();
+        for start in 0..n {
+            if seen[start] {
+                continue;
+            }
+            seen[start] = true;
+            let mut list = vec![start];
+            let mut stack = vec![start];
+            while let Some(a) = stack.pop() {
+                for nb in &self.neighbors[a] {
+                    if !seen[nb.atom] {
+                        seen[nb.atom] = true;
+                        list.push(nb.atom);
+                        stack.push(nb.atom);
+                    }
+                }
+            }
+            list.sort_unstable();
+            for &a in &list {
+                self.atoms[a].component = out.len();
+            }
+            out.push(list);
+        }
+        self.components = out;
+    }
 }

@@ -63,6 +63,14 @@ pub(crate) fn check_valences(m: &Molecule) -> Result<(), Error> {
             continue;
         };
         let Some(&max) = allowed.last() else { continue };
+        // Bonds to metals are often coordinative (ferrocene, Grignards); no octet count
+        // covers them, so such atoms are not checked.
+        if m.neighbors[i].iter().any(|n| {
+            let e = m.atoms[n.atom].element;
+            e != 0 && allowed_valences(e, 0).is_none()
+        }) {
+            continue;
+        }
         let valence = bond_sum(m, i) + a.hydrogens as u32;
         if valence > max as u32 {
             let what = match a.charge {

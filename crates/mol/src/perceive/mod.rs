@@ -13,7 +13,7 @@ pub(crate) use hydrogens::{check_valences, implicit_hydrogens};
 pub(crate) use kekulize::kekulize;
 pub(crate) use rings::perceive_rings;
 
-use crate::molecule::{Atom, Bond, Hybridization, Molecule, Neighbor};
+use crate::molecule::{Atom, Bond, Hybridization, Molecule};
 use crate::read::{Symbol, Written};
 use crate::{Error, ErrorKind};
 
@@ -58,25 +58,15 @@ pub(crate) fn perceive(input: &str, written: Written) -> Result<Molecule, Error>
             }
         })
         .collect();
-    let mut neighbors = vec![Vec::new(); atoms.len()];
-    for (i, b) in bonds.iter().enumerate() {
-        neighbors[b.a].push(Neighbor { atom: b.b, bond: i });
-        neighbors[b.b].push(Neighbor { atom: b.a, bond: i });
-    }
     let mut m = Molecule {
         input: input.to_string(),
         atoms,
         bonds,
-        neighbors,
+        neighbors: Vec::new(),
         rings: Vec::new(),
         components: Vec::new(),
     };
-    m.components = components(&m);
-    for (c, list) in m.components.clone().iter().enumerate() {
-        for &a in list {
-            m.atoms[a].component = c;
-        }
-    }
+    m.rebuild_graph();
     perceive_rings(&mut m);
     for (i, a) in m.atoms.iter().enumerate() {
         if a.written_aromatic && a.ring_count == 0 {
@@ -98,17 +88,7 @@ pub(crate) fn perceive(input: &str, written: Written) -> Result<Molecule, Error>
 /// Re-perceives a molecule whose atoms and bond orders were edited (hydrogens given, bonds
 /// in Kekulé form): rings, aromaticity, hybridization.
 pub(crate) fn reperceive(m: &mut Molecule) {
-    m.neighbors = vec![Vec::new(); m.atoms.len()];
-    for (i, b) in m.bonds.iter().enumerate() {
-        m.neighbors[b.a].push(Neighbor { atom: b.b, bond: i });
-        m.neighbors[b.b].push(Neighbor { atom: b.a, bond: i });
-    }
-    m.components = components(m);
-    for (c, list) in m.components.clone().iter().enumerate() {
-        for &a in list {
-            m.atoms[a].component = c;
-        }
-    }
+    m.rebuild_graph();
     perceive_rings(m);
     for a in &mut m.atoms {
         a.aromatic = false;
@@ -118,31 +98,4 @@ pub(crate) fn reperceive(m: &mut Molecule) {
     }
     perceive_aromaticity(m);
     perceive_hybridization(m);
-}
-
-/// Connected components, each sorted, ordered by their first atom.
-fn components(m: &Molecule) -> Vec<Vec<usize>> {
-    let n = m.atoms.len();
-    let mut seen = vec![false; n];
-    let mut out = Vec::new();
-    for start in 0..n {
-        if seen[start] {
-            continue;
-        }
-        seen[start] = true;
-        let mut list = vec![start];
-        let mut stack = vec![start];
-        while let Some(a) = stack.pop() {
-            for nb in &m.neighbors[a] {
-                if !seen[nb.atom] {
-                    seen[nb.atom] = true;
-                    list.push(nb.atom);
-                    stack.push(nb.atom);
-                }
-            }
-        }
-        list.sort_unstable();
-        out.push(list);
-    }
-    out
 }
