@@ -1,5 +1,14 @@
 //! Recognizing substituents by pattern (substituents helper).
-use mol::Molecule;
+//!
+//! The table (`fragments/substituents/groups.toml`) gives each group a pattern whose atom
+//! mapped `:1` is the atom bonded to the ring or chain. [`recognize`] tries every entry
+//! anchored on that atom, keeps out of the ring or chain, and picks the best match; when
+//! nothing matches it falls back to the nearest type by the first atom alone and says so.
+use std::cell::RefCell;
+use std::rc::Rc;
+
+use mol::{Hybridization, Molecule};
+use pattern::Pattern;
 
 use crate::{Library, SubstituentEntry};
 
@@ -14,8 +23,27 @@ pub struct Recognized<'a> {
     pub approximate: bool,
 }
 
+/// Whether an entry stands for a member of the site's own ring (aza, azonia, ring O/S/NH,
+/// fused ring). Those are looked up by id by the aromatic scorer; they are not groups
+/// hanging off an atom, so [`recognize`] never returns them.
+pub fn is_ring_member(entry: &SubstituentEntry) -> bool {
+    entry.id.starts_with("ring-") || entry.id.starts_with("fused-")
+}
+
+/// The entry with the given id, if the library has one.
+pub fn entry_by_id<'a>(library: &'a Library, id: &str) -> Option<&'a SubstituentEntry> {
+    library.substituents.iter().find(|e| e.id == id)
+}
+
 /// Recognizes the substituent whose first atom is `atom`, bonded to `from` (the ring or
 /// chain atom), never entering `avoid`.
+///
+/// The highest-priority entry whose pattern matches with its `:1` atom on `atom` wins; at
+/// equal priority the match covering more atoms (the more specific group) wins, then the
+/// entry written first. With no match, the nearest type by the first atom's element,
+/// charge, hybridization and neighbours is returned with `approximate = true`; `None` when
+/// there is no sensible nearest type (an unusual element, an anionic nitrogen or sulfur) or
+/// the indices are out of range.
 pub fn recognize<'a>(
     library: &'a Library,
     molecule: &Molecule,
@@ -23,6 +51,239 @@ pub fn recognize<'a>(
     from: usize,
     avoid: &[usize],
 ) -> Option<Recognized<'a>> {
-    let _ = (library, molecule, atom, from, avoid);
-    todo!("substituents helper")
+    let n = molecule.atoms().len();
+    if atom >= n {
+        return None;
+    }
+    let mut fence: Vec<usize> = Vec::with_capacity(avoid.len() + 1);
+    fence.extend_from_slice(avoid);
+    if from < n {
+        fence.push(from);
+    }
+    if fence.contains(&atom) {
+        return None;
+    }
+
+    let compiled = compiled_patterns(library);
+    // (priority, atoms covered, entry index, matched atoms)
+    let mut best: Option<(i32, usize, usize, Vec<usize>)> = None;
+    for (i, entry) in library.substituents.iter().enumerate() {
+        if is_ring_member(entry) {
+            continue;
+        }
+        let Some(Some(p)) = compiled.get(i) else {
+            continue;
+        };
+        if let Some((prio, size, _, _)) = &best {
+            // A pattern cannot cover more atoms than it has, so entries that cannot beat the
+            // current best are skipped before the search.
+            if entry.priority < *prio || (entry.priority == *prio && p.len() <= *size) {
+                continue;
+            }
+        }
+        if !p.could_anchor(molecule, atom) {
+            continue;
+        }
+        let matches = p.matches_at(molecule, atom, &fence);
+        let Some(m) = matches.into_iter().next() else {
+            continue;
+        };
+        let size = m.atoms.len();
+        let better = match &best {
+            None => true,
+            Some((prio, bsize, _, _)) => {
+                entry.priority > *prio || (entry.priority == *prio && size > *bsize)
+            }
+        };
+        if better {
+            best = Some((entry.priority, size, i, m.atoms));
+        }
+    }
+    if let Some((_, _, i, atoms)) = best {
+        return Some(Recognized {
+            entry: &library.substituents[i],
+            atoms,
+            approximate: false,
+        });
+    }
+    let id = nearest_type(molecule, atom, &fence)?;
+    let entry = entry_by_id(library, id)?;
+    Some(Recognized {
+        entry,
+        atoms: vec![atom],
+        approximate: true,
+    })
+}
+
+/// The id of the nearest tabulated type for a first atom no pattern matched.
+///
+/// Common practice in fragment schemes: an unknown group is scored as the commonest group
+/// with the same first atom in the same bonding state, and the estimate is widened.
+fn nearest_type(molecule: &Molecule, atom: usize, fence: &[usize]) -> Option<&'static str> {
+    let a = &molecule.atoms()[atom];
+    // Neighbours beyond the attachment: (element, bond order, neighbour charge).
+    let beyond: Vec<(u8, u8, i8, usize)> = molecule
+        .neighbors(atom)
+        .iter()
+        .filter(|nb| !fence.contains(&nb.atom))
+        .map(|nb| {
+            let b = &molecule.bonds()[nb.bond];
+            let order = if b.aromatic { 4 } else { b.order };
+            let t = &molecule.atoms()[nb.atom];
+            (t.element, order, t.charge, nb.atom)
+        })
+        .collect();
+    let double_to = |el: u8| beyond.iter().any(|&(e, o, _, _)| e == el && o == 2);
+    let has = |el: u8| beyond.iter().any(|&(e, _, _, _)| e == el);
+    // Oxygens that are terminal (=O or -O-) count as the "oxo" of an oxoacid group.
+    let terminal_o = beyond
+        .iter()
+        .filter(|&&(e, _, _, t)| e == 8 && molecule.total_degree(t) == 1)
+        .count();
+    match a.element {
+        6 => {
+            if a.aromatic {
+                Some("phenyl")
+            } else if a.hybridization == Hybridization::Sp3 || molecule.total_degree(atom) == 4 {
+                Some("alkyl")
+            } else if double_to(8) || double_to(16) {
+                if has(7) {
+                    Some("alkylcarbamoyl")
+                } else if beyond.iter().any(|&(e, o, _, _)| e == 8 && o == 1) {
+                    Some("ester")
+                } else {
+                    Some("acyl")
+                }
+            } else if a.hybridization == Hybridization::Sp {
+                Some("ethynyl")
+            } else {
+                Some("alkenyl")
+            }
+        }
+        7 => {
+            if a.charge > 0 {
+                if a.aromatic {
+                    None
+                } else if molecule.total_hydrogens(atom) > 0 {
+                    Some("ammonio")
+                } else {
+                    Some("trimethylammonio")
+                }
+            } else if a.charge < 0 {
+                None
+            } else if a.aromatic {
+                Some("pyrrol-1-yl")
+            } else if beyond.iter().any(|&(e, o, _, t)| {
+                (e == 6 || e == 16) && o == 1 && carries_oxo(molecule, t, atom)
+            }) {
+                Some("acylamino")
+            } else {
+                match molecule.total_hydrogens(atom) {
+                    0 => Some("dialkylamino"),
+                    1 => Some("alkylamino"),
+                    _ => Some("amino"),
+                }
+            }
+        }
+        8 => {
+            if a.charge < 0 {
+                Some("oxido")
+            } else if a.charge > 0 {
+                None
+            } else if beyond
+                .iter()
+                .any(|&(e, _, _, t)| e == 6 && molecule.atoms()[t].aromatic)
+            {
+                Some("phenoxy")
+            } else if beyond.iter().any(|&(e, o, _, t)| {
+                (e == 6 || e == 16) && o == 1 && carries_oxo(molecule, t, atom)
+            }) {
+                Some("acyloxy")
+            } else {
+                Some("alkoxy")
+            }
+        }
+        16 => {
+            let hydroxy_o = beyond
+                .iter()
+                .any(|&(e, _, _, t)| e == 8 && molecule.total_hydrogens(t) > 0);
+            match terminal_o {
+                0 if a.charge == 0 => Some("alkylthio"),
+                0 => None,
+                1 => Some("sulfinyl"),
+                // A free sulfonic acid is ionized at any aqueous pH: score it as sulfonate.
+                2 if hydroxy_o => Some("sulfonate"),
+                2 if has(7) => Some("sulfamoyl"),
+                2 => Some("sulfonyl"),
+                _ => Some("sulfonate"),
+            }
+        }
+        9 => Some("fluoro"),
+        17 => Some("chloro"),
+        35 => Some("bromo"),
+        53 => Some("iodo"),
+        _ => None,
+    }
+}
+
+/// Whether `atom` carries a terminal oxygen (C=O, S=O) other than through `except`.
+fn carries_oxo(molecule: &Molecule, atom: usize, except: usize) -> bool {
+    molecule.neighbors(atom).iter().any(|nb| {
+        nb.atom != except
+            && molecule.atoms()[nb.atom].element == 8
+            && molecule.total_degree(nb.atom) == 1
+    })
+}
+
+/// Compiled patterns of one library, in entry order (`None` where a pattern does not
+/// compile: the loader reports those; recognition skips them).
+type Compiled = Rc<Vec<Option<Pattern>>>;
+
+/// One cached compilation, keyed by the pattern texts themselves so that a library edited
+/// in place or rebuilt at the same address is never served stale patterns.
+struct Slot {
+    texts: Vec<String>,
+    compiled: Compiled,
+}
+
+/// Libraries kept compiled per thread. Per-thread, so that batch runs over rayon take no
+/// lock on every call; a handful of slots, since a process rarely holds more libraries.
+const SLOTS: usize = 4;
+
+thread_local! {
+    static CACHE: RefCell<Vec<Slot>> = const { RefCell::new(Vec::new()) };
+}
+
+/// The compiled patterns of `library`, compiling them on first use in this thread.
+fn compiled_patterns(library: &Library) -> Compiled {
+    let entries = &library.substituents;
+    CACHE.with(|cache| {
+        let mut cache = cache.borrow_mut();
+        let hit = cache.iter().position(|slot| {
+            slot.texts.len() == entries.len()
+                && slot.texts.iter().zip(entries).all(|(t, e)| *t == e.pattern)
+        });
+        if let Some(i) = hit {
+            // Most recently used first, so the usual single library is found at once.
+            let slot = cache.remove(i);
+            let compiled = Rc::clone(&slot.compiled);
+            cache.insert(0, slot);
+            return compiled;
+        }
+        let compiled: Compiled = Rc::new(
+            entries
+                .iter()
+                .map(|e| Pattern::parse(&e.pattern).ok())
+                .collect(),
+        );
+        cache.insert(
+            0,
+            Slot {
+                texts: entries.iter().map(|e| e.pattern.clone()).collect(),
+                compiled: Rc::clone(&compiled),
+            },
+        );
+        cache.truncate(SLOTS);
+        compiled
+    })
 }
