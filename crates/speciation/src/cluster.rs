@@ -61,9 +61,9 @@ pub(crate) fn partition(w: &[Vec<f64>], n: usize, cap: usize) -> Partition {
     let cap = cap.max(1);
     let mut edges: Vec<(f64, usize, usize)> = Vec::new();
     if !w.is_empty() {
-        for i in 0..n {
-            for j in (i + 1)..n {
-                let a = w[i][j].abs();
+        for (i, row) in w.iter().enumerate().take(n) {
+            for (j, v) in row.iter().enumerate().take(n).skip(i + 1) {
+                let a = v.abs();
                 if a > 0.0 {
                     edges.push((a, i, j));
                 }
@@ -106,15 +106,19 @@ mod tests {
     use super::*;
 
     fn chain(n: usize, near: f64) -> Vec<Vec<f64>> {
-        let mut w = vec![vec![0.0; n]; n];
-        for i in 0..n {
-            for j in 0..n {
-                if i != j {
-                    w[i][j] = near / ((i as f64 - j as f64).abs());
-                }
-            }
-        }
-        w
+        (0..n)
+            .map(|i| {
+                (0..n)
+                    .map(|j| {
+                        if i == j {
+                            0.0
+                        } else {
+                            near / (i as f64 - j as f64).abs()
+                        }
+                    })
+                    .collect()
+            })
+            .collect()
     }
 
     #[test]

@@ -96,8 +96,8 @@ impl Group {
 
     /// log10 weight at pH 0 of a microstate, up to a constant common to the group.
     ///
-    /// From the crate-level model, `log10 W(x, pH) = sum_i x_i h_i - sum_{i<j} w_ij x_i x_j
-    /// + pH * (charged acids - charged bases)` with `h = -pKa` (acid), `+pKa` (base). The pH
+    /// From the crate-level model, `log10 W(x, pH) = sum_i x_i h_i - sum_{i<j} w_ij x_i x_j +
+    /// pH * (charged acids - charged bases)` with `h = -pKa` (acid), `+pKa` (base). The pH
     /// term equals `pH * (lost - bases)`; dropping the constant `-pH * bases` leaves
     /// `weight + lost * pH` with `weight` returned here, shifted by `-sum pKa(bases)` so
     /// that the fully protonated state sits at 0 (keeps magnitudes small).

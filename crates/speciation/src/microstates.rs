@@ -1,7 +1,7 @@
 //! A system prepared for evaluation at any pH.
 
 use crate::cluster::partition;
-use crate::enumerate::{Candidate, Group, Table};
+use crate::enumerate::{Group, Table};
 use crate::logsum::{self, exp10};
 use crate::{
     Kind, Microspecies, Speciation, SpeciationError, System, MAX_CLUSTER_SITES, MAX_MAGNITUDE,
@@ -196,33 +196,60 @@ impl Microstates {
             .collect()
     }
 
-    /// The `keep` most abundant microstates at `ph`, as (log10 fraction, mask per group).
-    fn top_states(&self, ph: f64, keep: usize) -> Vec<(f64, Vec<u32>)> {
+    /// The `keep` most abundant microstates at `ph` with log10 fraction at least `cut`
+    /// (always at least the most abundant one), as (log10 fraction, mask per group).
+    fn top_states(&self, ph: f64, keep: usize, cut: f64) -> Vec<(f64, Vec<u32>)> {
         let log_z = self.group_log_z(ph);
-        let mut combined: Vec<(f64, Vec<u32>)> = vec![(0.0, Vec::with_capacity(self.groups.len()))];
+        // Partial states over the groups seen so far, stored as back-pointers (index of the
+        // partial one level up, mask of this group) so that extending one costs O(1).
+        let mut levels: Vec<Vec<(usize, u32)>> = Vec::with_capacity(self.groups.len());
+        let mut current: Vec<(f64, usize)> = vec![(0.0, 0)];
         for (t, &lz) in self.tables.iter().zip(&log_z) {
-            let mut own: Vec<(f64, &Candidate)> = t
+            let mut own: Vec<(f64, u32)> = t
                 .candidates
                 .iter()
-                .map(|c| (c.log_w + c.lost as f64 * ph - lz, c))
+                .map(|c| (c.log_w + c.lost as f64 * ph - lz, c.mask))
                 .collect();
-            own.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.mask.cmp(&b.1.mask)));
+            own.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)));
             own.truncate(keep);
-            let mut next = Vec::with_capacity(combined.len() * own.len());
-            for (f, masks) in &combined {
-                for (g, c) in &own {
-                    let mut m = masks.clone();
-                    m.push(c.mask);
-                    next.push((f + g, m));
+            let mut next: Vec<(f64, usize, u32)> = Vec::with_capacity(current.len() * own.len());
+            for &(f, idx) in &current {
+                for &(g, mask) in &own {
+                    next.push((f + g, idx, mask));
                 }
             }
             // Any of the `keep` best full states restricts to one of the `keep` best over
-            // the groups seen so far, so pruning here loses none of them.
-            next.sort_by(|a, b| b.0.total_cmp(&a.0).then_with(|| a.1.cmp(&b.1)));
-            next.truncate(keep);
-            combined = next;
+            // the groups seen so far, and a fraction only shrinks as groups are multiplied
+            // in, so pruning on rank and on `cut` here loses none of the states returned.
+            next.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)).then(a.2.cmp(&b.2)));
+            let mut kept = 0;
+            while kept < next.len() && kept < keep && (kept == 0 || next[kept].0 >= cut) {
+                kept += 1;
+            }
+            next.truncate(kept);
+            current = next
+                .iter()
+                .enumerate()
+                .map(|(i, &(f, _, _))| (f, i))
+                .collect();
+            levels.push(
+                next.into_iter()
+                    .map(|(_, parent, mask)| (parent, mask))
+                    .collect(),
+            );
         }
-        combined
+        current
+            .into_iter()
+            .map(|(f, mut idx)| {
+                let mut masks = vec![0u32; levels.len()];
+                for (g, level) in levels.iter().enumerate().rev() {
+                    let (parent, mask) = level[idx];
+                    masks[g] = mask;
+                    idx = parent;
+                }
+                (f, masks)
+            })
+            .collect()
     }
 
     fn species_from_masks(&self, masks: &[u32], log_fraction: f64) -> Microspecies {
@@ -243,15 +270,11 @@ impl Microstates {
 
     /// Microspecies at `ph` as listed in [`Speciation::species`].
     pub fn species(&self, ph: f64) -> Vec<Microspecies> {
-        let top = self.top_states(ph, MAX_SPECIES);
-        let cut = MIN_FRACTION.log10();
-        let mut out: Vec<Microspecies> = Vec::with_capacity(top.len());
-        for (i, (f, masks)) in top.iter().enumerate() {
-            if i > 0 && *f < cut {
-                break;
-            }
-            out.push(self.species_from_masks(masks, *f));
-        }
+        let top = self.top_states(ph, MAX_SPECIES, MIN_FRACTION.log10());
+        let mut out: Vec<Microspecies> = top
+            .iter()
+            .map(|(f, masks)| self.species_from_masks(masks, *f))
+            .collect();
         // Equal fractions (symmetry-equivalent microstates) list in site order.
         out.sort_by(|a, b| {
             b.fraction
@@ -335,20 +358,19 @@ fn validate(system: &System) -> Result<(), SpeciationError> {
             });
         }
     }
-    for i in 0..n {
-        for j in 0..n {
-            let value = w[i][j];
+    for (i, row) in w.iter().enumerate() {
+        for (j, &value) in row.iter().enumerate() {
             if !(value.is_finite() && value.abs() <= MAX_MAGNITUDE) {
                 return Err(SpeciationError::BadInteraction { i, j, value });
             }
         }
     }
-    for i in 0..n {
-        if w[i][i] != 0.0 {
-            return Err(SpeciationError::Diagonal { i, value: w[i][i] });
+    for (i, row) in w.iter().enumerate() {
+        if row[i] != 0.0 {
+            return Err(SpeciationError::Diagonal { i, value: row[i] });
         }
-        for j in (i + 1)..n {
-            let (a, b) = (w[i][j], w[j][i]);
+        for (j, &a) in row.iter().enumerate().skip(i + 1) {
+            let b = w[j][i];
             if (a - b).abs() > 1e-9 * a.abs().max(b.abs()).max(1.0) {
                 return Err(SpeciationError::Asymmetric {
                     i,
@@ -443,7 +465,7 @@ mod tests {
             assert!((x.fraction - m.fraction(&x.charged, 5.0)).abs() < 1e-12);
         }
         // All 16 microstates listed at most: they add up to the whole.
-        let all = m.top_states(5.0, 16);
+        let all = m.top_states(5.0, 16, f64::NEG_INFINITY);
         let total: f64 = all.iter().map(|(f, _)| exp10(*f)).sum();
         assert!((total - 1.0).abs() < 1e-12);
     }

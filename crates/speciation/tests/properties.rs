@@ -64,8 +64,8 @@ fn direct_log_weight(s: &System, x: &[bool], ph: f64) -> f64 {
                 Kind::Acid => ph - site.pka,
                 Kind::Base => site.pka - ph,
             };
-            for j in (i + 1)..s.sites.len() {
-                if x[j] {
+            for (j, &xj) in x.iter().enumerate().skip(i + 1) {
+                if xj {
                     lw -= s.interaction[i][j];
                 }
             }
@@ -326,4 +326,21 @@ fn forty_and_two_hundred_sites_finish() {
         assert!(!r.species.is_empty());
         assert_eq!(r.species[0].charged.len(), n);
     }
+}
+
+#[test]
+fn largest_accepted_system_finishes_and_one_more_is_refused() {
+    let site = SiteInput { kind: Kind::Acid, pka: 7.0 };
+    let s = System { sites: vec![site; speciation::MAX_SITES], interaction: vec![], base_charge: 0 };
+    let r = speciation::try_speciate(&s, 7.0).unwrap();
+    // Uncoupled sites are independent groups: still exact.
+    assert_eq!(r.method, "exact");
+    assert!((r.charge_at_ph + speciation::MAX_SITES as f64 / 2.0).abs() < 1e-6);
+    // Every microstate has fraction 2^-1024 here: only the single most abundant is listed.
+    assert_eq!(r.species.len(), 1);
+    let s = System { sites: vec![site; speciation::MAX_SITES + 1], interaction: vec![], base_charge: 0 };
+    assert_eq!(
+        speciation::try_speciate(&s, 7.0).unwrap_err().to_string(),
+        "1025 sites given; at most 1024 are accepted"
+    );
 }
