@@ -27,11 +27,23 @@ pub(crate) fn kekulize(m: &mut Molecule, needs_pi: &[bool]) -> Result<(), Error>
     }
     let mate = maximum_matching(&adj);
     if let Some(k) = mate.iter().position(Option::is_none) {
-        return Err(Error::new(
-            ErrorKind::Kekulize,
-            &m.input,
-            m.atoms[needy[k]].span,
-        ));
+        // No single atom is to blame: the carets cover the aromatic system it sits in.
+        let mut seen = vec![false; needy.len()];
+        let mut stack = vec![k];
+        seen[k] = true;
+        let mut span = m.atoms[needy[k]].span;
+        while let Some(v) = stack.pop() {
+            let s = m.atoms[needy[v]].span;
+            span.start = span.start.min(s.start);
+            span.end = span.end.max(s.end);
+            for &w in &adj[v] {
+                if !seen[w] {
+                    seen[w] = true;
+                    stack.push(w);
+                }
+            }
+        }
+        return Err(Error::new(ErrorKind::Kekulize, &m.input, span));
     }
     for b in &mut m.bonds {
         if b.written_aromatic && needs_pi[b.a] && needs_pi[b.b] {
