@@ -509,16 +509,39 @@ mod tests {
     fn plot_has_axes_legend_and_marker() {
         use crate::{Kind, Microstates, SiteInput, System};
         let system = System {
-            sites: vec![SiteInput { kind: Kind::Acid, pka: 2.3 }, SiteInput { kind: Kind::Base, pka: 9.6 }],
+            sites: vec![
+                SiteInput {
+                    kind: Kind::Acid,
+                    pka: 2.3,
+                },
+                SiteInput {
+                    kind: Kind::Base,
+                    pka: 9.6,
+                },
+            ],
             interaction: vec![],
             base_charge: 0,
         };
         let m = Microstates::new(&system).unwrap();
         let curve = m.curve(0.0, 14.0, 0.1).unwrap();
-        let labels: Vec<String> = (0..curve.species.len()).map(|i| format!("label<{i}>")).collect();
-        let options = PlotOptions { ph: Some(7.4), isoelectric_point: m.isoelectric_point(), ..PlotOptions::default() };
+        let labels: Vec<String> = (0..curve.species.len())
+            .map(|i| format!("label<{i}>"))
+            .collect();
+        let options = PlotOptions {
+            ph: Some(7.4),
+            isoelectric_point: m.isoelectric_point(),
+            ..PlotOptions::default()
+        };
         let svg = svg_plot(&curve, &labels, &options);
-        for needle in [">pH</text>", ">fraction</text>", ">net charge</text>", ">pH 7.40</text>", "stroke-dasharray=\"6 4\"", "label&lt;0&gt;", ">pI 5.95</text>"] {
+        for needle in [
+            ">pH</text>",
+            ">fraction</text>",
+            ">net charge</text>",
+            ">pH 7.40</text>",
+            "stroke-dasharray=\"6 4\"",
+            "label&lt;0&gt;",
+            ">pI 5.95</text>",
+        ] {
             assert!(svg.contains(needle), "missing {needle}");
         }
         assert_eq!(svg.matches("<polyline").count(), curve.species.len() + 1);

@@ -330,15 +330,26 @@ fn forty_and_two_hundred_sites_finish() {
 
 #[test]
 fn largest_accepted_system_finishes_and_one_more_is_refused() {
-    let site = SiteInput { kind: Kind::Acid, pka: 7.0 };
-    let s = System { sites: vec![site; speciation::MAX_SITES], interaction: vec![], base_charge: 0 };
+    let site = SiteInput {
+        kind: Kind::Acid,
+        pka: 7.0,
+    };
+    let s = System {
+        sites: vec![site; speciation::MAX_SITES],
+        interaction: vec![],
+        base_charge: 0,
+    };
     let r = speciation::try_speciate(&s, 7.0).unwrap();
     // Uncoupled sites are independent groups: still exact.
     assert_eq!(r.method, "exact");
     assert!((r.charge_at_ph + speciation::MAX_SITES as f64 / 2.0).abs() < 1e-6);
     // Every microstate has fraction 2^-1024 here: only the single most abundant is listed.
     assert_eq!(r.species.len(), 1);
-    let s = System { sites: vec![site; speciation::MAX_SITES + 1], interaction: vec![], base_charge: 0 };
+    let s = System {
+        sites: vec![site; speciation::MAX_SITES + 1],
+        interaction: vec![],
+        base_charge: 0,
+    };
     assert_eq!(
         speciation::try_speciate(&s, 7.0).unwrap_err().to_string(),
         "1025 sites given; at most 1024 are accepted"
