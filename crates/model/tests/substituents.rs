@@ -467,7 +467,7 @@ fn a_changed_library_is_not_served_stale_patterns() {
     nitro.pattern = "[NX3:1](~[OX1])~[SX1]".into();
     let r = recognize(&lib, &m, 6, 5, &[]);
     assert!(
-        r.map_or(true, |r| r.entry.id != "nitro" || r.approximate),
+        r.is_none_or(|r| r.entry.id != "nitro" || r.approximate),
         "stale pattern used"
     );
 }
