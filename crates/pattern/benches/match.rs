@@ -102,12 +102,22 @@ fn main() {
     let atoms: usize = prepared.iter().map(|(m, _)| m.atoms().len()).sum();
     let cands: usize = prepared.iter().map(|(_, c)| c.len()).sum();
     let hits: usize = prepared.iter().map(|(m, c)| sites(&patterns, m, c)).sum();
+    let passed: usize = prepared
+        .iter()
+        .map(|(m, c)| {
+            c.iter()
+                .map(|&a| patterns.iter().filter(|p| p.could_anchor(m, a)).count())
+                .sum::<usize>()
+        })
+        .sum();
     eprintln!(
-        "{} molecules, {:.1} heavy atoms and {:.1} candidate atoms each, {} patterns, {} matches",
+        "{} molecules, {:.1} heavy atoms and {:.1} candidate atoms each, {} patterns, \
+         {:.1} (pattern, atom) pairs per molecule pass could_anchor, {} matches",
         prepared.len(),
         atoms as f64 / prepared.len() as f64,
         cands as f64 / prepared.len() as f64,
         patterns.len(),
+        passed as f64 / prepared.len() as f64,
         hits
     );
 

@@ -23,7 +23,7 @@
 //!
 //! # Example
 //!
-//! ```no_run
+//! ```
 //! let acid = pattern::Pattern::parse("[CX3](=O)[OX2H1:1]")?;
 //! let molecule = mol::parse("CC(=O)O")?;
 //! let sites: Vec<usize> = (0..molecule.atoms().len())
@@ -165,5 +165,139 @@ impl Pattern {
     /// `false` is certain; `true` means a search is needed.
     pub fn could_anchor(&self, molecule: &Molecule, atom: usize) -> bool {
         atom < molecule.atoms().len() && self.main.filter.admits(molecule, atom)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn molecule(smiles: &str) -> Molecule {
+        mol::parse(smiles).unwrap_or_else(|e| panic!("{smiles}: {e}"))
+    }
+    fn pattern(text: &str) -> Pattern {
+        Pattern::parse(text).unwrap_or_else(|e| panic!("{e}"))
+    }
+
+    #[test]
+    fn match_atoms_are_in_pattern_order() {
+        let m = molecule("CC(=O)O");
+        let p = pattern("[CX3](=O)[OX2H1:1]");
+        assert_eq!(p.anchor(), 2);
+        assert_eq!(
+            p.matches_at(&m, 3, &[]),
+            vec![Match {
+                atoms: vec![1, 2, 3]
+            }]
+        );
+        assert!(p.matches_at(&m, 2, &[]).is_empty());
+    }
+
+    #[test]
+    fn avoided_atoms_are_never_matched() {
+        let m = molecule("CC(=O)O");
+        let p = pattern("[CX3](=O)[OX2H1:1]");
+        assert!(p.matches_at(&m, 3, &[2]).is_empty());
+        assert!(!p.is_match_at(&m, 3, &[1]));
+        assert!(!p.is_match_at(&m, 3, &[3]));
+        assert!(p.is_match_at(&m, 3, &[0]));
+    }
+
+    #[test]
+    fn avoid_does_not_reach_into_environments() {
+        // The environment describes the oxygen's surroundings in the whole molecule.
+        let m = molecule("CC(=O)O");
+        let p = pattern("[OH;$(OC=O)]");
+        assert!(p.is_match_at(&m, 3, &[1, 2]));
+    }
+
+    #[test]
+    fn avoid_picks_the_other_branch() {
+        // From the amine N of ethylenediamine-like chain, avoiding one side leaves the other.
+        let m = molecule("NCC(N)CO");
+        let p = pattern("[NH2:1]CC");
+        assert_eq!(p.matches_at(&m, 0, &[]).len(), 1);
+        let p = pattern("[NH2:1]C*");
+        // N3 sits on C2, whose other neighbours are C1 and C4.
+        assert_eq!(p.matches_at(&m, 3, &[]).len(), 2);
+        assert_eq!(
+            p.matches_at(&m, 3, &[1]),
+            vec![Match {
+                atoms: vec![3, 2, 4]
+            }]
+        );
+    }
+
+    #[test]
+    fn automorphic_matches_collapse_to_one() {
+        let m = molecule("CC(C)(C)C");
+        let p = pattern("C(C)(C)(C)C");
+        assert_eq!(p.matches_at(&m, 1, &[]).len(), 1);
+        assert_eq!(pattern("C~C").matches_at(&m, 1, &[]).len(), 4);
+    }
+
+    #[test]
+    fn ring_closures_must_close_in_the_molecule() {
+        let m = molecule("CCCCCC");
+        assert!(!pattern("C1CCCCC1").is_match_at(&m, 0, &[]));
+        let m = molecule("C1CCCCC1");
+        assert!(pattern("C1CCCCC1").is_match_at(&m, 0, &[]));
+        assert!(!pattern("C1CCCC1").is_match_at(&m, 0, &[]));
+    }
+
+    #[test]
+    fn out_of_range_atoms_match_nothing() {
+        let m = molecule("CO");
+        let p = pattern("[OH]");
+        assert!(!p.could_anchor(&m, 2));
+        assert!(p.matches_at(&m, 2, &[]).is_empty());
+        assert!(!p.is_match_at(&m, usize::MAX, &[]));
+    }
+
+    #[test]
+    fn could_anchor_rules_out_by_element_aromaticity_charge() {
+        let m = molecule("CC(=O)[O-].c1ccncc1");
+        let acid_anion = pattern("[O-:1]C=O");
+        assert!(acid_anion.could_anchor(&m, 3));
+        assert!(!acid_anion.could_anchor(&m, 2)); // neutral O
+        assert!(!acid_anion.could_anchor(&m, 1)); // carbon
+        let pyridine = pattern("[nX2:1]");
+        assert!(pyridine.could_anchor(&m, 7));
+        assert!(!pyridine.could_anchor(&m, 5)); // aromatic carbon
+                                                // A filter pass is only a maybe: H count is not part of it.
+        let hydroxyl = pattern("[OH1]");
+        assert!(hydroxyl.could_anchor(&m, 2));
+        assert!(!hydroxyl.is_match_at(&m, 2, &[]));
+    }
+
+    #[test]
+    fn explicit_hydrogen_atoms_count_in_h_and_d() {
+        let m = molecule("[H]OC");
+        assert!(pattern("[OH1]").is_match_at(&m, 1, &[]));
+        assert!(pattern("[OD2]").is_match_at(&m, 1, &[]));
+        assert!(pattern("[#1]O").is_match_at(&m, 0, &[]));
+        assert!(pattern("[H]O").is_match_at(&m, 0, &[]));
+    }
+
+    #[test]
+    fn maps_are_listed() {
+        let p = pattern("[O:2]C[N:1]");
+        assert_eq!(p.mapped(1), Some(2));
+        assert_eq!(p.mapped(2), Some(0));
+        assert_eq!(p.mapped(3), None);
+        assert_eq!(p.maps(), vec![(2, 0), (1, 2)]);
+        assert_eq!(p.anchor(), 2);
+        assert_eq!(p.len(), 3);
+        assert!(!p.is_empty());
+        assert_eq!(p.text(), "[O:2]C[N:1]");
+    }
+
+    #[test]
+    fn matches_over_the_molecule_are_distinct_sets() {
+        let m = molecule("OC(=O)CC(=O)O");
+        let found = pattern("[CX3](=O)[OX2H1:1]").matches(&m);
+        assert_eq!(found.len(), 2);
+        let m = molecule("CCC");
+        assert_eq!(pattern("CC").matches(&m).len(), 2);
     }
 }

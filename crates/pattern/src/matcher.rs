@@ -20,12 +20,18 @@ const UNPLACED: usize = usize::MAX;
 /// Patterns up to this size search in a stack buffer.
 const INLINE: usize = 32;
 
+/// Environment answers kept without allocating; one anchored call rarely asks more.
+const MEMO_INLINE: usize = 16;
+
 /// One matching call: the molecule, the pattern's environments, and the answers about
 /// environments found so far.
 pub(crate) struct Search<'a> {
     molecule: &'a Molecule,
     subs: &'a [Graph],
-    /// Per (environment, atom): 0 not asked yet, 1 no, 2 yes. Allocated on first use.
+    /// The first answers: (environment, atom, holds).
+    recent: [(u32, u32, bool); MEMO_INLINE],
+    recent_len: usize,
+    /// Past those, per (environment, atom): 0 not asked yet, 1 no, 2 yes.
     memo: Vec<u8>,
 }
 
@@ -34,7 +40,39 @@ impl<'a> Search<'a> {
         Search {
             molecule,
             subs,
+            recent: [(0, 0, false); MEMO_INLINE],
+            recent_len: 0,
             memo: Vec::new(),
+        }
+    }
+
+    fn recall(&self, id: usize, atom: usize) -> Option<bool> {
+        let key = (id as u32, atom as u32);
+        if let Some(&(_, _, holds)) = self.recent[..self.recent_len]
+            .iter()
+            .find(|r| (r.0, r.1) == key)
+        {
+            return Some(holds);
+        }
+        match self.memo.get(id * self.molecule.atoms().len() + atom) {
+            Some(1) => Some(false),
+            Some(2) => Some(true),
+            _ => None,
+        }
+    }
+
+    fn remember(&mut self, id: usize, atom: usize, holds: bool) {
+        if self.recent_len < MEMO_INLINE {
+            self.recent[self.recent_len] = (id as u32, atom as u32, holds);
+            self.recent_len += 1;
+            return;
+        }
+        let n = self.molecule.atoms().len();
+        if self.memo.is_empty() {
+            self.memo = vec![0; self.subs.len() * n];
+        }
+        if let Some(m) = self.memo.get_mut(id * n + atom) {
+            *m = if holds { 2 } else { 1 };
         }
     }
 
@@ -49,15 +87,8 @@ impl<'a> Search<'a> {
 
     /// Whether environment `id` holds with its first atom on `atom`, memoized.
     fn environment(&mut self, id: usize, atom: usize) -> bool {
-        let n = self.molecule.atoms().len();
-        if self.memo.is_empty() {
-            self.memo = vec![0; self.subs.len() * n];
-        }
-        let slot = id * n + atom;
-        match self.memo.get(slot).copied() {
-            Some(1) => return false,
-            Some(2) => return true,
-            _ => {}
+        if let Some(holds) = self.recall(id, atom) {
+            return holds;
         }
         let subs = self.subs;
         let found = match subs.get(id) {
@@ -71,9 +102,7 @@ impl<'a> Search<'a> {
             }
             None => false,
         };
-        if let Some(m) = self.memo.get_mut(slot) {
-            *m = if found { 2 } else { 1 };
-        }
+        self.remember(id, atom, found);
         found
     }
 
@@ -154,10 +183,17 @@ impl<'a> Search<'a> {
     }
 }
 
+/// Matches kept in a list before the seen-set is built; anchored calls rarely find more.
+const DISTINCT_LINEAR: usize = 8;
+
 /// Collects matches, dropping those whose atom set was seen already.
 #[derive(Default)]
 pub(crate) struct Distinct {
-    seen: HashSet<Vec<usize>>,
+    /// Sorted atom sets of the kept matches, while there are few.
+    keys: Vec<Vec<usize>>,
+    /// All sorted atom sets, once there are many (built late: even an empty std set costs
+    /// a random seed).
+    seen: Option<HashSet<Vec<usize>>>,
     pub(crate) matches: Vec<Vec<usize>>,
 }
 
@@ -165,8 +201,19 @@ impl Distinct {
     pub(crate) fn add(&mut self, atoms: &[usize]) {
         let mut key = atoms.to_vec();
         key.sort_unstable();
-        if self.seen.insert(key) {
-            self.matches.push(atoms.to_vec());
+        if self.matches.len() < DISTINCT_LINEAR {
+            if self.keys.contains(&key) {
+                return;
+            }
+            self.keys.push(key);
+        } else {
+            let seen = self
+                .seen
+                .get_or_insert_with(|| self.keys.drain(..).collect());
+            if !seen.insert(key) {
+                return;
+            }
         }
+        self.matches.push(atoms.to_vec());
     }
 }

@@ -126,6 +126,15 @@ CASES = [
     ("neopentane_star", "CC(C)(C)C", "C(C)(C)(C)C"),
     ("benzene_pairs", "c1ccccc1", "*~*"),
     ("isobutane_methyls", "CC(C)C", "[CH3]C"),
+    # many matches (past the small-list stage of duplicate removal) and many environments
+    ("long_chain_pairs", "C" * 30, "CC"),
+    ("long_chain_paths", "C" * 30, "C~C~C"),
+    ("long_chain_environment", "C" * 30, "[$(CC)]"),
+    ("long_chain_environment_pairs", "C" * 30, "[$(CCC)][$(CC)]"),
+    ("anthracene_pairs", "c1ccc2cc3ccccc3cc2c1", "*~*"),
+    ("anthracene_rings", "c1ccc2cc3ccccc3cc2c1", "c1ccccc1"),
+    ("benzene_any_cycle", "c1ccccc1", "*1~*~*~*~*~*1"),
+    ("cyclohexane_paths", "C1CCCCC1", "*~*~*"),
     # site patterns
     ("carboxylic_acid", "OC(=O)CC(=O)O", "[CX3](=O)[OX2H1:1]"),
     ("primary_amine", "NCCc1ccc(O)cc1", "[NX3;H2;!$(NC=[O,S,N]);!$(Na):1]"),
