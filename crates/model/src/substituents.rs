@@ -1,4 +1,4 @@
-//! Recognizing substituents by pattern (substituents helper).
+//! Recognizing substituents by pattern.
 //!
 //! The table (`fragments/substituents/groups.toml`) gives each group a pattern whose atom
 //! mapped `:1` is the atom bonded to the ring or chain. [`recognize`] tries every entry
@@ -44,6 +44,10 @@ pub fn entry_by_id<'a>(library: &'a Library, id: &str) -> Option<&'a Substituent
 /// charge, hybridization and neighbours is returned with `approximate = true`; `None` when
 /// there is no sensible nearest type (an unusual element, an anionic nitrogen or sulfur) or
 /// the indices are out of range.
+///
+/// Patterns are compiled once per thread and library (keyed by the pattern texts, so a
+/// user library or an edited one is compiled afresh); a pattern that does not compile is
+/// skipped here and reported by the library's own validation.
 pub fn recognize<'a>(
     library: &'a Library,
     molecule: &Molecule,
