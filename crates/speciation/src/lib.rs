@@ -64,6 +64,15 @@
 //! carried by the microstates not listed. [`Speciation::charge_at_ph`] is the mean over all
 //! microstates, not only the listed ones.
 //!
+//! # Curves and plots
+//!
+//! [`curve`] (or [`Microstates::curve`] on a prepared system) follows a fixed list of
+//! microspecies over a pH grid: the mean charge and each one's fraction per point, plus the
+//! fraction left to all others. [`Microstates::curve_for`] takes the list from the caller.
+//! [`svg_plot`] draws it: species fractions against pH with a legend (charge and a label the
+//! caller gives, e.g. the species' SMILES), the pH of interest as a dashed line, and the net
+//! charge in a panel below. The SVG is written by string building, with no dependency.
+//!
 //! # Untrusted input
 //!
 //! [`Microstates::new`] and [`try_speciate`] check the system (finite numbers, a square,

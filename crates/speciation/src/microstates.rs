@@ -26,6 +26,13 @@ pub struct Microstates {
 impl Microstates {
     /// Checks and enumerates the system, splitting coupled groups past
     /// [`MAX_CLUSTER_SITES`].
+    ///
+    /// # Reference
+    ///
+    /// The site-binding model with pairwise interactions and the binding-polynomial
+    /// definition of macroscopic constants, as in Borkovec and Koper (Anal. Chem. 2000, 72,
+    /// 3272) and Ullmann (J. Phys. Chem. B 2003, 107, 1263); both from memory. See the crate
+    /// docs for the weight formula.
     pub fn new(system: &System) -> Result<Self, SpeciationError> {
         Self::with_max_cluster(system, MAX_CLUSTER_SITES)
     }
