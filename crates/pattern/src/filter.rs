@@ -83,7 +83,10 @@ impl Charges {
         (0..64).contains(&b).then_some(b as u32)
     }
     fn contains(&self, charge: i8) -> bool {
-        Charges::bit(charge).map_or(true, |b| self.0 & (1 << b) != 0)
+        match Charges::bit(charge) {
+            Some(b) => self.0 & (1 << b) != 0,
+            None => true,
+        }
     }
 }
 

@@ -52,7 +52,8 @@ impl AtomPrim {
             AtomPrim::Any => true,
             AtomPrim::Aromatic(want) => a.aromatic == want,
             AtomPrim::Element { number, aromatic } => {
-                a.element == number && aromatic.map_or(true, |want| a.aromatic == want)
+                // No requirement, or the one written.
+                a.element == number && aromatic != Some(!a.aromatic)
             }
             AtomPrim::Isotope(mass) => a.isotope == Some(mass),
             AtomPrim::TotalH(n) => molecule.total_hydrogens(atom) == n as usize,

@@ -41,9 +41,8 @@ impl Parser<'_> {
     fn high_and<P: Operand>(&mut self) -> Result<Expr<P>, PatternError> {
         let mut operands = vec![self.not::<P>()?];
         loop {
-            if self.eat(b'&') {
-                operands.push(self.not::<P>()?);
-            } else if self.peek().is_some_and(|b| b == b'!' || P::starts(b)) {
+            // `&` written, or the next primitive (or `!`) written right after: both conjoin.
+            if self.eat(b'&') || self.peek().is_some_and(|b| b == b'!' || P::starts(b)) {
                 operands.push(self.not::<P>()?);
             } else {
                 return Ok(Expr::and(operands));
