@@ -759,3 +759,85 @@ fn hammett_equation_against_iupac_phenols_and_anilines() {
     }
     assert!(bad.is_empty(), "{}", bad.join("\n"));
 }
+
+/// Taft equation for aliphatic carboxylic acids: pKa = 4.65 - 1.62 sigma* (Perrin, Dempsey
+/// and Serjeant 1981, from memory), 0.4 per further CH2 (same source).
+const TAFT_PARENT: f64 = 4.65;
+const TAFT_RHO: f64 = 1.62;
+const TAFT_FALLOFF: f64 = 0.4;
+
+#[test]
+fn taft_equation_reproduces_handbook_aliphatic_acids() {
+    // Source of the measured values: CRC Handbook of Chemistry and Physics, "Dissociation
+    // constants of organic acids", from memory (see data/substituent_examples.toml).
+    let lib = library();
+    let ex = examples();
+    let cases = ex
+        .get("taft")
+        .and_then(|v| v.as_array())
+        .expect("[[taft]] list");
+    let mut failures = Vec::new();
+    let mut abs_err = Vec::new();
+    for case in cases {
+        let name = str_field(case, "name").unwrap_or("?");
+        let group = str_field(case, "group").expect("taft.group");
+        let depth = case
+            .get("depth")
+            .and_then(|v| v.as_integer())
+            .expect("taft.depth") as usize;
+        let measured = case
+            .get("pka")
+            .and_then(|v| v.as_float())
+            .expect("taft.pka");
+        let smiles = format!("OC(=O){}{group}", "C".repeat(depth));
+        let (atom, from) = (3 + depth, if depth == 0 { 1 } else { 2 + depth });
+        let m = match mol::parse(&smiles) {
+            Ok(m) => m,
+            Err(e) => {
+                failures.push(format!("{name}: {e}"));
+                continue;
+            }
+        };
+        let Some(r) = recognize(&lib, &m, atom, from, &[]) else {
+            failures.push(format!("{name} ({smiles}): not recognized"));
+            continue;
+        };
+        if r.approximate {
+            failures.push(format!(
+                "{name} ({smiles}): only approximately ({})",
+                r.entry.id
+            ));
+            continue;
+        }
+        let sigma = if depth == 0 {
+            r.entry.sigma_star
+        } else {
+            r.entry
+                .sigma_star_ch2
+                .map(|s| s * TAFT_FALLOFF.powi(depth as i32 - 1))
+        };
+        let Some(sigma) = sigma else {
+            failures.push(format!(
+                "{name}: {} has no sigma* for depth {depth}",
+                r.entry.id
+            ));
+            continue;
+        };
+        let estimate = TAFT_PARENT - TAFT_RHO * sigma;
+        abs_err.push((estimate - measured).abs());
+        if (estimate - measured).abs() > 0.35 {
+            failures.push(format!(
+                "{name}: 4.65 - 1.62 * {sigma:.3} ({}) = {estimate:.2}, handbook {measured:.2}",
+                r.entry.id
+            ));
+        }
+    }
+    if !abs_err.is_empty() {
+        let mae = abs_err.iter().sum::<f64>() / abs_err.len() as f64;
+        eprintln!(
+            "Taft, aliphatic acids: n = {}, MAE = {mae:.3}",
+            abs_err.len()
+        );
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
