@@ -52,8 +52,14 @@
 //! the couplings left between pieces are the weakest ones. Those couplings are then ignored
 //! (pieces treated as independent), the proton-count polynomials of the pieces are
 //! convolved, and [`Speciation::method`] says so, naming the number and the largest size of
-//! the ignored couplings. Each ignored coupling `w` can move a constant by at most `|w|` pK
-//! units.
+//! the ignored couplings. Each ignored coupling `w` can move a site's effective constant by
+//! at most `|w|` pK units, and a cut through strong couplings costs accordingly: on an
+//! invented 20-site chain of alternating acids and bases (`examples/approx_error.rs`), a
+//! 16 + 4 split that cuts one 0.8 pK nearest-neighbour coupling moved the charge curve by up
+//! to 0.50 (couplings halving per step) or 0.82 (couplings falling as 1/distance) and the
+//! macroscopic constants by up to 0.21 or 0.37, against the exact answer. The approximation
+//! is good where the molecule has weakly coupled parts, not for one long strongly coupled
+//! chain.
 //!
 //! # Species reported
 //!
