@@ -148,6 +148,41 @@ mod tests {
     use super::*;
 
     #[test]
+    fn curve_follows_given_species_and_accounts_for_the_rest() {
+        use crate::{Kind, SiteInput};
+        let system = System {
+            sites: vec![
+                SiteInput {
+                    kind: Kind::Acid,
+                    pka: 4.0,
+                },
+                SiteInput {
+                    kind: Kind::Acid,
+                    pka: 6.0,
+                },
+            ],
+            interaction: vec![],
+            base_charge: 0,
+        };
+        let m = Microstates::new(&system).unwrap();
+        let only = vec![CurveSpecies {
+            charged: vec![false, false],
+            charge: 0,
+        }];
+        let c = m.curve_for(only, 4.0, 6.0, 1.0).unwrap();
+        assert_eq!(c.points.len(), 3);
+        // At pH 4: weights 1, 1, 1e-2, 1e-2 (both charged): neutral share 1 / 2.01.
+        let f = 1.0 / (1.0 + 1.0 + 0.01 + 0.01);
+        assert!((c.points[0].fractions[0] - f).abs() < 1e-12);
+        assert!((c.points[0].other - (1.0 - f)).abs() < 1e-12);
+        // The automatic list covers all four microstates here, ordered by where each peaks.
+        let auto = m.curve(0.0, 10.0, 0.5).unwrap();
+        assert_eq!(auto.species.len(), 4);
+        assert_eq!(auto.species[0].charged, vec![false, false]);
+        assert_eq!(auto.species[3].charged, vec![true, true]);
+    }
+
+    #[test]
     fn grid_includes_end_on_the_grid() {
         let g = grid(0.0, 14.0, 0.1).unwrap();
         assert_eq!(g.len(), 141);

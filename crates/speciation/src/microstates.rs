@@ -424,6 +424,30 @@ mod tests {
     }
 
     #[test]
+    fn cooperative_coupling_inverts_stepwise_constants_and_says_so() {
+        // w = -3 between two like sites: G1 = 2e-4, G2 = 1e-5, so log10(G0/G1) = 3.70 comes
+        // before log10(G1/G2) = 1.30; the list is sorted and the method says why.
+        let s = System {
+            sites: vec![acid(4.0), acid(4.0)],
+            interaction: vec![vec![0.0, -3.0], vec![-3.0, 0.0]],
+            base_charge: 0,
+        };
+        let m = Microstates::new(&s).unwrap();
+        let l2 = 2f64.log10();
+        assert!((m.macro_pka()[0] - (1.0 + l2)).abs() < 1e-9);
+        assert!((m.macro_pka()[1] - (4.0 - l2)).abs() < 1e-9);
+        assert_eq!(
+            m.method(),
+            "exact; stepwise constants not in order (cooperative coupling), sorted"
+        );
+        // The charge comes from the polynomial, not from the sorted list: at pH 2.5,
+        // weights 1, 2 * 10^-1.5, 10^(-3 + 3) = 1.
+        let (a, b) = (2.0 * 10f64.powf(-1.5), 1.0);
+        let expect = -(a + 2.0 * b) / (1.0 + a + b);
+        assert!((m.charge(2.5) - expect).abs() < 1e-12);
+    }
+
+    #[test]
     fn identical_acids_get_statistical_factors() {
         let s = System {
             sites: vec![acid(4.0), acid(4.0)],
