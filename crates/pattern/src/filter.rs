@@ -1,5 +1,6 @@
-//! The anchor pre-filter: which (element, aromatic) pairs and charges the anchored pattern
-//! atom could possibly match, worked out once at parse time.
+//! The atom pre-filter: which (element, aromatic) pairs and charges a pattern atom could
+//! possibly match, worked out once at parse time. On the anchored atom it is
+//! `could_anchor`; on the others it spares most expression walks during the search.
 //!
 //! Each projection over-approximates: a conjunction intersects, a disjunction unites, and a
 //! negation complements only when its operand depends on that projection alone (otherwise
@@ -135,25 +136,26 @@ fn charges_of(p: &AtomPrim) -> Option<Charges> {
     }
 }
 
-/// What the anchored atom could match, by element/aromaticity and by charge.
+/// What a pattern atom could match, by element/aromaticity and by charge.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub(crate) struct AnchorFilter {
+pub(crate) struct AtomFilter {
     elements: Elements,
     charges: Charges,
+    /// The expression depends on one projection only (`C`, `[c,n]`, `[+]`), so passing the
+    /// filter is the answer and the expression need not be walked.
+    pub(crate) exact: bool,
 }
 
-impl AnchorFilter {
-    pub(crate) fn new(expr: &Expr<AtomPrim>) -> AnchorFilter {
-        AnchorFilter {
-            elements: project(expr, &elements_of).0,
-            charges: project(expr, &charges_of).0,
-        }
-    }
-    /// Matches nothing (an empty pattern has no anchor).
-    pub(crate) fn none() -> AnchorFilter {
-        AnchorFilter {
-            elements: Elements::empty(),
-            charges: Charges::empty(),
+impl AtomFilter {
+    pub(crate) fn new(expr: &Expr<AtomPrim>) -> AtomFilter {
+        let (elements, by_element) = project(expr, &elements_of);
+        let (charges, by_charge) = project(expr, &charges_of);
+        // An expression exact in one projection has the other one full (every primitive it
+        // holds projects to "anything" there), so `admits` alone decides it.
+        AtomFilter {
+            elements,
+            charges,
+            exact: by_element || by_charge,
         }
     }
     #[inline]
@@ -167,11 +169,11 @@ impl AnchorFilter {
 mod tests {
     use super::*;
 
-    fn filter(text: &str) -> AnchorFilter {
+    fn filter(text: &str) -> AtomFilter {
         let (graph, _) = crate::parse::parse(text).expect("parses");
-        graph.filter
+        graph.filters[graph.root]
     }
-    fn admits_element(f: &AnchorFilter, element: u8, aromatic: bool) -> bool {
+    fn admits_element(f: &AtomFilter, element: u8, aromatic: bool) -> bool {
         f.elements.contains(element, aromatic)
     }
 
@@ -216,5 +218,18 @@ mod tests {
         assert!(f.charges.contains(-100));
         let f = filter("C");
         assert!(f.charges.contains(-1) && f.charges.contains(0));
+    }
+
+    #[test]
+    fn exact_only_when_one_projection_decides() {
+        assert!(filter("C").exact);
+        assert!(filter("[c,n]").exact);
+        assert!(filter("[!#6]").exact);
+        assert!(filter("[+]").exact);
+        assert!(filter("*").exact);
+        assert!(!filter("[O-]").exact);
+        assert!(!filter("[CH3]").exact);
+        assert!(!filter("[C;$(C=O)]").exact);
+        assert!(!filter("[R]").exact);
     }
 }

@@ -1,7 +1,7 @@
 //! A compiled pattern graph and its search plan.
 
 use crate::expr::Expr;
-use crate::filter::AnchorFilter;
+use crate::filter::AtomFilter;
 use crate::primitive::{AtomPrim, BondPrim};
 
 /// One pattern atom.
@@ -47,11 +47,18 @@ pub(crate) struct Graph {
     pub(crate) root: usize,
     /// Every atom but the root, in placement order (depth first from the root).
     pub(crate) steps: Vec<Step>,
-    /// Cheap test for the root atom.
-    pub(crate) filter: AnchorFilter,
+    /// Cheap test per pattern atom.
+    pub(crate) filters: Vec<AtomFilter>,
 }
 
 impl Graph {
+    /// Whether molecule atom `atom` could be the root, by the filter alone.
+    pub(crate) fn root_admits(&self, molecule: &mol::Molecule, atom: usize) -> bool {
+        self.filters
+            .get(self.root)
+            .is_some_and(|f| f.admits(molecule, atom))
+    }
+
     /// Builds the search plan rooted at `root`. The graph must be connected (the parser
     /// refuses `.`).
     pub(crate) fn new(atoms: Vec<PatternAtom>, bonds: Vec<PatternBond>, root: usize) -> Graph {
@@ -115,17 +122,13 @@ impl Graph {
                 steps[position[late] - 1].closures.push((early, i));
             }
         }
-        let filter = if n > 0 {
-            AnchorFilter::new(&atoms[root].expr)
-        } else {
-            AnchorFilter::none()
-        };
+        let filters = atoms.iter().map(|a| AtomFilter::new(&a.expr)).collect();
         Graph {
             atoms,
             bonds,
             root,
             steps,
-            filter,
+            filters,
         }
     }
 }

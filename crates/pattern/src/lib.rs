@@ -164,7 +164,7 @@ impl Pattern {
     /// (element, aromaticity, charge). Lets callers skip most atoms without a search.
     /// `false` is certain; `true` means a search is needed.
     pub fn could_anchor(&self, molecule: &Molecule, atom: usize) -> bool {
-        atom < molecule.atoms().len() && self.main.filter.admits(molecule, atom)
+        atom < molecule.atoms().len() && self.main.root_admits(molecule, atom)
     }
 }
 

@@ -85,6 +85,17 @@ impl<'a> Search<'a> {
         })
     }
 
+    /// Whether molecule atom `atom` can sit on pattern atom `at`: the filter first, the
+    /// expression only when the filter cannot decide.
+    #[inline]
+    fn atom_ok(&mut self, graph: &Graph, at: usize, atom: usize) -> bool {
+        let filter = &graph.filters[at];
+        if !filter.admits(self.molecule, atom) {
+            return false;
+        }
+        filter.exact || self.atom_matches(&graph.atoms[at].expr, atom)
+    }
+
     /// Whether environment `id` holds with its first atom on `atom`, memoized.
     fn environment(&mut self, id: usize, atom: usize) -> bool {
         if let Some(holds) = self.recall(id, atom) {
@@ -119,8 +130,7 @@ impl<'a> Search<'a> {
         if n == 0
             || anchor >= self.molecule.atoms().len()
             || avoid.contains(&anchor)
-            || !graph.filter.admits(self.molecule, anchor)
-            || !self.atom_matches(&graph.atoms[graph.root].expr, anchor)
+            || !self.atom_ok(graph, graph.root, anchor)
         {
             return false;
         }
@@ -152,7 +162,6 @@ impl<'a> Search<'a> {
         let bonds = molecule.bonds();
         let from = assign[s.parent];
         let bond_expr = &graph.bonds[s.bond].expr;
-        let atom_expr = &graph.atoms[s.atom].expr;
         for nb in molecule.neighbors(from) {
             let candidate = nb.atom;
             if assign.contains(&candidate) || avoid.contains(&candidate) {
@@ -161,7 +170,7 @@ impl<'a> Search<'a> {
             if !bond_expr.eval(&mut |b| b.holds(&bonds[nb.bond])) {
                 continue;
             }
-            if !self.atom_matches(atom_expr, candidate) {
+            if !self.atom_ok(graph, s.atom, candidate) {
                 continue;
             }
             let closed = s.closures.iter().all(|&(other, bond)| {
