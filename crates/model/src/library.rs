@@ -1,10 +1,38 @@
 //! The fragment library: site classes and substituent constants, read from TOML.
 //!
-//! INTERFACE NOTE: the serde structs below are the schema of `fragments/`. The sites helper
-//! owns loading (`Library::builtin`, `Library::from_toml`), validation and the site-class
-//! data; the substituents helper owns `SubstituentEntry` data. Fields may be added, not
-//! renamed.
+//! # Overview
+//!
+//! The serde structs below are the schema of `fragments/`: `[[class]]` tables in
+//! `fragments/sites/*.toml` ([`SiteClass`]), `[[substituent]]` tables in
+//! `fragments/substituents/*.toml` ([`SubstituentEntry`]) and `[[calibration]]` tables in
+//! `fragments/calibration.toml` ([`Calibration`]). [`Library::builtin`] is the library
+//! compiled into the crate; [`Library::from_dir`], [`Library::from_toml_files`] and
+//! [`Library::from_sources`] load a user library with the same checks.
+//!
+//! # Checks at load
+//!
+//! Every file parses against the schema (unknown fields refused), class ids are unique,
+//! every class pattern compiles and marks its site with atom map `:1` (and its `anchor`
+//! map, where given), every value is finite and cited, every class has examples and
+//! near-misses, and every calibration entry names a class of the library. An error names
+//! the file and the entry.
+//!
+//! # Compiled patterns
+//!
+//! Patterns are compiled once per distinct text and kept for the life of the process
+//! ([`Library::pattern`]); the precedence index that site finding uses (classes in
+//! priority order, per anchor element) is built once for the built-in library and cached
+//! per thread for others.
 
+use std::cell::RefCell;
+use std::collections::HashMap;
+use std::path::{Path, PathBuf};
+use std::rc::Rc;
+use std::sync::Arc;
+use std::sync::RwLock;
+
+use once_cell::sync::Lazy;
+use pattern::Pattern;
 use serde::{Deserialize, Serialize};
 
 /// Which way a site's proton goes.
@@ -80,6 +108,16 @@ pub struct SiteClass {
     /// Notes for chemists.
     #[serde(default)]
     pub notes: String,
+    /// For classes with several equivalent acidic OH on one central atom (phosphoric,
+    /// phosphonic, arsonic acids): the interaction, in pK units, between two deprotonated
+    /// sites of the class on the same central atom. The class parent is the first
+    /// (microscopic) constant; the later constants come from this interaction in the site
+    /// coupling. Absent: the coupling's general rule applies.
+    #[serde(default)]
+    pub geminal_interaction: Option<f64>,
+    /// Where `geminal_interaction` comes from.
+    #[serde(default)]
+    pub geminal_source: String,
 }
 
 fn one() -> f64 {
@@ -170,3 +208,754 @@ impl std::fmt::Display for LibraryError {
     }
 }
 impl std::error::Error for LibraryError {}
+
+impl LibraryError {
+    fn new(message: impl Into<String>) -> LibraryError {
+        LibraryError {
+            message: message.into(),
+        }
+    }
+}
+
+/// The site-class files compiled into the crate, as `(path, text)`, in load order (file
+/// name order). Classes of equal priority resolve to the one loaded first.
+pub const BUILTIN_SITE_FILES: &[(&str, &str)] = &[
+    (
+        "fragments/sites/amines.toml",
+        include_str!("../../../fragments/sites/amines.toml"),
+    ),
+    (
+        "fragments/sites/aromatic_bases.toml",
+        include_str!("../../../fragments/sites/aromatic_bases.toml"),
+    ),
+    (
+        "fragments/sites/carbon_acids.toml",
+        include_str!("../../../fragments/sites/carbon_acids.toml"),
+    ),
+    (
+        "fragments/sites/carboxylic.toml",
+        include_str!("../../../fragments/sites/carboxylic.toml"),
+    ),
+    (
+        "fragments/sites/nh_acids.toml",
+        include_str!("../../../fragments/sites/nh_acids.toml"),
+    ),
+    (
+        "fragments/sites/other_bases.toml",
+        include_str!("../../../fragments/sites/other_bases.toml"),
+    ),
+    (
+        "fragments/sites/oxygen_acids.toml",
+        include_str!("../../../fragments/sites/oxygen_acids.toml"),
+    ),
+    (
+        "fragments/sites/sulfur_phosphorus.toml",
+        include_str!("../../../fragments/sites/sulfur_phosphorus.toml"),
+    ),
+    (
+        "fragments/sites/weak_sites.toml",
+        include_str!("../../../fragments/sites/weak_sites.toml"),
+    ),
+];
+
+/// The substituent files compiled into the crate, as `(path, text)`.
+pub const BUILTIN_SUBSTITUENT_FILES: &[(&str, &str)] = &[(
+    "fragments/substituents/groups.toml",
+    include_str!("../../../fragments/substituents/groups.toml"),
+)];
+
+/// The calibration file compiled into the crate, as `(path, text)`.
+pub const BUILTIN_CALIBRATION_FILE: (&str, &str) = (
+    "fragments/calibration.toml",
+    include_str!("../../../fragments/calibration.toml"),
+);
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct SiteFile {
+    #[serde(default)]
+    class: Vec<SiteClass>,
+}
+
+#[derive(Deserialize)]
+struct SubstituentFile {
+    #[serde(default)]
+    substituent: Vec<SubstituentEntry>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct CalibrationFile {
+    #[serde(default)]
+    calibration: Vec<Calibration>,
+}
+
+static BUILTIN: Lazy<Library> = Lazy::new(|| {
+    // The built-in files are part of the crate and tested; failing here is a packaging
+    // bug, not bad input.
+    match Library::from_sources(
+        BUILTIN_SITE_FILES,
+        BUILTIN_SUBSTITUENT_FILES,
+        &[BUILTIN_CALIBRATION_FILE],
+    ) {
+        Ok(library) => library,
+        Err(e) => panic!("the built-in fragment library is invalid: {e}"),
+    }
+});
+
+static BUILTIN_INDEX: Lazy<Arc<SiteIndex>> = Lazy::new(|| Arc::new(SiteIndex::build(&BUILTIN)));
+
+impl Library {
+    /// The library compiled into the crate (`fragments/` at build time), loaded and checked
+    /// on first use.
+    pub fn builtin() -> &'static Library {
+        &BUILTIN
+    }
+
+    /// A library from classes, substituents and calibrations already in memory, with the
+    /// same checks as the file loaders.
+    pub fn new(
+        classes: Vec<SiteClass>,
+        substituents: Vec<SubstituentEntry>,
+        calibration: Vec<Calibration>,
+    ) -> Result<Library, LibraryError> {
+        let library = Library {
+            classes,
+            substituents,
+            calibration,
+        };
+        let origin = vec!["(in memory)".to_string(); library.classes.len()];
+        let sub_origin = vec!["(in memory)".to_string(); library.substituents.len()];
+        validate(&library, &origin, &sub_origin)?;
+        Ok(library)
+    }
+
+    /// A library from TOML texts given as `(name, text)`: site-class files, substituent
+    /// files and calibration files (any of them may be empty). `name` is used in errors.
+    pub fn from_sources(
+        sites: &[(&str, &str)],
+        substituents: &[(&str, &str)],
+        calibration: &[(&str, &str)],
+    ) -> Result<Library, LibraryError> {
+        let mut classes = Vec::new();
+        let mut origin = Vec::new();
+        for (name, text) in sites {
+            let file: SiteFile = toml::from_str(text)
+                .map_err(|e| LibraryError::new(format!("{name}: {}", e.to_string().trim_end())))?;
+            origin.extend(std::iter::repeat(name.to_string()).take(file.class.len()));
+            classes.extend(file.class);
+        }
+        let mut entries = Vec::new();
+        let mut sub_origin = Vec::new();
+        for (name, text) in substituents {
+            let file: SubstituentFile = toml::from_str(text)
+                .map_err(|e| LibraryError::new(format!("{name}: {}", e.to_string().trim_end())))?;
+            sub_origin.extend(std::iter::repeat(name.to_string()).take(file.substituent.len()));
+            entries.extend(file.substituent);
+        }
+        let mut fits = Vec::new();
+        for (name, text) in calibration {
+            let file: CalibrationFile = toml::from_str(text)
+                .map_err(|e| LibraryError::new(format!("{name}: {}", e.to_string().trim_end())))?;
+            fits.extend(file.calibration);
+        }
+        let library = Library {
+            classes,
+            substituents: entries,
+            calibration: fits,
+        };
+        validate(&library, &origin, &sub_origin)?;
+        Ok(library)
+    }
+
+    /// A library from files on disk: site-class files (loaded in the order given),
+    /// substituent files and an optional calibration file.
+    pub fn from_toml_files(
+        sites: &[PathBuf],
+        substituents: &[PathBuf],
+        calibration: Option<&Path>,
+    ) -> Result<Library, LibraryError> {
+        let read = |path: &Path| -> Result<(String, String), LibraryError> {
+            let text = std::fs::read_to_string(path)
+                .map_err(|e| LibraryError::new(format!("{}: cannot read: {e}", path.display())))?;
+            Ok((path.display().to_string(), text))
+        };
+        let sites: Vec<(String, String)> =
+            sites.iter().map(|p| read(p)).collect::<Result<_, _>>()?;
+        let substituents: Vec<(String, String)> = substituents
+            .iter()
+            .map(|p| read(p))
+            .collect::<Result<_, _>>()?;
+        let calibration: Vec<(String, String)> =
+            calibration.map(read).transpose()?.into_iter().collect();
+        Library::from_sources(&view(&sites), &view(&substituents), &view(&calibration))
+    }
+
+    /// A library laid out like `fragments/`: `root/sites/*.toml` (in file name order),
+    /// `root/substituents/*.toml` and `root/calibration.toml` (optional). A missing
+    /// `substituents` directory means no substituent constants.
+    pub fn from_dir(root: &Path) -> Result<Library, LibraryError> {
+        let sites = toml_files(&root.join("sites"), true)?;
+        let substituents = toml_files(&root.join("substituents"), false)?;
+        let calibration = root.join("calibration.toml");
+        let calibration = calibration.is_file().then_some(calibration.as_path());
+        Library::from_toml_files(&sites, &substituents, calibration)
+    }
+
+    /// The index of the class with this id.
+    pub fn class_index(&self, id: &str) -> Option<usize> {
+        self.classes.iter().position(|c| c.id == id)
+    }
+
+    /// The calibrated values for a class id, where fitted.
+    pub fn calibration_for(&self, id: &str) -> Option<&Calibration> {
+        self.calibration.iter().find(|c| c.class == id)
+    }
+
+    /// The compiled pattern of class `class`; `None` if there is no such class or (for a
+    /// library built without the checks) its pattern does not compile. Each distinct
+    /// pattern text is compiled once per process.
+    pub fn pattern(&self, class: usize) -> Option<&Pattern> {
+        let text = &self.classes.get(class)?.pattern;
+        if std::ptr::eq(self, Library::builtin()) {
+            return BUILTIN_INDEX.patterns.get(class).copied().flatten();
+        }
+        intern(text)
+    }
+
+    /// The elements (atomic numbers) the site atom of class `class` can be, read from its
+    /// pattern; `None` where the pattern does not restrict it (or there is no such class).
+    pub fn anchor_elements(&self, class: usize) -> Option<Vec<u8>> {
+        anchor_elements(&self.classes.get(class)?.pattern)
+    }
+}
+
+fn view(v: &[(String, String)]) -> Vec<(&str, &str)> {
+    v.iter().map(|(a, b)| (a.as_str(), b.as_str())).collect()
+}
+
+fn toml_files(dir: &Path, required: bool) -> Result<Vec<PathBuf>, LibraryError> {
+    let entries = match std::fs::read_dir(dir) {
+        Ok(entries) => entries,
+        Err(_) if !required && !dir.exists() => return Ok(Vec::new()),
+        Err(e) => {
+            return Err(LibraryError::new(format!(
+                "{}: cannot read: {e}",
+                dir.display()
+            )))
+        }
+    };
+    let mut files = Vec::new();
+    for entry in entries {
+        let entry =
+            entry.map_err(|e| LibraryError::new(format!("{}: cannot read: {e}", dir.display())))?;
+        let path = entry.path();
+        if path.extension().is_some_and(|x| x == "toml") && path.is_file() {
+            files.push(path);
+        }
+    }
+    files.sort();
+    Ok(files)
+}
+
+fn validate(
+    library: &Library,
+    origin: &[String],
+    sub_origin: &[String],
+) -> Result<(), LibraryError> {
+    let mut seen: HashMap<&str, usize> = HashMap::new();
+    for (i, class) in library.classes.iter().enumerate() {
+        let at = format!("{}: class `{}`", origin[i], class.id);
+        if class.id.trim().is_empty() {
+            return Err(LibraryError::new(format!(
+                "{}: a class has an empty id",
+                origin[i]
+            )));
+        }
+        if let Some(&j) = seen.get(class.id.as_str()) {
+            return Err(LibraryError::new(format!(
+                "{at}: id used twice (first in {})",
+                origin[j]
+            )));
+        }
+        seen.insert(&class.id, i);
+        let pattern = Pattern::parse(&class.pattern).map_err(|e| {
+            LibraryError::new(format!("{at}: pattern does not compile: {}", render(&e)))
+        })?;
+        let Some(site) = pattern.mapped(1) else {
+            return Err(LibraryError::new(format!(
+                "{at}: pattern `{}` marks no site atom (atom map :1)",
+                class.pattern
+            )));
+        };
+        if site != pattern.anchor() {
+            return Err(LibraryError::new(format!(
+                "{at}: pattern `{}`: the atom mapped :1 is not the anchored atom",
+                class.pattern
+            )));
+        }
+        if let Some(anchor) = class.anchor {
+            if pattern.mapped(anchor).is_none() {
+                return Err(LibraryError::new(format!(
+                    "{at}: anchor {anchor} names no atom map of pattern `{}`",
+                    class.pattern
+                )));
+            }
+        }
+        let numbers = [
+            ("parent_pka", class.parent_pka),
+            ("rho", class.rho),
+            ("ortho_term", class.ortho_term),
+            ("statistical_factor", class.statistical_factor),
+            ("uncertainty", class.uncertainty),
+        ];
+        for (field, value) in numbers {
+            if !value.is_finite() {
+                return Err(LibraryError::new(format!(
+                    "{at}: {field} is not a finite number"
+                )));
+            }
+        }
+        if class.uncertainty <= 0.0 {
+            return Err(LibraryError::new(format!(
+                "{at}: uncertainty must be positive"
+            )));
+        }
+        if class.statistical_factor <= 0.0 {
+            return Err(LibraryError::new(format!(
+                "{at}: statistical_factor must be positive"
+            )));
+        }
+        if class.parent_source.trim().is_empty() {
+            return Err(LibraryError::new(format!("{at}: parent_pka has no source")));
+        }
+        if class.scale != Scale::None && class.rho_source.trim().is_empty() {
+            return Err(LibraryError::new(format!("{at}: rho has no source")));
+        }
+        if let Some(w) = class.geminal_interaction {
+            if !w.is_finite() {
+                return Err(LibraryError::new(format!(
+                    "{at}: geminal_interaction is not a finite number"
+                )));
+            }
+            if class.geminal_source.trim().is_empty() {
+                return Err(LibraryError::new(format!(
+                    "{at}: geminal_interaction has no source"
+                )));
+            }
+        }
+        if class.examples.is_empty() {
+            return Err(LibraryError::new(format!("{at}: no examples")));
+        }
+        if class.near_misses.is_empty() {
+            return Err(LibraryError::new(format!("{at}: no near-misses")));
+        }
+    }
+    let mut seen: HashMap<&str, usize> = HashMap::new();
+    for (i, entry) in library.substituents.iter().enumerate() {
+        let at = format!("{}: substituent `{}`", sub_origin[i], entry.id);
+        if let Some(&j) = seen.get(entry.id.as_str()) {
+            return Err(LibraryError::new(format!(
+                "{at}: id used twice (first in {})",
+                sub_origin[j]
+            )));
+        }
+        seen.insert(&entry.id, i);
+        if !entry.pattern.is_empty() {
+            Pattern::parse(&entry.pattern).map_err(|e| {
+                LibraryError::new(format!("{at}: pattern does not compile: {}", render(&e)))
+            })?;
+        }
+    }
+    for fit in &library.calibration {
+        if library.class_index(&fit.class).is_none() {
+            return Err(LibraryError::new(format!(
+                "calibration for `{}`: no class of that id",
+                fit.class
+            )));
+        }
+        if !fit.parent_pka.is_finite() || !fit.rho.is_finite() {
+            return Err(LibraryError::new(format!(
+                "calibration for `{}`: values are not finite numbers",
+                fit.class
+            )));
+        }
+    }
+    Ok(())
+}
+
+/// A pattern error with the pattern text and a caret line under the bad bytes.
+fn render(e: &pattern::PatternError) -> String {
+    let start = e.start.min(e.text.len());
+    let end = e.end.clamp(start + 1, e.text.len().max(start + 1));
+    let pad: String = e.text[..start]
+        .chars()
+        .map(|c| if c == '\t' { '\t' } else { ' ' })
+        .collect();
+    let width = e
+        .text
+        .get(start..end)
+        .map_or(1, |s| s.chars().count().max(1));
+    format!(
+        "{} at byte {}\n    {}\n    {}{}",
+        e.message,
+        e.start,
+        e.text,
+        pad,
+        "^".repeat(width)
+    )
+}
+
+/// Each distinct pattern text, compiled once for the life of the process. Leaked on
+/// purpose: the set of texts is the set of library patterns loaded, which is small and
+/// fixed, and a `'static` pattern lets the index be shared across threads without copies.
+static INTERNED: Lazy<RwLock<HashMap<String, Option<&'static Pattern>>>> =
+    Lazy::new(|| RwLock::new(HashMap::new()));
+
+fn intern(text: &str) -> Option<&'static Pattern> {
+    {
+        let map = INTERNED.read().unwrap_or_else(|e| e.into_inner());
+        if let Some(p) = map.get(text) {
+            return *p;
+        }
+    }
+    let compiled: Option<&'static Pattern> =
+        Pattern::parse(text).ok().map(|p| &*Box::leak(Box::new(p)));
+    let mut map = INTERNED.write().unwrap_or_else(|e| e.into_inner());
+    *map.entry(text.to_string()).or_insert(compiled)
+}
+
+/// What site finding needs from a library, worked out once: compiled patterns, their atom
+/// maps, and per element the classes that can anchor on it, in precedence order
+/// (priority high to low, then library order).
+#[derive(Debug)]
+pub(crate) struct SiteIndex {
+    /// Compiled pattern per class (`None`: does not compile).
+    pub(crate) patterns: Vec<Option<&'static Pattern>>,
+    /// `(map, pattern atom)` per class.
+    pub(crate) maps: Vec<Vec<(u16, usize)>>,
+    /// Candidate classes per element (index = atomic number, 0..=118).
+    by_element: Vec<Vec<usize>>,
+    /// Key the index was built for: pattern text and priority per class.
+    key: Vec<(String, i32)>,
+}
+
+const ELEMENTS: usize = 119;
+
+impl SiteIndex {
+    fn build(library: &Library) -> SiteIndex {
+        let patterns: Vec<Option<&'static Pattern>> =
+            library.classes.iter().map(|c| intern(&c.pattern)).collect();
+        let maps = patterns
+            .iter()
+            .map(|p| p.map(|p| p.maps()).unwrap_or_default())
+            .collect();
+        let mut order: Vec<usize> = (0..library.classes.len()).collect();
+        // Highest priority first; a stable sort keeps library order among equals.
+        order.sort_by_key(|&i| std::cmp::Reverse(library.classes[i].priority));
+        let filters: Vec<Option<Vec<u8>>> = library
+            .classes
+            .iter()
+            .map(|c| anchor_elements(&c.pattern))
+            .collect();
+        let by_element = (0..ELEMENTS)
+            .map(|e| {
+                order
+                    .iter()
+                    .copied()
+                    .filter(|&i| patterns[i].is_some())
+                    .filter(|&i| filters[i].as_ref().is_none_or(|f| f.contains(&(e as u8))))
+                    .collect()
+            })
+            .collect();
+        let key = library
+            .classes
+            .iter()
+            .map(|c| (c.pattern.clone(), c.priority))
+            .collect();
+        SiteIndex {
+            patterns,
+            maps,
+            by_element,
+            key,
+        }
+    }
+
+    /// Classes whose site atom can be `element`, in precedence order.
+    pub(crate) fn candidates(&self, element: u8) -> &[usize] {
+        self.by_element
+            .get(element as usize)
+            .map_or(&[], |v| v.as_slice())
+    }
+
+    fn fits(&self, library: &Library) -> bool {
+        self.key.len() == library.classes.len()
+            && self
+                .key
+                .iter()
+                .zip(&library.classes)
+                .all(|((p, q), c)| *p == c.pattern && *q == c.priority)
+    }
+}
+
+thread_local! {
+    /// Indexes of libraries other than the built-in one, per thread (no lock per call in
+    /// batch runs), most recently used first.
+    static INDEXES: RefCell<Vec<Rc<SiteIndex>>> = const { RefCell::new(Vec::new()) };
+}
+
+/// A handful: a process rarely holds more libraries at once.
+const INDEX_SLOTS: usize = 4;
+
+/// The site index of `library`: shared for the built-in library, cached per thread for
+/// others and keyed by their pattern texts and priorities, so an edited library is never
+/// served a stale index.
+pub(crate) fn site_index(library: &Library) -> IndexRef {
+    if std::ptr::eq(library, Library::builtin()) {
+        return IndexRef::Shared(Arc::clone(&BUILTIN_INDEX));
+    }
+    INDEXES.with(|cache| {
+        let mut cache = cache.borrow_mut();
+        if let Some(i) = cache.iter().position(|x| x.fits(library)) {
+            let index = cache.remove(i);
+            cache.insert(0, Rc::clone(&index));
+            return IndexRef::Local(index);
+        }
+        let index = Rc::new(SiteIndex::build(library));
+        cache.insert(0, Rc::clone(&index));
+        cache.truncate(INDEX_SLOTS);
+        IndexRef::Local(index)
+    })
+}
+
+/// A site index, shared across threads or local to one.
+pub(crate) enum IndexRef {
+    Shared(Arc<SiteIndex>),
+    Local(Rc<SiteIndex>),
+}
+
+impl std::ops::Deref for IndexRef {
+    type Target = SiteIndex;
+    fn deref(&self) -> &SiteIndex {
+        match self {
+            IndexRef::Shared(a) => a,
+            IndexRef::Local(r) => r,
+        }
+    }
+}
+
+/// The elements the site atom (map `:1`) of a pattern can be, read from the text of its
+/// bracket atom; `None` where the text does not restrict it or cannot be read with
+/// certainty (the caller then tries every element, which is always safe).
+fn anchor_elements(text: &str) -> Option<Vec<u8>> {
+    let expr = site_bracket(text)?;
+    let expr = strip_recursive(expr)?;
+    let set = eval_low_and(&expr)?;
+    let mut v: Vec<u8> = set.into_iter().collect();
+    v.sort_unstable();
+    Some(v)
+}
+
+/// The expression inside the top-level bracket atom that carries map `:1`, without the map.
+fn site_bracket(text: &str) -> Option<&str> {
+    let bytes = text.as_bytes();
+    let mut i = 0;
+    while i < bytes.len() {
+        if bytes[i] == b'[' {
+            // Find the matching `]`, skipping brackets nested in `$(...)`.
+            let mut depth = 0usize;
+            let mut j = i;
+            while j < bytes.len() {
+                match bytes[j] {
+                    b'[' => depth += 1,
+                    b']' => {
+                        depth -= 1;
+                        if depth == 0 {
+                            break;
+                        }
+                    }
+                    _ => {}
+                }
+                j += 1;
+            }
+            if j >= bytes.len() {
+                return None;
+            }
+            let inner = &text[i + 1..j];
+            if let Some(body) = inner.strip_suffix(":1") {
+                return Some(body);
+            }
+            i = j + 1;
+        } else if bytes[i] == b'$' {
+            // Skip a recursive environment outside brackets (not valid SMARTS anyway).
+            return None;
+        } else {
+            i += 1;
+        }
+    }
+    None
+}
+
+/// The expression with each `$(...)` replaced by `$`, which restricts nothing here.
+fn strip_recursive(expr: &str) -> Option<String> {
+    let mut out = String::new();
+    let mut chars = expr.chars().peekable();
+    while let Some(c) = chars.next() {
+        if c == '$' {
+            if chars.next() != Some('(') {
+                return None;
+            }
+            let mut depth = 1;
+            for d in chars.by_ref() {
+                match d {
+                    '(' => depth += 1,
+                    ')' => {
+                        depth -= 1;
+                        if depth == 0 {
+                            break;
+                        }
+                    }
+                    _ => {}
+                }
+            }
+            if depth != 0 {
+                return None;
+            }
+            out.push('$');
+        } else {
+            out.push(c);
+        }
+    }
+    Some(out)
+}
+
+/// A set of elements, or `None` for any element.
+type Elements = Option<std::collections::BTreeSet<u8>>;
+
+fn intersect(a: Elements, b: Elements) -> Elements {
+    match (a, b) {
+        (None, x) | (x, None) => x,
+        (Some(a), Some(b)) => Some(a.intersection(&b).copied().collect()),
+    }
+}
+
+// Outer `None`: the text could not be read; inner `None`: any element.
+fn eval_low_and(expr: &str) -> Option<std::collections::BTreeSet<u8>> {
+    let mut acc: Elements = None;
+    for part in expr.split(';') {
+        acc = intersect(acc, eval_or(part)?);
+    }
+    acc
+}
+
+fn eval_or(expr: &str) -> Option<Elements> {
+    let mut acc = std::collections::BTreeSet::new();
+    for alt in expr.split(',') {
+        let mut conj: Elements = None;
+        for term in alt.split('&') {
+            conj = intersect(conj, eval_primitives(term)?);
+        }
+        match conj {
+            None => return Some(None),
+            Some(set) => acc.extend(set),
+        }
+    }
+    Some(Some(acc))
+}
+
+/// A run of primitives joined by implicit high-precedence and.
+fn eval_primitives(term: &str) -> Option<Elements> {
+    let b = term.as_bytes();
+    let mut i = 0;
+    let mut acc: Elements = None;
+    let mut negate = false;
+    while i < b.len() {
+        let c = b[i];
+        let mut element: Option<u8> = None;
+        match c {
+            b'!' => {
+                negate = !negate;
+                i += 1;
+                continue;
+            }
+            b'#' => {
+                let start = i + 1;
+                i = start;
+                while i < b.len() && b[i].is_ascii_digit() {
+                    i += 1;
+                }
+                element = Some(term[start..i].parse().ok()?);
+            }
+            b'$' | b'*' | b'a' | b'@' => i += 1,
+            b'+' | b'-' => {
+                i += 1;
+                while i < b.len() && (b[i].is_ascii_digit() || b[i] == c) {
+                    i += 1;
+                }
+            }
+            b'0'..=b'9' => {
+                while i < b.len() && b[i].is_ascii_digit() {
+                    i += 1;
+                }
+            }
+            b'A'..=b'Z' => {
+                // Two-letter symbols first, the way bracket atoms are read.
+                let two = if i + 1 < b.len() && b[i + 1].is_ascii_lowercase() {
+                    term.get(i..i + 2).and_then(symbol_number)
+                } else {
+                    None
+                };
+                if let Some(n) = two {
+                    element = Some(n);
+                    i += 2;
+                } else if matches!(c, b'H' | b'D' | b'X' | b'R' | b'A') {
+                    // Counts (H, D, X, R) and the aliphatic wildcard restrict no element.
+                    i += 1;
+                    while i < b.len() && b[i].is_ascii_digit() {
+                        i += 1;
+                    }
+                } else {
+                    element = Some(symbol_number(&term[i..i + 1])?);
+                    i += 1;
+                }
+            }
+            b'r' | b'h' | b'v' | b'x' => {
+                i += 1;
+                while i < b.len() && b[i].is_ascii_digit() {
+                    i += 1;
+                }
+            }
+            b'c' | b'n' | b'o' | b's' | b'p' | b'b' => {
+                if term.get(i..i + 2) == Some("se") {
+                    element = Some(34);
+                    i += 2;
+                } else if term.get(i..i + 2) == Some("as") {
+                    element = Some(33);
+                    i += 2;
+                } else {
+                    element = Some(match c {
+                        b'c' => 6,
+                        b'n' => 7,
+                        b'o' => 8,
+                        b's' => 16,
+                        b'p' => 15,
+                        _ => 5,
+                    });
+                    i += 1;
+                }
+            }
+            _ => return None,
+        }
+        if let Some(e) = element {
+            if !negate {
+                acc = intersect(acc, Some(std::iter::once(e).collect()));
+            }
+        }
+        negate = false;
+    }
+    Some(acc)
+}
+
+fn symbol_number(symbol: &str) -> Option<u8> {
+    (1..ELEMENTS as u8).find(|&n| mol::element_symbol(n) == symbol)
+}

@@ -1,6 +1,10 @@
-//! Finding ionizable sites (sites helper).
+//! Finding ionizable sites: every class pattern tried on the atoms it can anchor on, one
+//! site per atom, overlaps resolved by class priority.
+use std::collections::HashMap;
+
 use mol::Molecule;
 
+use crate::library::site_index;
 use crate::Library;
 
 /// A site found by a class pattern.
@@ -19,7 +23,64 @@ pub struct FoundSite {
 }
 
 /// Finds every site in the molecule, one per atom, overlaps resolved by class priority.
+///
+/// For each atom (in molecule order) the classes whose site atom can be its element are
+/// tried from the highest priority down; the first whose pattern matches with its `:1`
+/// atom on that atom wins the atom. Equal priorities go to the class loaded first (site
+/// files in name order, classes in file order), so the outcome never depends on anything
+/// but the library. Where the winning pattern matches in several ways, the match with the
+/// smallest list of atoms (compared atom by atom) is kept, so the scored substituents do
+/// not depend on search order.
+///
+/// Sites on symmetry-equivalent atoms (`mol::symmetry_classes`) share a group; groups are
+/// numbered from 0 in order of first appearance. Several protons on one atom (NH2, CH2) are
+/// one site. Atoms of any component are searched; callers pass the standardized parent.
 pub fn find_sites(library: &Library, molecule: &Molecule) -> Vec<FoundSite> {
-    let _ = (library, molecule);
-    todo!("sites helper")
+    let index = site_index(library);
+    let atoms = molecule.atoms();
+    let symmetry = mol::symmetry_classes(molecule);
+    let mut groups: HashMap<u32, usize> = HashMap::new();
+    let mut sites = Vec::new();
+    for (atom, a) in atoms.iter().enumerate() {
+        // Explicit hydrogens never carry a site themselves: their heavy atom does.
+        if a.element == 1 {
+            continue;
+        }
+        for &class in index.candidates(a.element) {
+            let Some(pattern) = index.patterns[class] else {
+                continue;
+            };
+            if !pattern.could_anchor(molecule, atom) || !pattern.is_match_at(molecule, atom, &[]) {
+                continue;
+            }
+            let Some(best) = pattern
+                .matches_at(molecule, atom, &[])
+                .into_iter()
+                .map(|m| m.atoms)
+                .min()
+            else {
+                continue;
+            };
+            let mapped = index.maps[class]
+                .iter()
+                .filter_map(|&(map, p)| best.get(p).map(|&at| (map, at)))
+                .collect();
+            // An atom without a symmetry class (never expected) is its own group.
+            let key = symmetry
+                .get(atom)
+                .copied()
+                .map_or(u32::MAX - atom as u32, |k| k);
+            let next = groups.len();
+            let group = *groups.entry(key).or_insert(next);
+            sites.push(FoundSite {
+                class,
+                atom,
+                matched: best,
+                mapped,
+                group,
+            });
+            break;
+        }
+    }
+    sites
 }
