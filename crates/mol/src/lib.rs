@@ -2,13 +2,50 @@
 //!
 //! # Overview
 //!
-//! [`parse`] reads SMILES text (through `purr`) and perceives it: implicit hydrogens,
-//! rings, aromaticity, Kekulé bond orders, hybridization. [`standardize`] picks the parent
-//! component and brings it to its neutral form. [`write_smiles`] writes a molecule back.
+//! [`parse`] reads SMILES text (through `purr`) and perceives it: implicit hydrogens
+//! (OpenSMILES default valences), rings (smallest set of smallest rings), aromaticity (one
+//! Hückel model, the same for aromatic and Kekulé input), Kekulé bond orders and
+//! hybridization. [`standardize`] picks the parent component and brings it to its neutral
+//! form. [`write_smiles`] writes a molecule back; reading the output gives the same atoms,
+//! charges, hydrogens and bonds. [`symmetry_classes`] groups equivalent atoms.
 //!
-//! INTERFACE NOTE (remove when implemented): the public items below are the contract the
-//! other crates code against. Their bodies are for the mol helper to write; their names and
-//! signatures stay.
+//! # Example
+//!
+//! ```
+//! let m = mol::parse("CC(=O)[O-].[Na+]")?;
+//! assert_eq!(m.components().len(), 2);
+//! assert_eq!(m.atoms()[0].hydrogens, 3);
+//!
+//! let s = mol::standardize(&m)?;
+//! assert_eq!(mol::write_smiles(&s.parent), "CC(=O)O");
+//! assert_eq!(s.others, vec!["[Na+]".to_string()]);
+//!
+//! let e = mol::parse("C1CC").unwrap_err();
+//! assert_eq!(e.to_string(), "unclosed ring bond '1'\nC1CC\n ^");
+//! Ok::<(), Box<dyn std::error::Error>>(())
+//! ```
+//!
+//! # Aromaticity model
+//!
+//! A ring, or a combination of up to three rings fused through shared bonds, is aromatic
+//! when every atom has a p orbital in the Kekulé form and the pi electrons number 4n+2:
+//! one per atom with a ring double bond, two per lone-pair atom (pyrrole N-H, furan O,
+//! thiophene S, azolide N-), none for a carbon whose double bond goes out to a more
+//! electronegative atom (2-pyridone's C=O) or for a carbocation. Atoms written aromatic
+//! that fail the rule keep their Kekulé bonds and are not aromatic.
+//!
+//! # Performance
+//!
+//! Reading and perception are linear in the size of the input for ordinary molecules;
+//! ring perception and Kekulé matching work per ring system. Benchmarks live in the
+//! workspace's `benches/`.
+//!
+//! # Untrusted input
+//!
+//! No input panics or overflows the stack. Input longer than [`MAX_LENGTH`] bytes is
+//! refused with [`ErrorKind::TooLarge`]; `purr` reads recursively, so input longer than
+//! [`MAX_INLINE_LENGTH`] characters is read on a helper thread whose stack is sized for it.
+//! Every error names what is wrong and where, as byte offsets with a caret line.
 #![deny(missing_docs)]
 
 mod elements;
