@@ -219,7 +219,7 @@ impl LibraryError {
 
 /// The site-class files compiled into the crate, as `(path, text)`, in load order (file
 /// name order). Classes of equal priority resolve to the one loaded first.
-pub const BUILTIN_SITE_FILES: &[(&str, &str)] = &[
+const BUILTIN_SITE_FILES: &[(&str, &str)] = &[
     (
         "fragments/sites/amines.toml",
         include_str!("../../../fragments/sites/amines.toml"),
@@ -259,13 +259,13 @@ pub const BUILTIN_SITE_FILES: &[(&str, &str)] = &[
 ];
 
 /// The substituent files compiled into the crate, as `(path, text)`.
-pub const BUILTIN_SUBSTITUENT_FILES: &[(&str, &str)] = &[(
+const BUILTIN_SUBSTITUENT_FILES: &[(&str, &str)] = &[(
     "fragments/substituents/groups.toml",
     include_str!("../../../fragments/substituents/groups.toml"),
 )];
 
 /// The calibration file compiled into the crate, as `(path, text)`.
-pub const BUILTIN_CALIBRATION_FILE: (&str, &str) = (
+const BUILTIN_CALIBRATION_FILE: (&str, &str) = (
     "fragments/calibration.toml",
     include_str!("../../../fragments/calibration.toml"),
 );
@@ -310,6 +310,12 @@ impl Library {
     /// on first use.
     pub fn builtin() -> &'static Library {
         &BUILTIN
+    }
+
+    /// The site-class files compiled into the crate, as `(path, text)`, in load order (file
+    /// name order). Classes of equal priority resolve to the one loaded first.
+    pub fn builtin_site_files() -> &'static [(&'static str, &'static str)] {
+        BUILTIN_SITE_FILES
     }
 
     /// A library from classes, substituents and calibrations already in memory, with the
