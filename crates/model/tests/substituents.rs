@@ -841,3 +841,27 @@ fn taft_equation_reproduces_handbook_aliphatic_acids() {
     }
     assert!(failures.is_empty(), "{}", failures.join("\n"));
 }
+
+#[test]
+fn the_builtin_library_loads_this_table() {
+    // The loader's own checks accept the file, and it is the table the estimates use.
+    let builtin = Library::builtin();
+    let ours: Vec<String> = library().substituents.into_iter().map(|e| e.id).collect();
+    let loaded: Vec<&str> = builtin
+        .substituents
+        .iter()
+        .filter(|e| ours.contains(&e.id))
+        .map(|e| e.id.as_str())
+        .collect();
+    assert_eq!(
+        loaded.len(),
+        ours.len(),
+        "entries of groups.toml missing from the builtin library"
+    );
+    let m = mol::parse("c1ccccc1C(F)(F)F").expect("parses");
+    let r = recognize(builtin, &m, 6, 5, &[]).expect("recognized");
+    assert_eq!(
+        (r.entry.id.as_str(), r.approximate),
+        ("trifluoromethyl", false)
+    );
+}
