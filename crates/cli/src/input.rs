@@ -190,6 +190,18 @@ impl<R: BufRead + Send> LineSource<R> {
     }
 }
 
+fn trim_bytes(bytes: &[u8]) -> &[u8] {
+    let start = bytes
+        .iter()
+        .position(|b| !b.is_ascii_whitespace())
+        .unwrap_or(bytes.len());
+    let end = bytes
+        .iter()
+        .rposition(|b| !b.is_ascii_whitespace())
+        .map_or(start, |i| i + 1);
+    &bytes[start..end]
+}
+
 fn memchr(needle: u8, haystack: &[u8]) -> Option<usize> {
     haystack.iter().position(|&b| b == needle)
 }
@@ -219,7 +231,15 @@ impl<R: BufRead + Send> Source for LineSource<R> {
             }
             match std::str::from_utf8(&buf) {
                 Err(e) => {
-                    item.text = String::from_utf8_lossy(&buf).into_owned();
+                    // Still split SMILES from name, so the record keeps its name.
+                    let line = trim_bytes(&buf);
+                    let (smiles, name) = match line.iter().position(u8::is_ascii_whitespace) {
+                        Some(i) => (&line[..i], trim_bytes(&line[i..])),
+                        None => (line, &b""[..]),
+                    };
+                    item.text = String::from_utf8_lossy(smiles).into_owned();
+                    item.id =
+                        (!name.is_empty()).then(|| String::from_utf8_lossy(name).into_owned());
                     item.problem = Some(format!(
                         "input is not valid UTF-8 at byte {}",
                         e.valid_up_to()
@@ -262,6 +282,8 @@ impl<R: Read + Send> CsvSource<R> {
             .delimiter(delimiter)
             .has_headers(true)
             .flexible(true)
+            // TSV has no quoting: a quote character inside a field is just a character.
+            .quoting(delimiter != b'\t')
             .from_reader(reader);
         let header = reader
             .byte_headers()
@@ -430,7 +452,8 @@ mod tests {
             items[1].problem.as_deref(),
             Some("input is not valid UTF-8 at byte 1")
         );
-        assert_eq!(items[1].text, "C\u{fffd}C x");
+        assert_eq!(items[1].text, "C\u{fffd}C");
+        assert_eq!(items[1].id.as_deref(), Some("x"));
         assert_eq!(items[2].text, "O");
     }
 

@@ -14,6 +14,7 @@ mod progress;
 
 use std::io::Write;
 use std::process::ExitCode;
+use std::sync::atomic::{AtomicBool, Ordering};
 
 use clap::Parser;
 
@@ -27,6 +28,7 @@ const SOME_FAILED: u8 = 1;
 const ERROR: u8 = 2;
 
 fn main() -> ExitCode {
+    quiet_repeated_panics();
     let cli = Cli::parse();
     match run(cli) {
         Ok(false) => ExitCode::from(OK),
@@ -36,6 +38,20 @@ fn main() -> ExitCode {
             ExitCode::from(ERROR)
         }
     }
+}
+
+/// A panic while estimating one record becomes that record's error (see `batch`); the
+/// first one is still reported in full on stderr for the bug report, later ones are not,
+/// so a library bug that hits every record cannot flood stderr or slow a batch down with
+/// a backtrace per record.
+fn quiet_repeated_panics() {
+    static SEEN: AtomicBool = AtomicBool::new(false);
+    let default = std::panic::take_hook();
+    std::panic::set_hook(Box::new(move |info| {
+        if !SEEN.swap(true, Ordering::SeqCst) {
+            default(info);
+        }
+    }));
 }
 
 /// Runs a command; `Ok(true)` when some records failed.

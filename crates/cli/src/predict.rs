@@ -40,13 +40,18 @@ pub fn run(args: &PredictArgs) -> anyhow::Result<bool> {
         PredictFormat::Jsonl => Box::new(Jsonl { out }),
         PredictFormat::Table => Box::new(Table { out, first: true }),
         PredictFormat::Csv | PredictFormat::Tsv => {
-            let delimiter = if format == PredictFormat::Tsv {
-                b'\t'
+            let tsv = format == PredictFormat::Tsv;
+            let delimiter = if tsv { b'\t' } else { b',' };
+            // TSV is written without quoting, as it is read: cells never hold a tab or a
+            // line break (ours are cleaned, TSV input cells cannot have them).
+            let quoting = if tsv {
+                csv::QuoteStyle::Never
             } else {
-                b','
+                csv::QuoteStyle::Necessary
             };
             let writer = csv::WriterBuilder::new()
                 .delimiter(delimiter)
+                .quote_style(quoting)
                 .flexible(true)
                 .from_writer(out);
             Box::new(Delimited {
@@ -54,6 +59,7 @@ pub fn run(args: &PredictArgs) -> anyhow::Result<bool> {
                 header: opened.header.clone(),
                 header_written: false,
                 csv_input: opened.format != InputFormat::Smi,
+                tsv,
             })
         }
     };
@@ -159,6 +165,7 @@ struct Delimited<W: Write> {
     header: Option<csv::ByteRecord>,
     header_written: bool,
     csv_input: bool,
+    tsv: bool,
 }
 
 impl<W: Write> Delimited<W> {
@@ -215,11 +222,19 @@ impl<W: Write + Send> Sink<Record> for Delimited<W> {
         if !self.header_written {
             self.write_header()?;
         }
+        let tsv = self.tsv;
+        let clean = |cell: &str| {
+            if tsv {
+                cell.replace(['\t', '\n', '\r'], " ")
+            } else {
+                cell.to_string()
+            }
+        };
         let mut row = match (&item.row, self.csv_input) {
             (Some(row), true) => row.clone(),
             _ => csv::ByteRecord::from(vec![
-                record.input.as_str(),
-                record.id.as_deref().unwrap_or(""),
+                clean(&record.input),
+                clean(record.id.as_deref().unwrap_or("")),
             ]),
         };
         if self.csv_input {
@@ -231,7 +246,7 @@ impl<W: Write + Send> Sink<Record> for Delimited<W> {
             }
         }
         for cell in cells(record) {
-            row.push_field(cell.as_bytes());
+            row.push_field(clean(&cell).as_bytes());
         }
         self.writer.write_byte_record(&row).map_err(csv_io)
     }
