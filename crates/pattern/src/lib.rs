@@ -111,6 +111,10 @@ impl Pattern {
     pub fn anchor(&self) -> usize {
         self.main.root
     }
+    /// The pattern's bonds, as pairs of pattern atoms (ring closures included).
+    pub fn bonds(&self) -> Vec<(usize, usize)> {
+        self.main.bonds.iter().map(|b| (b.a, b.b)).collect()
+    }
     /// Number of pattern atoms.
     pub fn len(&self) -> usize {
         self.main.atoms.len()
