@@ -73,6 +73,20 @@ pub struct Pattern {
     subs: Vec<Graph>,
 }
 
+impl std::str::FromStr for Pattern {
+    type Err = PatternError;
+    fn from_str(text: &str) -> Result<Pattern, PatternError> {
+        Pattern::parse(text)
+    }
+}
+
+impl std::fmt::Display for Pattern {
+    /// The text the pattern was compiled from.
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&self.text)
+    }
+}
+
 /// One match: for each pattern atom (in pattern order), the molecule atom it matched.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Match {
@@ -294,6 +308,8 @@ mod tests {
         assert_eq!(p.len(), 3);
         assert!(!p.is_empty());
         assert_eq!(p.text(), "[O:2]C[N:1]");
+        assert_eq!(p.to_string(), "[O:2]C[N:1]");
+        assert_eq!("[O:2]C[N:1]".parse::<Pattern>().map(|p| p.len()), Ok(3));
     }
 
     #[test]
