@@ -3,7 +3,6 @@
 use crate::util::pkarta;
 
 #[test]
-#[ignore = "needs estimate"]
 fn curve_csv_fractions_sum_to_one_and_charge_falls() {
     // Glycine: cation at low pH, zwitterion in between, anion at high pH.
     let run = pkarta(
@@ -48,7 +47,7 @@ fn curve_csv_fractions_sum_to_one_and_charge_falls() {
 }
 
 #[test]
-#[ignore = "needs estimate"]
+#[ignore = "needs plot_svg"]
 fn curve_writes_an_svg_file() {
     let dir = std::env::temp_dir().join(format!("pkarta-cli-curve-{}", std::process::id()));
     std::fs::create_dir_all(&dir).expect("temp dir");
@@ -76,7 +75,6 @@ fn curve_writes_an_svg_file() {
 }
 
 #[test]
-#[ignore = "needs estimate"]
 fn curve_of_bad_input_is_exit_1_with_caret() {
     let run = pkarta(&["curve", "C1CC"], b"");
     assert_eq!(run.status, Some(1), "{}", run.stderr);

@@ -208,7 +208,6 @@ fn closed_pipe_ends_the_run_quietly() {
 }
 
 #[test]
-#[ignore = "needs estimate"]
 fn closed_pipe_ends_predict_quietly() {
     let (status, first, stderr) = first_line_then_close(&["predict", "--format", "jsonl"], 50_000);
     assert!(first.contains("acid-0"), "{first}");

@@ -54,7 +54,6 @@ fn error_records_have_every_contract_field() {
 }
 
 #[test]
-#[ignore = "needs estimate"]
 fn estimated_records_have_the_contract_fields() {
     // Acetic acid: one acidic site, handbook pKa 4.76 (CRC Handbook of Chemistry and
     // Physics, "Dissociation constants of organic acids and bases").
@@ -86,7 +85,6 @@ fn estimated_records_have_the_contract_fields() {
 }
 
 #[test]
-#[ignore = "needs estimate"]
 fn a_failed_record_does_not_stop_the_batch_and_sets_exit_1() {
     let run = pkarta(
         &["predict", "--format", "jsonl"],
@@ -103,7 +101,6 @@ fn a_failed_record_does_not_stop_the_batch_and_sets_exit_1() {
 }
 
 #[test]
-#[ignore = "needs estimate"]
 fn all_estimated_is_exit_0() {
     let run = pkarta(&["predict", "--format", "jsonl"], b"CC(=O)O\nc1ccncc1\n");
     assert_eq!(run.status, Some(0), "{}", run.stderr);
@@ -257,7 +254,6 @@ fn table_ends_with_the_caution_line() {
 }
 
 #[test]
-#[ignore = "needs estimate"]
 fn demo_file_runs_and_its_bad_rows_fail() {
     let path = demo("compounds.smi");
     let run = pkarta(
@@ -273,4 +269,73 @@ fn demo_file_runs_and_its_bad_rows_fail() {
         .collect();
     assert!(failed.len() >= 3 && failed.len() <= 5, "{failed:?}");
     assert!(records.len() >= 30);
+}
+
+#[test]
+fn library_file_adds_its_classes() {
+    let file = data("cli_extra_sites.toml");
+    let with = pkarta(
+        &[
+            "predict",
+            "--format",
+            "jsonl",
+            "--library",
+            file.to_str().expect("path"),
+        ],
+        b"C[Si](C)(C)O\n",
+    );
+    assert_eq!(with.status, Some(0), "{}", with.stderr);
+    let record = &with.jsonl()[0];
+    let classes: Vec<&str> = record["sites"]
+        .as_array()
+        .expect("sites")
+        .iter()
+        .map(|s| s["class"].as_str().expect("class"))
+        .collect();
+    assert_eq!(classes, ["acid.silanol.user"]);
+    // A `none`-scale class gives its parent value unchanged.
+    assert_eq!(record["sites"][0]["pka"], 11.0);
+    let without = pkarta(&["predict", "--format", "jsonl"], b"C[Si](C)(C)O\n");
+    let sites = &without.jsonl()[0]["sites"];
+    assert!(sites
+        .as_array()
+        .expect("sites")
+        .iter()
+        .all(|s| s["class"] != "acid.silanol.user"));
+}
+
+#[test]
+fn library_directory_replaces_the_builtin_one() {
+    // The shipped fragments/ directory loaded from disk gives what the built-in copy gives.
+    let dir = std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../../fragments");
+    let input = b"CC(=O)O\nc1ccncc1\nNCC(=O)O\nOc1ccccc1\n";
+    let from_dir = pkarta(
+        &[
+            "predict",
+            "--format",
+            "jsonl",
+            "--library",
+            dir.to_str().expect("path"),
+        ],
+        input,
+    );
+    let builtin = pkarta(&["predict", "--format", "jsonl"], input);
+    assert_eq!(from_dir.status, Some(0), "{}", from_dir.stderr);
+    assert_eq!(from_dir.stdout, builtin.stdout);
+}
+
+#[test]
+fn broken_library_is_exit_2_naming_the_file() {
+    let file = data("cli_quoted.csv");
+    let run = pkarta(
+        &["predict", "--library", file.to_str().expect("path")],
+        b"CCO\n",
+    );
+    assert_eq!(run.status, Some(2));
+    assert!(
+        run.stderr.starts_with("pkarta: ") && run.stderr.contains("cli_quoted.csv"),
+        "{}",
+        run.stderr
+    );
+    assert!(run.stdout.is_empty());
 }

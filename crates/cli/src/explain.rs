@@ -8,7 +8,11 @@ use crate::fmt::{align, hang, num, percent, CAUTION};
 
 /// Runs `explain`; returns whether the molecule failed.
 pub fn run(args: &ExplainArgs) -> anyhow::Result<bool> {
-    let record = pkarta::estimate(&args.smiles, None, &Options { ph: args.ph.ph });
+    let options = Options { ph: args.ph.ph };
+    let record = match crate::library::load(args.library.library.as_deref())? {
+        Some(library) => pkarta::estimate_with(&library, &args.smiles, None, &options),
+        None => pkarta::estimate(&args.smiles, None, &options),
+    };
     let text = render(&record);
     batch::write_all_quiet(&mut batch::stdout(), text.as_bytes())?;
     Ok(record.error.is_some())
@@ -107,19 +111,34 @@ fn site_text(n: usize, site: &SiteReport, outside: bool, elements: &[String]) ->
             ""
         }
     );
+    // Sources are long and often shared between terms: each is listed once, below the
+    // table, and the terms point to it by number.
+    let mut sources: Vec<&str> = Vec::new();
     let mut rows = vec![
         ["term", "position", "sigma", "rho", "contribution", "source"]
             .map(String::from)
             .to_vec(),
     ];
     for t in &site.terms {
+        let reference = if t.source.is_empty() {
+            String::new()
+        } else {
+            let i = sources
+                .iter()
+                .position(|&x| x == t.source)
+                .unwrap_or_else(|| {
+                    sources.push(&t.source);
+                    sources.len() - 1
+                });
+            format!("[{}]", i + 1)
+        };
         rows.push(vec![
             t.label.clone(),
             t.position.clone().unwrap_or_default(),
             t.sigma.map(num).unwrap_or_default(),
             t.rho.map(num).unwrap_or_default(),
             format!("{:+.2}", t.contribution).replace("-0.00", "+0.00"),
-            t.source.clone(),
+            reference,
         ]);
     }
     let total: f64 = site.terms.iter().map(|t| t.contribution).sum();
@@ -137,5 +156,8 @@ fn site_text(n: usize, site: &SiteReport, outside: bool, elements: &[String]) ->
         num(site.pka),
         num(site.uncertainty)
     ));
+    for (i, source) in sources.iter().enumerate() {
+        s.push_str(&format!("  [{}] {source}\n", i + 1));
+    }
     s
 }

@@ -103,7 +103,19 @@ pub struct PredictArgs {
     #[command(flatten)]
     pub ph: PhArg,
     #[command(flatten)]
+    pub library: LibraryArg,
+    #[command(flatten)]
     pub batch: BatchArgs,
+}
+
+/// The fragment library flag.
+#[derive(Debug, Args)]
+pub struct LibraryArg {
+    /// Use your own fragment library: a directory laid out like `fragments/` (sites/*.toml,
+    /// substituents/*.toml, calibration.toml) replaces the built-in library; a single TOML
+    /// file of [[class]] and [[substituent]] tables adds to it.
+    #[arg(long, value_name = "PATH")]
+    pub library: Option<PathBuf>,
 }
 
 /// The pH flag.
@@ -166,6 +178,8 @@ pub struct ExplainArgs {
     pub smiles: String,
     #[command(flatten)]
     pub ph: PhArg,
+    #[command(flatten)]
+    pub library: LibraryArg,
 }
 
 /// `pkarta debug ...`.

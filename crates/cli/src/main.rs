@@ -9,6 +9,7 @@ mod flags;
 mod fmt;
 mod input;
 mod inspect;
+mod library;
 mod predict;
 mod progress;
 

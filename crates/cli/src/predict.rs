@@ -26,6 +26,8 @@ pub const COLUMNS: &[&str] = &[
 
 /// Runs `predict`; returns whether any record failed.
 pub fn run(args: &PredictArgs) -> anyhow::Result<bool> {
+    // The library first: a broken fragment file is a usage error before any input is read.
+    let library = crate::library::load(args.library.library.as_deref())?;
     let opened = input::open(&args.input)?;
     let format = args.format.unwrap_or_else(|| {
         if io::stdout().is_terminal() {
@@ -65,6 +67,7 @@ pub fn run(args: &PredictArgs) -> anyhow::Result<bool> {
     };
     let job = PredictJob {
         options: Options { ph: args.ph.ph },
+        library,
     };
     let threads = args.batch.threads.map(usize::from);
     let summary = batch::run(opened.source, threads, &job, sink.as_mut(), &progress)?;
@@ -76,6 +79,8 @@ pub fn run(args: &PredictArgs) -> anyhow::Result<bool> {
 pub struct PredictJob {
     /// Options of every estimate.
     pub options: Options,
+    /// The user's fragment library, if not the built-in one.
+    pub library: Option<pkarta::model::Library>,
 }
 
 impl Outcome for Record {
@@ -90,7 +95,12 @@ impl Job for PredictJob {
     fn run(&self, item: &Item) -> Record {
         match &item.problem {
             Some(problem) => failed(item, self.options.ph, problem.clone()),
-            None => pkarta::estimate(&item.text, item.id.as_deref(), &self.options),
+            None => match &self.library {
+                Some(library) => {
+                    pkarta::estimate_with(library, &item.text, item.id.as_deref(), &self.options)
+                }
+                None => pkarta::estimate(&item.text, item.id.as_deref(), &self.options),
+            },
         }
     }
 
@@ -302,27 +312,34 @@ pub fn render(number: u64, record: &Record) -> String {
             s.push_str(&format!("  parent: {parent}\n"));
         }
     }
-    if record.sites.is_empty() && record.sites_outside_window.is_empty() {
-        s.push_str("  no ionizable sites found\n");
+    if record.sites.is_empty() {
+        s.push_str("  no ionizable sites in the aqueous window\n");
     } else {
-        let mut rows = vec![["atom", "kind", "pKa", "+/-", "class", ""]
+        let mut rows = vec![["atom", "kind", "pKa", "+/-", "class"]
             .map(String::from)
             .to_vec()];
-        let outside = record
-            .sites_outside_window
-            .iter()
-            .map(|s| (s, "outside the aqueous window"));
-        for (site, note) in record.sites.iter().map(|s| (s, "")).chain(outside) {
+        for site in &record.sites {
             rows.push(vec![
                 site.atom.to_string(),
                 kind_name(site.kind).to_string(),
                 num(site.pka),
                 num(site.uncertainty),
                 site.class_name.clone(),
-                note.to_string(),
             ]);
         }
         s.push_str(&align(&rows, &[0, 2, 3], "  "));
+    }
+    if !record.sites_outside_window.is_empty() {
+        // Kept out of the table: they do not ionize in water, and they would crowd it.
+        let atoms: Vec<String> = record
+            .sites_outside_window
+            .iter()
+            .map(|site| format!("{} ({} {})", site.atom, kind_name(site.kind), num(site.pka)))
+            .collect();
+        s.push_str(&format!(
+            "  outside the aqueous window (-2 to 16): atom {}\n",
+            atoms.join(", atom ")
+        ));
     }
     let macro_pka = if record.macro_pka.is_empty() {
         "none".to_string()
