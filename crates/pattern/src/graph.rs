@@ -52,13 +52,6 @@ pub(crate) struct Graph {
 }
 
 impl Graph {
-    /// Whether molecule atom `atom` could be the root, by the filter alone.
-    pub(crate) fn root_admits(&self, molecule: &mol::Molecule, atom: usize) -> bool {
-        self.filters
-            .get(self.root)
-            .is_some_and(|f| f.admits(molecule, atom))
-    }
-
     /// Builds the search plan rooted at `root`. The graph must be connected (the parser
     /// refuses `.`).
     pub(crate) fn new(atoms: Vec<PatternAtom>, bonds: Vec<PatternBond>, root: usize) -> Graph {

@@ -71,6 +71,9 @@ pub struct Pattern {
     main: Graph,
     /// Recursive environments, referred to by index from `$()` primitives.
     subs: Vec<Graph>,
+    /// The anchored atom's filter, kept inline: `could_anchor` runs for every
+    /// (pattern, atom) pair, so one pointer less matters.
+    anchor_filter: filter::AtomFilter,
 }
 
 impl std::str::FromStr for Pattern {
@@ -98,10 +101,12 @@ impl Pattern {
     /// Compiles pattern text.
     pub fn parse(text: &str) -> Result<Pattern, PatternError> {
         let (main, subs) = parse::parse(text)?;
+        let anchor_filter = main.filters[main.root];
         Ok(Pattern {
             text: text.to_string(),
             main,
             subs,
+            anchor_filter,
         })
     }
     /// The text it was compiled from.
@@ -182,7 +187,7 @@ impl Pattern {
     /// (element, aromaticity, charge). Lets callers skip most atoms without a search.
     /// `false` is certain; `true` means a search is needed.
     pub fn could_anchor(&self, molecule: &Molecule, atom: usize) -> bool {
-        atom < molecule.atoms().len() && self.main.root_admits(molecule, atom)
+        atom < molecule.atoms().len() && self.anchor_filter.admits(molecule, atom)
     }
 }
 
