@@ -18,7 +18,10 @@ fn main() {
         .unwrap_or(0);
     let data = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../../../shared/data");
     let lib = Library::builtin();
-    for (file, column_kind) in [("iupac-acids.csv", Kind::Acid), ("iupac-bases.csv", Kind::Base)] {
+    for (file, column_kind) in [
+        ("iupac-acids.csv", Kind::Acid),
+        ("iupac-bases.csv", Kind::Base),
+    ] {
         let path = data.join(file);
         let Ok(text) = std::fs::read_to_string(&path) else {
             println!("skipped: {} not found", path.display());
@@ -29,10 +32,18 @@ fn main() {
         let (mut n, mut covered, mut abs) = (0usize, 0usize, 0.0f64);
         for line in text.lines().skip(1) {
             let mut cols = line.split(',');
-            let (Some(smiles), Some(value)) = (cols.next(), cols.next()) else { continue };
-            let Ok(measured) = value.parse::<f64>() else { continue };
-            let Ok(read) = mol::parse(smiles) else { continue };
-            let Ok(std) = mol::standardize(&read) else { continue };
+            let (Some(smiles), Some(value)) = (cols.next(), cols.next()) else {
+                continue;
+            };
+            let Ok(measured) = value.parse::<f64>() else {
+                continue;
+            };
+            let Ok(read) = mol::parse(smiles) else {
+                continue;
+            };
+            let Ok(std) = mol::standardize(&read) else {
+                continue;
+            };
             n += 1;
             let found = find_sites(lib, &std.parent);
             let scored = score_sites(lib, &std.parent, &found);
@@ -54,17 +65,28 @@ fn main() {
             slot.0 += 1;
             slot.1 += e.abs();
             slot.2 += e;
-            rows.push((e.abs(), e, smiles.to_string(), best.class.clone(), measured, best.pka));
+            rows.push((
+                e.abs(),
+                e,
+                smiles.to_string(),
+                best.class.clone(),
+                measured,
+                best.pka,
+            ));
         }
         println!(
             "{file}: {covered}/{n} with a site, MAE of the strongest site {:.2}",
             abs / covered.max(1) as f64
         );
         let mut classes: Vec<_> = per_class.into_iter().collect();
-        classes.sort_by(|a, b| b.1 .0.cmp(&a.1 .0));
+        classes.sort_by_key(|c| std::cmp::Reverse(c.1 .0));
         println!("  {:<40} {:>5} {:>6} {:>6}", "class", "n", "MAE", "bias");
         for (class, (k, a, s)) in classes {
-            println!("  {class:<40} {k:>5} {:>6.2} {:>6.2}", a / k as f64, s / k as f64);
+            println!(
+                "  {class:<40} {k:>5} {:>6.2} {:>6.2}",
+                a / k as f64,
+                s / k as f64
+            );
         }
         rows.sort_by(|a, b| b.0.total_cmp(&a.0));
         for (_, e, smiles, class, measured, predicted) in rows.iter().take(worst) {

@@ -173,6 +173,9 @@ pub struct Calibration {
     pub parent_pka: f64,
     /// Fitted rho.
     pub rho: f64,
+    /// Fitted ortho term, for classes scored on aromatic scales.
+    #[serde(default)]
+    pub ortho_term: Option<f64>,
     /// Number of measurements fitted.
     pub points: usize,
     /// Residual error of the fit (RMS, pKa units).
@@ -348,7 +351,7 @@ impl Library {
         for (name, text) in sites {
             let file: SiteFile = toml::from_str(text)
                 .map_err(|e| LibraryError::new(format!("{name}: {}", e.to_string().trim_end())))?;
-            origin.extend(std::iter::repeat(name.to_string()).take(file.class.len()));
+            origin.extend(std::iter::repeat_n(name.to_string(), file.class.len()));
             classes.extend(file.class);
         }
         let mut entries = Vec::new();
@@ -356,7 +359,10 @@ impl Library {
         for (name, text) in substituents {
             let file: SubstituentFile = toml::from_str(text)
                 .map_err(|e| LibraryError::new(format!("{name}: {}", e.to_string().trim_end())))?;
-            sub_origin.extend(std::iter::repeat(name.to_string()).take(file.substituent.len()));
+            sub_origin.extend(std::iter::repeat_n(
+                name.to_string(),
+                file.substituent.len(),
+            ));
             entries.extend(file.substituent);
         }
         let mut fits = Vec::new();
