@@ -64,8 +64,15 @@ struct Builder {
     stack: Vec<usize>,
     opens: HashMap<Rnum, Open>,
     joins: usize,
-    // (kind, index of the join whose digit is at fault)
-    error: Option<(ErrorKind, usize)>,
+    // (problem, index of the join whose digit is at fault)
+    error: Option<(JoinError, usize)>,
+}
+
+/// A ring bond that cannot be made; named after reading, from the text at its digit.
+#[derive(Clone, Copy)]
+enum JoinError {
+    SelfLoop,
+    Conflict,
 }
 
 impl Follower for Builder {
@@ -110,17 +117,9 @@ impl Follower for Builder {
                 };
                 if self.error.is_none() {
                     if open.atom == head {
-                        self.error = Some((
-                            ErrorKind::Other(format!("ring bond '{rnum}' joins an atom to itself")),
-                            join,
-                        ));
+                        self.error = Some((JoinError::SelfLoop, join));
                     } else if merged.is_none() {
-                        self.error = Some((
-                            ErrorKind::Other(format!(
-                                "ring bond '{rnum}' is written with two different bond symbols"
-                            )),
-                            join,
-                        ));
+                        self.error = Some((JoinError::Conflict, join));
                     }
                 }
                 if let Some(s) = merged {
@@ -148,8 +147,9 @@ fn byte_offsets(smiles: &str) -> Vec<usize> {
 /// Reads SMILES text into atoms and bonds as written.
 pub(crate) fn read(smiles: &str) -> Result<Written, Error> {
     let info = scan(smiles)?;
+    let text = ring_number_workaround(smiles)?;
     let (builder, trace, result) = if info.chars <= MAX_INLINE_LENGTH {
-        run_purr(smiles)
+        run_purr(&text)
     } else {
         // Deep recursion: a helper thread with a stack sized for it. purr uses a few
         // hundred bytes per character in release builds and about 1 KiB in debug builds
@@ -159,7 +159,7 @@ pub(crate) fn read(smiles: &str) -> Result<Written, Error> {
             .name("mol-read".to_string())
             .stack_size(stack)
             .spawn({
-                let text = smiles.to_string();
+                let text = text.to_string();
                 move || run_purr(&text)
             });
         match handle.map(|h| h.join()) {
@@ -188,8 +188,16 @@ pub(crate) fn read(smiles: &str) -> Result<Written, Error> {
                 Span::new(at(r.start), at(r.end))
             })
     };
-    if let Some((kind, join)) = builder.error {
-        return Err(Error::new(kind, smiles, rnum_span(join)));
+    if let Some((problem, join)) = builder.error {
+        let span = rnum_span(join);
+        let digit = smiles.get(span.start..span.end).unwrap_or("");
+        let message = match problem {
+            JoinError::SelfLoop => format!("ring bond '{digit}' joins an atom to itself"),
+            JoinError::Conflict => {
+                format!("ring bond '{digit}' is written with two different bond symbols")
+            }
+        };
+        return Err(Error::new(ErrorKind::Other(message), smiles, span));
     }
     if let Some(open) = builder.opens.values().min_by_key(|o| o.join) {
         return Err(Error::new(
@@ -238,6 +246,35 @@ pub(crate) fn read(smiles: &str) -> Result<Written, Error> {
         spans,
         bonds,
     })
+}
+
+/// purr 0.9 reads the ring number `%73` as `%74` (its table maps 73 to R74), so a SMILES
+/// using both would join the wrong atoms. When both occur, `%73` is rewritten to a
+/// two-digit number the text does not use; the rewrite keeps every offset, so spans and
+/// carets still point into the original text.
+fn ring_number_workaround(smiles: &str) -> Result<std::borrow::Cow<'_, str>, Error> {
+    if !(smiles.contains("%73") && smiles.contains("%74")) {
+        return Ok(std::borrow::Cow::Borrowed(smiles));
+    }
+    let spare = (10..100)
+        .filter(|&n| n != 73 && n != 74)
+        .find(|n| !smiles.contains(&format!("%{n}")));
+    match spare {
+        Some(n) => Ok(std::borrow::Cow::Owned(
+            smiles.replace("%73", &format!("%{n}")),
+        )),
+        None => {
+            let at = smiles.find("%73").unwrap_or(0);
+            Err(Error::new(
+                ErrorKind::Other(
+                    "ring bond '%73' cannot be read while every other number from %10 to %99 is also used"
+                        .to_string(),
+                ),
+                smiles,
+                Span::new(at, at + 3),
+            ))
+        }
+    }
 }
 
 fn run_purr(smiles: &str) -> (Builder, Trace, Result<(), purr::read::Error>) {
