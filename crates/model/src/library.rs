@@ -586,7 +586,10 @@ fn validate(
                 fit.class
             )));
         }
-        if !fit.parent_pka.is_finite() || !fit.rho.is_finite() {
+        if !fit.parent_pka.is_finite()
+            || !fit.rho.is_finite()
+            || fit.ortho_term.is_some_and(|t| !t.is_finite())
+        {
             return Err(LibraryError::new(format!(
                 "calibration for `{}`: values are not finite numbers",
                 fit.class
