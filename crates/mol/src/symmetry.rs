@@ -76,3 +76,60 @@ fn rank<T: Ord>(keys: &[T]) -> Vec<u32> {
 fn distinct(classes: &[u32]) -> usize {
     classes.iter().max().map_or(0, |&m| m as usize + 1)
 }
+
+#[cfg(test)]
+mod tests {
+    use crate::{parse, symmetry_classes};
+
+    fn classes(s: &str) -> Vec<u32> {
+        symmetry_classes(&parse(s).expect("test SMILES reads"))
+    }
+
+    #[test]
+    fn piperazine_nitrogens_are_equivalent() {
+        let c = classes("C1CNCCN1");
+        assert_eq!(c[2], c[5]);
+        assert_eq!(c[0], c[1]);
+        assert_ne!(c[0], c[2]);
+    }
+
+    #[test]
+    fn succinic_acid_carboxyls_are_equivalent() {
+        // O0 C1 (=O2) C3 C4 C5 (O6) =O7
+        let c = classes("OC(=O)CCC(O)=O");
+        assert_eq!(c[1], c[5]);
+        assert_eq!(c[0], c[6]);
+        assert_eq!(c[2], c[7]);
+        assert_ne!(c[0], c[2]);
+    }
+
+    #[test]
+    fn substituted_pyridine_positions_differ() {
+        // 4-methylpyridine: C2/C6 alike, C3/C5 alike, N and C4 apart.
+        let c = classes("Cc1ccncc1");
+        assert_eq!(c[2], c[6]);
+        assert_eq!(c[3], c[5]);
+        assert_ne!(c[2], c[3]);
+        assert_ne!(c[4], c[1]);
+        // 3-methylpyridine has no mirror: every ring atom differs.
+        let c = classes("Cc1cccnc1");
+        let ring = &c[1..];
+        let mut sorted = ring.to_vec();
+        sorted.sort_unstable();
+        sorted.dedup();
+        assert_eq!(sorted.len(), ring.len());
+    }
+
+    #[test]
+    fn classes_do_not_depend_on_atom_order() {
+        let a = classes("OCC(=O)O");
+        let b = classes("OC(=O)CO");
+        let mut x = a.clone();
+        let mut y = b.clone();
+        x.sort_unstable();
+        y.sort_unstable();
+        assert_eq!(x, y);
+        // The alcohol O (atom 0 / atom 4) has the same class number in both.
+        assert_eq!(a[0], b[4]);
+    }
+}

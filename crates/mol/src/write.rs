@@ -1,7 +1,7 @@
 //! Writing a molecule as SMILES.
 //!
 //! A depth-first walk per component (iterative, so any size is safe), branches in
-//! parentheses, ring closures with the lowest free digit (`%nn` past 9). Aromatic atoms are
+//! parentheses, ring closures with the lowest free number (`%nn` past 9). Aromatic atoms are
 //! written lower case with the bonds between them elided; an atom goes in brackets when its
 //! charge, isotope, class or hydrogen count is not what a reader would infer without them.
 //! Stereo marks are not written (the molecule does not keep them).
@@ -215,7 +215,8 @@ fn write_component(
         }
     }
     // Pass 2: emit in the same order.
-    let mut digit_of: Vec<Option<u8>> = vec![None; m.bonds.len()];
+    let mut digit_of: Vec<Option<usize>> = vec![None; m.bonds.len()];
+    // Index 0 is never used; past 99 the list grows (see `push_digit`).
     let mut free: Vec<bool> = vec![true; 100];
     free[0] = false;
     let mut tasks = vec![Task::Atom {
@@ -246,8 +247,14 @@ fn write_component(
                     push_digit(out, d);
                 }
                 None => {
-                    let d = (1..100).find(|&d| free[d]).unwrap_or(99) as u8;
-                    free[d as usize] = false;
+                    let d = match (1..free.len()).find(|&d| free[d]) {
+                        Some(d) => d,
+                        None => {
+                            free.push(true);
+                            free.len() - 1
+                        }
+                    };
+                    free[d] = false;
                     digit_of[b] = Some(d);
                     out.push_str(bond_text(m, b, lower));
                     push_digit(out, d);
@@ -256,7 +263,7 @@ fn write_component(
         }
         // Freed only now, so no digit closes and reopens on one atom.
         for d in freed {
-            free[d as usize] = true;
+            free[d] = true;
         }
         let kids = &children[v];
         if let Some((&(last, lb), rest)) = kids.split_last() {
@@ -276,11 +283,65 @@ fn write_component(
     }
 }
 
-fn push_digit(out: &mut String, d: u8) {
+/// Ring numbers 1 to 9 as digits, 10 to 99 as `%nn`. SMILES has no number past 99; a
+/// molecule that needs more ring bonds open at once (only large two-dimensional sheets)
+/// gets `%(nnn)`, the extension RDKit reads, which this crate's reader refuses.
+fn push_digit(out: &mut String, d: usize) {
     if d < 10 {
-        out.push((b'0' + d) as char);
-    } else {
+        out.push((b'0' + d as u8) as char);
+    } else if d < 100 {
         out.push('%');
         out.push_str(&d.to_string());
+    } else {
+        out.push_str(&format!("%({d})"));
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use crate::{parse, write_smiles};
+
+    fn written(s: &str) -> String {
+        write_smiles(&parse(s).expect("test SMILES reads"))
+    }
+
+    #[test]
+    fn aromatic_rings_are_written_lower_case_with_nh() {
+        assert_eq!(written("C1=CC=CN1"), "c1ccc[nH]1");
+        assert_eq!(written("O=C1C=CC=CN1"), "O=c1cccc[nH]1");
+    }
+
+    #[test]
+    fn single_bond_between_aromatic_atoms_is_explicit() {
+        assert_eq!(written("c1ccccc1c1ccccc1"), "c1ccccc1-c1ccccc1");
+    }
+
+    #[test]
+    fn ladder_needs_two_digit_ring_numbers() {
+        // Eleven ring bonds open at once when the walk runs down one rail of the ladder.
+        let s = "C1C2C3C4C5C6C7C8C9C%10C%11CCC%11C%10C9C8C7C6C5C4C3C2C1";
+        let w = written(s);
+        assert!(w.contains("%10") && w.contains("%11"), "{w}");
+        assert_eq!(parse(&w).map(|m| m.rings().len()), Ok(11));
+    }
+
+    #[test]
+    fn moved_protons_go_in_brackets() {
+        let acid = parse("CC(=O)O").expect("reads");
+        assert_eq!(write_smiles(&acid.with_protons(&[(3, -1)])), "CC(=O)[O-]");
+        let amine = parse("CN").expect("reads");
+        assert_eq!(write_smiles(&amine.with_protons(&[(1, 1)])), "C[NH3+]");
+        let pyridine = parse("c1ccncc1").expect("reads");
+        assert_eq!(
+            write_smiles(&pyridine.with_protons(&[(3, 1)])),
+            "c1cc[nH+]cc1"
+        );
+    }
+
+    #[test]
+    fn isotopes_classes_and_charges_are_kept() {
+        assert_eq!(written("[13CH3:4][O-]"), "[13CH3:4][O-]");
+        assert_eq!(written("[Fe+3]"), "[Fe+3]");
+        assert_eq!(written("[O-2]"), "[O-2]");
     }
 }
