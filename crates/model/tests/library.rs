@@ -107,6 +107,10 @@ fn every_value_is_cited() {
                 c.id
             );
         }
+        if c.ortho_term != 0.0 {
+            // The ortho term is a constant of its own: its origin is told in the notes.
+            assert!(c.notes.contains("ortho"), "{}: ortho_term without a note", c.id);
+        }
         if c.geminal_interaction.is_some() {
             assert!(
                 !c.geminal_source.trim().is_empty(),
