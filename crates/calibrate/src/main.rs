@@ -23,7 +23,7 @@ use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 
 use anyhow::{bail, Context, Result};
-use model::{Kind, Library, TermRole};
+use model::{Kind, Library, Scale, TermRole};
 use nalgebra::{DMatrix, DVector};
 
 /// Classes with fewer points than this keep their published values.
@@ -47,6 +47,8 @@ struct Point {
     class: usize,
     /// Sum of sigma over the site's substituent terms.
     x: f64,
+    /// Number of ortho substituents (the class's ortho term applies to each).
+    ortho: f64,
     /// Measured value less the fixed corrections and the coupling/statistical shift
     /// between the site value and the predicted macroscopic constant.
     y: f64,
@@ -57,10 +59,11 @@ struct Options {
     folds: usize,
     write: bool,
     table: Option<PathBuf>,
+    dump: Option<PathBuf>,
 }
 
 fn parse_args() -> Result<Options> {
-    let mut o = Options { data: PathBuf::from("../shared/data"), folds: 5, write: false, table: None };
+    let mut o = Options { data: PathBuf::from("../shared/data"), folds: 5, write: false, table: None, dump: None };
     let mut args = std::env::args().skip(1);
     while let Some(a) = args.next() {
         match a.as_str() {
@@ -68,8 +71,9 @@ fn parse_args() -> Result<Options> {
             "--folds" => o.folds = args.next().context("--folds needs a number")?.parse()?,
             "--write" => o.write = true,
             "--table" => o.table = Some(PathBuf::from(args.next().context("--table needs a file")?)),
+            "--dump" => o.dump = Some(PathBuf::from(args.next().context("--dump needs a file")?)),
             "-h" | "--help" => {
-                println!("pkarta-calibrate [--data DIR] [--folds K] [--write] [--table FILE]");
+                println!("pkarta-calibrate [--data DIR] [--folds K] [--write] [--table FILE] [--dump FILE]");
                 std::process::exit(0);
             }
             other => bail!("unknown argument {other}"),
@@ -104,6 +108,7 @@ struct Prediction {
     site_pka: f64,
     class: String,
     x: f64,
+    ortho: f64,
     corrections: f64,
 }
 
@@ -120,25 +125,32 @@ fn predict(library: &Library, m: &Measurement) -> Option<Prediction> {
             Kind::Base => of_kind.max_by(|a, b| a.pka.total_cmp(&b.pka)).cloned(),
         }
     };
-    let (site, in_window) = match pick(&r.sites) {
-        Some(s) => (s, true),
-        None => (pick(&r.sites_outside_window)?, false),
-    };
+    // A molecule is covered when it has a site of the measured kind inside the aqueous
+    // window; the measured constants all lie inside it.
+    let site = pick(&r.sites)?;
+    let in_window = true;
+    // The macroscopic constant that belongs to the site: the one nearest its own value
+    // (coupling and statistical factors move it; sites of the other kind can sit anywhere).
     let macro_value = if in_window {
-        match m.kind {
-            Kind::Acid => r.macro_pka.first().copied(),
-            Kind::Base => r.macro_pka.last().copied(),
-        }
+        r.macro_pka.iter().copied().min_by(|a, b| (a - site.pka).abs().total_cmp(&(b - site.pka).abs()))
     } else {
         None
     };
     let x = site.terms.iter().filter(|t| t.role == TermRole::Substituent).filter_map(|t| t.sigma).sum();
-    let corrections = site.terms.iter().filter(|t| t.role == TermRole::Correction).map(|t| t.contribution).sum();
+    let ortho = site.terms.iter().filter(|t| t.ortho_substituent).count() as f64;
+    // Fixed corrections, less the ortho ones: the fit sets those itself.
+    let corrections = site
+        .terms
+        .iter()
+        .filter(|t| t.role == TermRole::Correction && !t.label.starts_with("ortho correction"))
+        .map(|t| t.contribution)
+        .sum();
     Some(Prediction {
         value: macro_value.unwrap_or(site.pka),
         site_pka: site.pka,
         class: site.class,
         x,
+        ortho,
         corrections,
     })
 }
@@ -153,38 +165,50 @@ fn points(library: &Library, data: &[Measurement]) -> Vec<Point> {
         .filter_map(|m| {
             let p = predict(library, m)?;
             let shift = p.value - p.site_pka;
-            Some(Point { class: index[&p.class], x: p.x, y: m.pka - p.corrections - shift })
+            Some(Point { class: index[&p.class], x: p.x, ortho: p.ortho, y: m.pka - p.corrections - shift })
         })
         .collect()
 }
 
-/// Fits y = p0 - rho * x for one class; returns (p0, rho).
-fn fit_class(pts: &[&Point], p0: f64, rho0: f64) -> (f64, f64) {
+/// Fits y = p0 - rho * x + ortho_term * n_ortho for one class; returns (p0, rho, ortho_term).
+/// The ortho term is fitted only where the class is scored on an aromatic scale.
+fn fit_class(pts: &[&Point], p0: f64, rho0: f64, ortho0: f64, with_ortho: bool) -> (f64, f64, f64) {
     let n = pts.len();
-    let mut w = vec![1.0; n];
-    let (mut p, mut r) = (p0, rho0);
+    let cols = if with_ortho { 3 } else { 2 };
+    let mut w = vec![1.0f64; n];
+    let (mut p, mut r, mut t) = (p0, rho0, ortho0);
     for _ in 0..10 {
-        // Rows: sqrt(w) * [1, -x] . [p0, rho] = sqrt(w) * y, plus one prior row on rho.
-        let mut a = DMatrix::<f64>::zeros(n + 1, 2);
-        let mut b = DVector::<f64>::zeros(n + 1);
+        // Rows: sqrt(w) * [1, -x, n_ortho] . [p0, rho, ortho] = sqrt(w) * y, plus prior rows.
+        let mut a = DMatrix::<f64>::zeros(n + cols - 1, cols);
+        let mut b = DVector::<f64>::zeros(n + cols - 1);
         for (i, pt) in pts.iter().enumerate() {
             let s = w[i].sqrt();
             a[(i, 0)] = s;
             a[(i, 1)] = -pt.x * s;
-            b[i] = pt.y * s;
+            b[i] = (pt.y + if with_ortho { 0.0 } else { ortho0 * pt.ortho }) * s;
+            if with_ortho {
+                a[(i, 2)] = pt.ortho * s;
+            }
         }
         let lambda = (RHO_PRIOR * n as f64).sqrt();
         a[(n, 1)] = lambda;
         b[n] = lambda * rho0;
+        if with_ortho {
+            a[(n + 1, 2)] = lambda;
+            b[n + 1] = lambda * ortho0;
+        }
         let Ok(sol) = a.svd(true, true).solve(&b, 1e-12) else { break };
         p = sol[0];
         r = sol[1];
+        if with_ortho {
+            t = sol[2];
+        }
         for (i, pt) in pts.iter().enumerate() {
-            let res = (pt.y - (p - r * pt.x)).abs();
+            let res = (pt.y - (p - r * pt.x + t * pt.ortho)).abs();
             w[i] = if res <= HUBER { 1.0 } else { HUBER / res };
         }
     }
-    (p, r)
+    (p, r, t)
 }
 
 /// Calibrates a copy of `published` on `data`; returns it with fitted classes changed.
@@ -203,10 +227,12 @@ fn calibrate(published: &Library, data: &[Measurement]) -> (Library, BTreeMap<us
                 continue;
             }
             let pub_class = &published.classes[class];
-            let (p0, rho) = fit_class(&cp, pub_class.parent_pka, pub_class.rho);
-            let rmse = (cp.iter().map(|p| (p.y - (p0 - rho * p.x)).powi(2)).sum::<f64>() / cp.len() as f64).sqrt();
+            let aromatic = matches!(pub_class.scale, Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus);
+            let (p0, rho, ortho) = fit_class(&cp, pub_class.parent_pka, pub_class.rho, pub_class.ortho_term, aromatic);
+            let rmse = (cp.iter().map(|p| (p.y - (p0 - rho * p.x + ortho * p.ortho)).powi(2)).sum::<f64>() / cp.len() as f64).sqrt();
             lib.classes[class].parent_pka = p0;
             lib.classes[class].rho = rho;
+            lib.classes[class].ortho_term = ortho;
             stats.insert(class, (cp.len(), rmse));
         }
     }
@@ -264,6 +290,7 @@ fn main() -> Result<()> {
     let mut per_file: BTreeMap<&'static str, Tally> = BTreeMap::new();
     let mut covered: BTreeMap<&'static str, (usize, usize)> = BTreeMap::new();
     let mut worst: Vec<(f64, String, String)> = Vec::new();
+    let mut dump: Vec<String> = vec!["smiles,class,kind,measured,predicted,site_pka".into()];
     for k in 0..o.folds {
         let train: Vec<Measurement> = data.iter().filter(|m| fold_of(&m.smiles, o.folds) != k).cloned().collect();
         let (lib, _) = calibrate(&published, &train);
@@ -276,6 +303,7 @@ fn main() -> Result<()> {
             let e = p.value - m.pka;
             per_class.entry(p.class.clone()).or_default().add(e);
             per_file.entry(file).or_default().add(e);
+            dump.push(format!("{},{},{:?},{:.2},{:.2},{:.2}", m.smiles, p.class, m.kind, m.pka, p.value, p.site_pka));
             worst.push((e.abs(), m.smiles.clone(), p.class));
         }
         eprintln!("fold {}/{} done", k + 1, o.folds);
@@ -306,6 +334,9 @@ fn main() -> Result<()> {
     for (e, s, c) in worst.iter().take(15) {
         println!("  {e:5.2}  {c:40}  {s}");
     }
+    if let Some(path) = &o.dump {
+        std::fs::write(path, dump.join("\n") + "\n")?;
+    }
     if let Some(path) = &o.table {
         std::fs::write(path, &table)?;
     }
@@ -327,6 +358,9 @@ fn main() -> Result<()> {
             writeln!(out, "class = {:?}", c.id)?;
             writeln!(out, "parent_pka = {:.3}", c.parent_pka)?;
             writeln!(out, "rho = {:.3}", c.rho)?;
+            if matches!(c.scale, Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus) {
+                writeln!(out, "ortho_term = {:.3}", c.ortho_term)?;
+            }
             writeln!(out, "points = {n}")?;
             writeln!(out, "rmse = {rmse:.3}")?;
             writeln!(out, "cv_mae = {:.3}", if cv.is_nan() { *rmse } else { cv })?;

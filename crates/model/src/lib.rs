@@ -11,7 +11,7 @@ pub use library::{
     Kind, Library, LibraryError, Scale, SiteClass, SubstituentEntry, Calibration,
 };
 pub use sites::{find_sites, FoundSite};
-pub use substituents::{recognize, Recognized};
+pub use substituents::{entry_by_id, is_ring_member, recognize, Recognized};
 pub use score::{interactions, score_sites, Site, Term, TermRole};
 
 /// The aqueous window: sites whose estimate falls outside it are reported apart.

@@ -72,6 +72,10 @@ pub struct Term {
     /// What the term stands for.
     #[serde(skip)]
     pub role: TermRole,
+    /// A substituent ortho to the site's attachment (the ones the class's ortho term
+    /// applies to; ring members and fused rings are not).
+    #[serde(skip)]
+    pub ortho_substituent: bool,
 }
 
 /// A scored site.
@@ -105,6 +109,7 @@ struct Constants {
     parent_source: String,
     rho: f64,
     rho_source: String,
+    ortho_term: f64,
     uncertainty: f64,
 }
 
@@ -120,6 +125,7 @@ fn constants(library: &Library, class: &SiteClass) -> Constants {
                 parent_source: provenance.clone(),
                 rho: fit.rho,
                 rho_source: provenance,
+                ortho_term: fit.ortho_term.unwrap_or(class.ortho_term),
                 // The class's cross-validated error, as a standard deviation (for normal errors
                 // sd = MAE * sqrt(pi / 2)); never below the residual of the fit itself.
                 uncertainty: (fit.cv_mae * 1.2533).max(fit.rmse).max(0.1),
@@ -130,6 +136,7 @@ fn constants(library: &Library, class: &SiteClass) -> Constants {
             parent_source: class.parent_source.clone(),
             rho: class.rho,
             rho_source: class.rho_source.clone(),
+            ortho_term: class.ortho_term,
             uncertainty: class.uncertainty,
         },
     }
@@ -166,6 +173,7 @@ impl Account {
             rho: Some(rho),
             position: Some(position),
             role: TermRole::Substituent,
+            ortho_substituent: false,
         });
     }
 }
@@ -191,6 +199,7 @@ fn score_one(library: &Library, molecule: &Molecule, found: &FoundSite) -> Site 
             rho: None,
             position: None,
             role: TermRole::Parent,
+            ortho_substituent: false,
         }],
         warnings: Vec::new(),
         approximate: 0,
@@ -219,6 +228,7 @@ fn score_one(library: &Library, molecule: &Molecule, found: &FoundSite) -> Site 
             rho: None,
             position: None,
             role: TermRole::Correction,
+            ortho_substituent: false,
         });
     }
     // The estimate is the sum of its terms, added in the order they are listed, so that a
@@ -350,10 +360,11 @@ fn hammett(
         let distance = step.min(n - step);
         let pos = position(distance);
         let number = step + 1; // ring numbering from the anchor as 1, the way chemists name it
-        if found.matched.contains(&atom) {
-            continue;
-        }
-        if let Some(entry) = ring_member_entry(library, molecule, atom) {
+        // Ring atoms the class pattern names are part of its parent (the second N of a
+        // pyrimidine class): their own aza term is in the parent value, but what hangs on
+        // them is still scored.
+        let in_parent = found.matched.contains(&atom);
+        if let Some(entry) = ring_member_entry(library, molecule, atom).filter(|_| !in_parent) {
             push_hammett(account, entry, pos, class.scale, k.rho, format!("{number}-{}", entry.name), false);
         }
         for nb in molecule.neighbors(atom) {
@@ -389,15 +400,16 @@ fn hammett(
                     }
                     let ortho = pos == Position::Ortho;
                     push_hammett(account, r.entry, pos, class.scale, k.rho, format!("{number}-{}", r.entry.name), ortho);
-                    if ortho && class.ortho_term != 0.0 {
+                    if ortho && k.ortho_term != 0.0 {
                         account.terms.push(Term {
                             label: format!("ortho correction ({number}-{})", r.entry.name),
-                            contribution: class.ortho_term,
-                            source: format!("ortho term of the class: {}", class.rho_source),
+                            contribution: k.ortho_term,
+                            source: format!("ortho term of the class: {}", k.rho_source),
                             sigma: None,
                             rho: None,
                             position: Some("ortho".into()),
                             role: TermRole::Correction,
+                            ortho_substituent: false,
                         });
                     }
                 }
@@ -419,7 +431,7 @@ fn push_hammett(
     scale: Scale,
     rho: f64,
     label: String,
-    _ortho: bool,
+    ortho_substituent: bool,
 ) {
     match hammett_sigma(entry, pos, scale) {
         Some((sigma, which)) => {
@@ -431,6 +443,9 @@ fn push_hammett(
                 format!("{} ({which})", pos.name())
             };
             account.substituent(label, sigma, rho, position, entry);
+            if let Some(t) = account.terms.last_mut() {
+                t.ortho_substituent = ortho_substituent;
+            }
         }
         None => {
             account.approximate += 1;
@@ -482,6 +497,7 @@ fn taft(
                 rho: Some(k.rho),
                 position: Some("1 bond".into()),
                 role: TermRole::Substituent,
+                ortho_substituent: false,
             });
         }
     }
@@ -577,6 +593,7 @@ fn taft(
             rho: Some(k.rho),
             position: Some("2 bonds and beyond".into()),
             role: TermRole::Substituent,
+            ortho_substituent: false,
         });
     }
 }

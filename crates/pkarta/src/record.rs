@@ -174,8 +174,7 @@ fn cautions(sites: &[model::Site]) -> Vec<String> {
 }
 
 /// One molecule carried through reading, standardizing, site finding and scoring.
-pub(crate) struct Analysis<'l> {
-    pub(crate) library: &'l model::Library,
+pub(crate) struct Analysis {
     pub(crate) parent: mol::Molecule,
     pub(crate) origin: Vec<usize>,
     pub(crate) standardized: mol::Standardized,
@@ -183,10 +182,12 @@ pub(crate) struct Analysis<'l> {
     pub(crate) sites: Vec<model::Site>,
     /// Indices into `sites` of the sites inside the aqueous window, which speciation uses.
     pub(crate) window: Vec<usize>,
+    /// Indices into `sites` of the sites charged at every pH (beyond the window's strong end).
+    pub(crate) fixed: Vec<usize>,
     pub(crate) system: speciation::System,
 }
 
-pub(crate) fn analyze<'l>(library: &'l model::Library, input: &str) -> Result<Analysis<'l>, ErrorReport> {
+pub(crate) fn analyze(library: &model::Library, input: &str) -> Result<Analysis, ErrorReport> {
     let molecule = mol::parse(input).map_err(|e| ErrorReport { message: e.to_string() })?;
     let standardized = mol::standardize(&molecule).map_err(|e| ErrorReport { message: e.to_string() })?;
     let parent = standardized.parent.clone();
@@ -194,27 +195,53 @@ pub(crate) fn analyze<'l>(library: &'l model::Library, input: &str) -> Result<An
     let found = model::find_sites(library, &parent);
     let sites = model::score_sites(library, &parent, &found);
     let window: Vec<usize> = (0..sites.len()).filter(|&i| sites[i].in_window).collect();
-    let in_window: Vec<model::Site> = window.iter().map(|&i| sites[i].clone()).collect();
-    let interaction = model::interactions(library, &parent, &in_window);
-    let base_charge: i32 = parent.atoms().iter().map(|a| a.charge as i32).sum();
+    // Sites beyond the window on the strong side (a sulfonic acid below pKa -2, a base above
+    // 16) are charged at every pH water allows: they enter as fixed charges that shift the
+    // window's sites. Those beyond it on the weak side stay neutral and drop out.
+    let (low, high) = model::AQUEOUS_WINDOW;
+    let fixed: Vec<usize> = (0..sites.len())
+        .filter(|&i| match sites[i].kind {
+            model::Kind::Acid => sites[i].pka < low,
+            model::Kind::Base => sites[i].pka > high,
+        })
+        .collect();
+    let coupled: Vec<model::Site> = window.iter().chain(&fixed).map(|&i| sites[i].clone()).collect();
+    let w = model::interactions(library, &parent, &coupled);
+    let nw = window.len();
+    let interaction: Vec<Vec<f64>> = w[..nw].iter().map(|row| row[..nw].to_vec()).collect();
+    let fixed_charge: i32 = fixed
+        .iter()
+        .map(|&i| if sites[i].kind == model::Kind::Acid { -1 } else { 1 })
+        .sum();
+    let base_charge: i32 = parent.atoms().iter().map(|a| a.charge as i32).sum::<i32>() + fixed_charge;
     let system = speciation::System {
-        sites: in_window
+        sites: window
             .iter()
-            .map(|s| speciation::SiteInput {
-                kind: match s.kind {
-                    model::Kind::Acid => speciation::Kind::Acid,
-                    model::Kind::Base => speciation::Kind::Base,
-                },
-                pka: s.pka,
+            .enumerate()
+            .map(|(k, &i)| {
+                let s = &sites[i];
+                // Both charged: w > 0 for like charges; an acid's pKa rises by w, a base's
+                // falls by w.
+                let shift: f64 = (nw..coupled.len()).map(|j| w[k][j]).sum();
+                speciation::SiteInput {
+                    kind: match s.kind {
+                        model::Kind::Acid => speciation::Kind::Acid,
+                        model::Kind::Base => speciation::Kind::Base,
+                    },
+                    pka: match s.kind {
+                        model::Kind::Acid => s.pka + shift,
+                        model::Kind::Base => s.pka - shift,
+                    },
+                }
             })
             .collect(),
         interaction,
         base_charge,
     };
-    Ok(Analysis { library, parent, origin, standardized, found, sites, window, system })
+    Ok(Analysis { parent, origin, standardized, found, sites, window, fixed, system })
 }
 
-impl Analysis<'_> {
+impl Analysis {
     pub(crate) fn speciate(&self, ph: f64) -> speciation::Speciation {
         speciation::speciate(&self.system, ph)
     }
@@ -253,7 +280,9 @@ impl Analysis<'_> {
             .iter()
             .zip(charged)
             .filter(|(_, &c)| c)
-            .map(|(&i, _)| {
+            .map(|(&i, _)| i)
+            .chain(self.fixed.iter().copied())
+            .map(|i| {
                 let s = &self.sites[i];
                 (s.atom, if s.kind == model::Kind::Acid { -1 } else { 1 })
             })
