@@ -109,7 +109,11 @@ fn every_value_is_cited() {
         }
         if c.ortho_term != 0.0 {
             // The ortho term is a constant of its own: its origin is told in the notes.
-            assert!(c.notes.contains("ortho"), "{}: ortho_term without a note", c.id);
+            assert!(
+                c.notes.contains("ortho"),
+                "{}: ortho_term without a note",
+                c.id
+            );
         }
         if c.geminal_interaction.is_some() {
             assert!(
@@ -130,6 +134,30 @@ fn every_value_is_cited() {
             c.id,
             c.parent_pka
         );
+    }
+}
+
+/// Every value here was written from memory of a published source, derived from such
+/// values, or is common practice; the source text must say which (house rule).
+#[test]
+fn every_source_says_how_it_was_obtained() {
+    let how = ["from memory", "common practice", "derived", "by definition"];
+    for c in &Library::builtin().classes {
+        for (field, text) in [
+            ("parent_source", &c.parent_source),
+            ("rho_source", &c.rho_source),
+            ("geminal_source", &c.geminal_source),
+        ] {
+            if text.is_empty() {
+                continue;
+            }
+            let refers = text.starts_with("as acid.") || text.starts_with("as base.");
+            assert!(
+                refers || how.iter().any(|h| text.contains(h)),
+                "{}: {field} does not say how it was obtained: {text}",
+                c.id
+            );
+        }
     }
 }
 
