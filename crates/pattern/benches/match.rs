@@ -6,6 +6,8 @@
 //! finding uses them. One iteration handles one molecule, cycling through the sample, so the
 //! reported time is per molecule.
 //!
+//! A second run uses every site pattern in `fragments/sites/*.toml` (skipped when none).
+//!
 //! Run: `cargo bench -p pkarta-pattern --bench match`
 
 use std::hint::black_box;
@@ -49,6 +51,46 @@ const PATTERNS: &[&str] = &[
     "[CX4;!H0:1]C#N",
     "[N+:1](=O)[O-]",
 ];
+
+/// Every `pattern` string in the repository's `fragments/sites/*.toml`: the site classes
+/// the library actually runs. Empty when the directory is absent or unreadable.
+fn library_patterns() -> Vec<Pattern> {
+    fn walk(value: &toml::Value, out: &mut Vec<String>) {
+        match value {
+            toml::Value::Table(t) => {
+                for (k, v) in t {
+                    match v {
+                        toml::Value::String(s) if k == "pattern" => out.push(s.clone()),
+                        _ => walk(v, out),
+                    }
+                }
+            }
+            toml::Value::Array(a) => a.iter().for_each(|v| walk(v, out)),
+            _ => {}
+        }
+    }
+    let dir = concat!(env!("CARGO_MANIFEST_DIR"), "/../../fragments/sites");
+    let mut texts = Vec::new();
+    let mut files: Vec<_> = std::fs::read_dir(dir)
+        .map(|d| d.filter_map(|e| e.ok()).map(|e| e.path()).collect())
+        .unwrap_or_default();
+    files.sort();
+    for path in files
+        .iter()
+        .filter(|p| p.extension().is_some_and(|e| e == "toml"))
+    {
+        if let Some(value) = std::fs::read_to_string(path)
+            .ok()
+            .and_then(|t| t.parse::<toml::Value>().ok())
+        {
+            walk(&value, &mut texts);
+        }
+    }
+    texts
+        .iter()
+        .filter_map(|t| Pattern::parse(t).ok())
+        .collect()
+}
 
 fn load() -> Option<Vec<Molecule>> {
     let path = concat!(
@@ -144,6 +186,20 @@ fn main() {
             black_box(n)
         })
     });
+    let library = library_patterns();
+    if library.is_empty() {
+        eprintln!("library bench skipped: no patterns in fragments/sites");
+    } else {
+        eprintln!("{} site patterns from fragments/sites", library.len());
+        let mut i = 0;
+        c.bench_function("matches_at, fragments/sites patterns, one molecule", |b| {
+            b.iter(|| {
+                let (m, cands) = &prepared[i % prepared.len()];
+                i += 1;
+                black_box(sites(&library, m, cands))
+            })
+        });
+    }
     c.bench_function("parse all patterns", |b| {
         b.iter(|| {
             for t in PATTERNS {

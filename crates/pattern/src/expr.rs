@@ -26,6 +26,36 @@ impl<P> Expr<P> {
         }
     }
 
+    /// Whether any primitive satisfies `test`.
+    pub(crate) fn any_prim(&self, test: &impl Fn(&P) -> bool) -> bool {
+        match self {
+            Expr::Prim(p) => test(p),
+            Expr::Not(e) => e.any_prim(test),
+            Expr::And(es) | Expr::Or(es) => es.iter().any(|e| e.any_prim(test)),
+        }
+    }
+
+    /// Moves operands holding a costly primitive after the others, at every level. The
+    /// operators are side-effect free, so the answer is unchanged while short-circuiting
+    /// skips more of the costly ones (`[$(...);CX4]` tests the element first).
+    pub(crate) fn cheap_first(&mut self, costly: &impl Fn(&P) -> bool) {
+        match self {
+            Expr::Prim(_) => {}
+            Expr::Not(e) => e.cheap_first(costly),
+            Expr::And(es) | Expr::Or(es) => {
+                es.iter_mut().for_each(|e| e.cheap_first(costly));
+                // Stable, so equal-cost operands keep the written order. A costly primitive
+                // on its own ranks last; a compound holding one may still end early.
+                es.sort_by_key(|e| match e {
+                    Expr::Prim(p) if costly(p) => 2,
+                    Expr::Not(inner) if matches!(**inner, Expr::Prim(ref p) if costly(p)) => 2,
+                    e if e.any_prim(costly) => 1,
+                    _ => 0,
+                });
+            }
+        }
+    }
+
     /// Joins operands: one operand stays as it is, so simple atoms stay one primitive deep.
     pub(crate) fn and(mut operands: Vec<Expr<P>>) -> Expr<P> {
         if operands.len() == 1 {

@@ -45,76 +45,71 @@ pub(crate) struct Graph {
     pub(crate) bonds: Vec<PatternBond>,
     /// The anchored atom: mapped `:1`, else atom 0.
     pub(crate) root: usize,
-    /// Every atom but the root, in placement order (depth first from the root).
+    /// Every atom but the root, in placement order.
     pub(crate) steps: Vec<Step>,
     /// Cheap test per pattern atom.
     pub(crate) filters: Vec<AtomFilter>,
+    /// Pattern bonds per atom: a molecule atom with fewer neighbours cannot sit there.
+    pub(crate) min_degree: Vec<usize>,
 }
 
 impl Graph {
     /// Builds the search plan rooted at `root`. The graph must be connected (the parser
     /// refuses `.`).
-    pub(crate) fn new(atoms: Vec<PatternAtom>, bonds: Vec<PatternBond>, root: usize) -> Graph {
+    pub(crate) fn new(mut atoms: Vec<PatternAtom>, bonds: Vec<PatternBond>, root: usize) -> Graph {
+        for atom in &mut atoms {
+            atom.expr
+                .cheap_first(&|p| matches!(p, AtomPrim::Recursive(_)));
+        }
         let n = atoms.len();
         let mut adjacency: Vec<Vec<(usize, usize)>> = vec![Vec::new(); n];
         for (i, b) in bonds.iter().enumerate() {
             adjacency[b.a].push((b.b, i));
             adjacency[b.b].push((b.a, i));
         }
-        let mut placed = vec![false; n];
-        let mut tree_bond = vec![false; bonds.len()];
-        let mut order: Vec<(usize, usize, usize)> = Vec::with_capacity(n);
-        // Depth first, visiting neighbours in pattern order, so the search follows the text.
-        let mut stack: Vec<(usize, usize, usize)> = Vec::new();
-        if n > 0 {
-            placed[root] = true;
-            for &(next, bond) in adjacency[root].iter().rev() {
-                stack.push((next, root, bond));
-            }
-        }
-        while let Some((atom, parent, bond)) = stack.pop() {
-            if placed[atom] {
-                continue;
-            }
-            placed[atom] = true;
-            tree_bond[bond] = true;
-            order.push((atom, parent, bond));
-            for &(next, b) in adjacency[atom].iter().rev() {
-                if !placed[next] {
-                    stack.push((next, atom, b));
-                }
-            }
-        }
-        let mut position = vec![usize::MAX; n];
+        // Placement order: next comes the unplaced atom with the most bonds to placed atoms
+        // (ties to the lower index, so the text order decides). Fused rings then close as
+        // soon as they can, cutting partial matches that a plain depth-first order would
+        // carry around a whole ring system before its closures are checked.
+        const UNPLACED: usize = usize::MAX;
+        let mut position = vec![UNPLACED; n];
+        let mut steps: Vec<Step> = Vec::with_capacity(n.saturating_sub(1));
         if n > 0 {
             position[root] = 0;
         }
-        for (i, &(atom, _, _)) in order.iter().enumerate() {
-            position[atom] = i + 1;
-        }
-        let mut steps: Vec<Step> = order
-            .iter()
-            .map(|&(atom, parent, bond)| Step {
+        for k in 1..n {
+            let mut best: Option<(usize, usize)> = None;
+            for (atom, links) in adjacency.iter().enumerate() {
+                if position[atom] != UNPLACED {
+                    continue;
+                }
+                let placed = links
+                    .iter()
+                    .filter(|(nb, _)| position[*nb] != UNPLACED)
+                    .count();
+                if placed > 0 && !matches!(best, Some((count, _)) if count >= placed) {
+                    best = Some((placed, atom));
+                }
+            }
+            // The parser refuses disconnected patterns, so some atom is always reachable.
+            let Some((_, atom)) = best else { break };
+            let mut links: Vec<(usize, usize)> = adjacency[atom]
+                .iter()
+                .copied()
+                .filter(|(nb, _)| position[*nb] != UNPLACED)
+                .collect();
+            links.sort_by_key(|(nb, _)| position[*nb]);
+            let (parent, bond) = links[0];
+            steps.push(Step {
                 atom,
                 parent,
                 bond,
-                closures: Vec::new(),
-            })
-            .collect();
-        // A ring closure is checked at the step that places the later of its two atoms.
-        for (i, b) in bonds.iter().enumerate() {
-            if tree_bond[i] {
-                continue;
-            }
-            let (early, late) = if position[b.a] < position[b.b] {
-                (b.a, b.b)
-            } else {
-                (b.b, b.a)
-            };
-            if position[late] >= 1 && position[late] != usize::MAX {
-                steps[position[late] - 1].closures.push((early, i));
-            }
+                closures: links[1..].to_vec(),
+            });
+            position[atom] = k;
         }
+        // Each pattern bond must lead to a distinct molecule neighbour.
+        let min_degree = adjacency.iter().map(Vec::len).collect();
         let filters = atoms.iter().map(|a| AtomFilter::new(&a.expr)).collect();
         Graph {
             atoms,
@@ -122,6 +117,7 @@ impl Graph {
             root,
             steps,
             filters,
+            min_degree,
         }
     }
 }

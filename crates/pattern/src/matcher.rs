@@ -90,7 +90,8 @@ impl<'a> Search<'a> {
     #[inline]
     fn atom_ok(&mut self, graph: &Graph, at: usize, atom: usize) -> bool {
         let filter = &graph.filters[at];
-        if !filter.admits(self.molecule, atom) {
+        if self.molecule.degree(atom) < graph.min_degree[at] || !filter.admits(self.molecule, atom)
+        {
             return false;
         }
         filter.exact || self.atom_matches(&graph.atoms[at].expr, atom)

@@ -129,6 +129,17 @@ mod tests {
     }
 
     #[test]
+    fn environments_are_tested_after_cheap_primitives() {
+        assert_eq!(
+            atom_expr("[$(C=O);C,$(CN),N]"),
+            Expr::And(vec![
+                Expr::Or(vec![p(C), p(N), p(Recursive(1))]),
+                p(Recursive(0))
+            ])
+        );
+    }
+
+    #[test]
     fn double_negation_cancels() {
         assert_eq!(atom_expr("[!!C]"), p(C));
     }
