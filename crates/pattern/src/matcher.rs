@@ -5,7 +5,8 @@
 //! Depth-first backtracking over a spanning tree of the pattern, extending each partial
 //! match only along the molecule's neighbour lists and checking ring-closure bonds when both
 //! ends are placed (the scheme of J. R. Ullmann, "An Algorithm for Subgraph Isomorphism",
-//! J. ACM 1976, 23, 31, without its refinement step; common practice for small patterns).
+//! J. ACM 1976, 23, 31, cited from memory, without its refinement step; common practice for
+//! small patterns).
 
 use std::collections::HashSet;
 

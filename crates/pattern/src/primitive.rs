@@ -5,7 +5,8 @@
 //! Daylight Chemical Information Systems, "SMARTS - A Language for Describing Molecular
 //! Patterns", Daylight Theory Manual, ch. 4 (primitive meanings: `H` total hydrogen count,
 //! `D` explicit connections, `X` total connections, `R` SSSR ring membership, `r` smallest
-//! SSSR ring size, implicit bond = single or aromatic).
+//! SSSR ring size, implicit bond = single or aromatic). Cited from memory; the RDKit checks
+//! in `tests/` confirm the meanings on real molecules.
 
 use mol::{Bond, Molecule};
 
