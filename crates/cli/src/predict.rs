@@ -376,3 +376,88 @@ pub fn render(number: u64, record: &Record) -> String {
     }
     s
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use pkarta::model::Kind;
+    use pkarta::SpeciesReport;
+
+    fn site(atom: usize, kind: Kind, pka: f64) -> SiteReport {
+        SiteReport {
+            atom,
+            kind,
+            pka,
+            uncertainty: 0.5,
+            group: atom,
+            class: "test".into(),
+            class_name: "test".into(),
+            terms: Vec::new(),
+        }
+    }
+
+    fn record() -> Record {
+        let item = Item {
+            number: 1,
+            text: "X".into(),
+            id: None,
+            problem: None,
+            row: None,
+            end: 0,
+        };
+        let mut r = failed(&item, 7.4, String::new());
+        r.error = None;
+        r.smiles = Some("X".into());
+        r.sites = vec![
+            site(0, Kind::Acid, 9.5),
+            site(1, Kind::Acid, 3.25),
+            site(2, Kind::Base, 5.0),
+            site(3, Kind::Base, 10.456),
+        ];
+        r.macro_pka = vec![3.25, 5.0, 9.5, 10.456];
+        r.charge_at_ph = Some(-0.0001);
+        r.species = vec![SpeciesReport {
+            smiles: "Y".into(),
+            charge: 0,
+            fraction: 0.875,
+        }];
+        r.warnings = vec!["a".into(), "b".into()];
+        r
+    }
+
+    #[test]
+    fn cells_pick_the_strongest_acid_and_base() {
+        let cells = cells(&record());
+        assert_eq!(cells.len(), COLUMNS.len());
+        assert_eq!(
+            cells,
+            [
+                "X",
+                "3.25",
+                "10.46",
+                "3.25;5.00;9.50;10.46",
+                "0.00",
+                "Y",
+                "0.88",
+                "",
+                "a; b",
+                ""
+            ]
+        );
+    }
+
+    #[test]
+    fn error_cell_is_the_first_line_of_the_message() {
+        let item = Item {
+            number: 1,
+            text: "C1CC".into(),
+            id: None,
+            problem: None,
+            row: None,
+            end: 0,
+        };
+        let r = failed(&item, 7.4, "unclosed ring\nC1CC\n ^".into());
+        assert_eq!(cells(&r)[COLUMNS.len() - 1], "unclosed ring");
+        assert!(r.failed());
+    }
+}

@@ -28,18 +28,16 @@ impl Progress {
         let bar = match len {
             Some(len) => {
                 let bar = ProgressBar::with_draw_target(Some(len), target);
-                let style = ProgressStyle::with_template(
-                    "{bar:30} {percent:>3}%  {msg}  {elapsed_precise} elapsed, ETA {eta}",
-                )
-                .unwrap_or_else(|_| ProgressStyle::default_bar());
+                let style =
+                    ProgressStyle::with_template("{bar:24} {percent:>3}%  {msg}  ETA {eta}")
+                        .unwrap_or_else(|_| ProgressStyle::default_bar());
                 bar.set_style(style);
                 bar
             }
             None => {
                 let bar = ProgressBar::with_draw_target(None, target);
-                let style =
-                    ProgressStyle::with_template("{spinner} {msg}  {elapsed_precise} elapsed")
-                        .unwrap_or_else(|_| ProgressStyle::default_spinner());
+                let style = ProgressStyle::with_template("{spinner} {msg}  {elapsed_precise}")
+                    .unwrap_or_else(|_| ProgressStyle::default_spinner());
                 bar.set_style(style);
                 bar.enable_steady_tick(Duration::from_millis(250));
                 bar
