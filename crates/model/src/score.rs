@@ -355,6 +355,9 @@ fn hammett(
     let mut avoid: Vec<usize> = ring.to_vec();
     avoid.extend(found.matched.iter().copied());
     let fused = entry_by_id(library, "fused-ring");
+    // A site that is itself a ring member (pyridine N, azole N) has its ortho substituents
+    // on the next atom, where their inductive and field effect outweighs resonance.
+    let site_in_ring = ring.contains(&found.atom);
     for step in 1..n {
         let atom = ring[(start + step) % n];
         let distance = step.min(n - step);
@@ -399,7 +402,11 @@ fn hammett(
                         ));
                     }
                     let ortho = pos == Position::Ortho;
-                    push_hammett(account, r.entry, pos, class.scale, k.rho, format!("{number}-{}", r.entry.name), ortho);
+                    if ortho && site_in_ring {
+                        push_ortho_inductive(account, r.entry, k.rho, format!("{number}-{}", r.entry.name));
+                    } else {
+                        push_hammett(account, r.entry, pos, class.scale, k.rho, format!("{number}-{}", r.entry.name), ortho);
+                    }
                     if ortho && k.ortho_term != 0.0 {
                         account.terms.push(Term {
                             label: format!("ortho correction ({number}-{})", r.entry.name),
@@ -456,16 +463,62 @@ fn push_hammett(
     }
 }
 
-/// Taft sigma* of an entry seen `depth` saturated carbons away from the anchor.
-fn taft_sigma(entry: &SubstituentEntry, depth: usize) -> Option<f64> {
-    if depth == 0 {
+/// The inductive constant of an entry, from the decomposition sigma_m = sigma_I + sigma_R / 3,
+/// sigma_p = sigma_I + sigma_R, i.e. sigma_I = (3 sigma_m - sigma_p) / 2.
+///
+/// # Reference
+///
+/// The split of sigma into inductive and resonance parts with the resonance transmitted to
+/// meta at about a third of its para weight: Taft and Lewis, J. Am. Chem. Soc. 1959, 81,
+/// 5343; Exner, *Correlation Analysis of Chemical Data*, 1988 (from memory).
+fn sigma_inductive(entry: &SubstituentEntry) -> Option<f64> {
+    Some((3.0 * entry.sigma_m? - entry.sigma_p?) / 2.0)
+}
+
+/// An ortho substituent beside a ring-member site, scored by its inductive constant.
+fn push_ortho_inductive(account: &mut Account, entry: &SubstituentEntry, rho: f64, label: String) {
+    match sigma_inductive(entry) {
+        Some(sigma) => {
+            account.substituent(label, sigma, rho, "ortho (sigma_I = (3 sigma_m - sigma_p) / 2)".into(), entry);
+            if let Some(t) = account.terms.last_mut() {
+                t.ortho_substituent = true;
+            }
+        }
+        None => {
+            account.approximate += 1;
+            account.warnings.push(format!("{label}: no sigma_m and sigma_p to derive an ortho constant; not scored"));
+        }
+    }
+}
+
+/// sigma_I = 0.45 sigma*(X-CH2): the bridge between the inductive scale and Taft's.
+///
+/// # Reference
+///
+/// Taft and Lewis, J. Am. Chem. Soc. 1958, 80, 2436; Charton, J. Org. Chem. 1964, 29, 1222
+/// (the factor 0.45; from memory).
+const SIGMA_I_PER_SIGMA_STAR_CH2: f64 = 0.45;
+
+/// Taft sigma* of an entry seen `depth` saturated carbons away from the anchor, and whether
+/// it had to be derived from the entry's Hammett constants (no sigma* tabulated).
+fn taft_sigma(entry: &SubstituentEntry, depth: usize) -> Option<(f64, bool)> {
+    let tabulated = if depth == 0 {
         entry.sigma_star.or(entry.sigma_star_ch2.map(|s| s / TAFT_FALLOFF))
     } else {
         entry
             .sigma_star_ch2
             .or(entry.sigma_star.map(|s| s * TAFT_FALLOFF))
             .map(|s| s * TAFT_FALLOFF.powi(depth as i32 - 1))
+    };
+    if let Some(s) = tabulated {
+        return Some((s, false));
     }
+    let ch2 = sigma_inductive(entry)? / SIGMA_I_PER_SIGMA_STAR_CH2;
+    Some((ch2 * TAFT_FALLOFF.powi(depth as i32 - 1), true))
+}
+
+fn has_taft_value(entry: &SubstituentEntry) -> bool {
+    entry.sigma_star.is_some() || entry.sigma_star_ch2.is_some()
 }
 
 fn is_plain_carbon(molecule: &Molecule, atom: usize) -> bool {
@@ -520,7 +573,12 @@ fn taft(
     while let Some((atom, from, depth)) = queue.pop_front() {
         let recognized = recognize(library, molecule, atom, from, &visited_except(&visited, atom));
         let walk = match &recognized {
-            Some(r) => r.entry.walk || (r.approximate && is_plain_carbon(molecule, atom)),
+            // A saturated carbon the table has no sigma* for (CHF2, CH2CN...) is taken
+            // apart: the walk scores what hangs on it.
+            Some(r) => {
+                r.entry.walk
+                    || ((r.approximate || !has_taft_value(r.entry)) && is_plain_carbon(molecule, atom))
+            }
             None => is_plain_carbon(molecule, atom),
         };
         if walk {
@@ -569,11 +627,16 @@ fn taft(
             }
         }
         match taft_sigma(r.entry, depth) {
-            Some(sigma) => account.substituent(
+            Some((sigma, derived)) => account.substituent(
                 r.entry.name.clone(),
                 sigma,
                 k.rho,
-                format!("{} bond{}", depth + 1, if depth == 0 { "" } else { "s" }),
+                format!(
+                    "{} bond{}{}",
+                    depth + 1,
+                    if depth == 0 { "" } else { "s" },
+                    if derived { " (sigma* from sigma_I = (3 sigma_m - sigma_p) / 2, sigma_I = 0.45 sigma*(XCH2))" } else { "" }
+                ),
                 r.entry,
             ),
             None => {
@@ -703,9 +766,9 @@ mod tests {
             from_memory: false,
             notes: String::new(),
         };
-        assert_eq!(taft_sigma(&e, 1), Some(1.0));
-        assert!((taft_sigma(&e, 2).unwrap() - 0.4).abs() < 1e-12);
-        assert!((taft_sigma(&e, 0).unwrap() - 2.5).abs() < 1e-12);
+        assert_eq!(taft_sigma(&e, 1), Some((1.0, false)));
+        assert!((taft_sigma(&e, 2).unwrap().0 - 0.4).abs() < 1e-12);
+        assert!((taft_sigma(&e, 0).unwrap().0 - 2.5).abs() < 1e-12);
     }
 
     #[test]
