@@ -111,10 +111,10 @@ fn donor(m: &Molecule, i: usize) -> Donor {
                 Donor::No
             }
         }
+        // A lone pair, unless a double bond (in the ring or out of it) already uses the
+        // p orbital.
         _ => {
-            if cyclic_multiple {
-                Donor::One
-            } else if exocyclic.is_some() {
+            if multiple > 0 {
                 Donor::One
             } else {
                 Donor::Two
