@@ -428,73 +428,60 @@ pub struct CurvePoint {
 pub struct Curve {
     /// The parent used, as SMILES.
     pub smiles: String,
-    /// The species that reach a noticeable fraction anywhere on the range.
+    /// The species followed (those listed at one or more points), most protonated first.
     pub species: Vec<SpeciesReport>,
     /// The points, ascending pH.
     pub points: Vec<CurvePoint>,
     /// The pH of interest, marked on plots.
     pub ph: f64,
+    /// Isoelectric point, where there is one.
+    pub isoelectric_point: Option<f64>,
+    /// How the speciation was computed.
+    pub method: String,
+    #[serde(skip)]
+    inner: speciation::Curve,
 }
-
-/// Species below this fraction everywhere on a curve are left out of it.
-const CURVE_MIN_FRACTION: f64 = 0.01;
 
 /// Computes a speciation curve from `from` to `to` in steps of `step`.
 pub fn curve(input: &str, options: &Options, from: f64, to: f64, step: f64) -> Result<Curve, ErrorReport> {
-    if !(step > 0.0) || !from.is_finite() || !to.is_finite() || to < from || (to - from) / step > 10_000.0 {
-        return Err(ErrorReport {
-            message: format!("pH range {from} to {to} in steps of {step} is not a usable range (at most 10000 points)"),
-        });
-    }
     let a = analyze(model::Library::builtin(), input)?;
-    let count = ((to - from) / step + 1e-9).floor() as usize + 1;
-    let results: Vec<speciation::Speciation> =
-        (0..count).map(|i| a.speciate(from + i as f64 * step)).collect();
-    // Species by their charged-site pattern, kept where they reach a noticeable fraction.
-    let mut keys: Vec<Vec<bool>> = Vec::new();
-    let mut charges: Vec<i32> = Vec::new();
-    for r in &results {
-        for sp in &r.species {
-            if sp.fraction >= CURVE_MIN_FRACTION && !keys.contains(&sp.charged) {
-                keys.push(sp.charged.clone());
-                charges.push(sp.charge);
-            }
-        }
-    }
-    // Order species from most protonated (highest charge) to least, as a titration runs.
-    let mut order: Vec<usize> = (0..keys.len()).collect();
-    order.sort_by_key(|&i| std::cmp::Reverse(charges[i]));
-    let keys: Vec<Vec<bool>> = order.iter().map(|&i| keys[i].clone()).collect();
-    let points = results
+    let states = speciation::Microstates::new(&a.system).map_err(|e| ErrorReport { message: e.to_string() })?;
+    let inner = states.curve(from, to, step).map_err(|e| ErrorReport { message: e.to_string() })?;
+    let at_ph = states.speciation(options.ph).map_err(|e| ErrorReport { message: e.to_string() })?;
+    let species = inner
+        .species
         .iter()
-        .map(|r| CurvePoint {
-            ph: r.ph,
-            charge: r.charge_at_ph,
-            fractions: keys
-                .iter()
-                .map(|k| r.species.iter().find(|sp| &sp.charged == k).map_or(0.0, |sp| sp.fraction))
-                .collect(),
+        .map(|sp| SpeciesReport {
+            smiles: a.species_smiles(&sp.charged),
+            charge: sp.charge,
+            fraction: at_ph.species.iter().find(|x| x.charged == sp.charged).map_or(0.0, |x| x.fraction),
         })
         .collect();
-    let at_ph = a.speciate(options.ph);
-    let species = keys
+    let points = inner
+        .points
         .iter()
-        .map(|k| SpeciesReport {
-            smiles: a.species_smiles(k),
-            charge: a.system.base_charge
-                + k.iter()
-                    .zip(&a.system.sites)
-                    .filter(|(&c, _)| c)
-                    .map(|(_, s)| if s.kind == speciation::Kind::Acid { -1 } else { 1 })
-                    .sum::<i32>(),
-            fraction: at_ph.species.iter().find(|sp| &sp.charged == k).map_or(0.0, |sp| sp.fraction),
-        })
+        .map(|p| CurvePoint { ph: p.ph, charge: p.charge, fractions: p.fractions.clone() })
         .collect();
-    Ok(Curve { smiles: mol::write_smiles(&a.parent), species, points, ph: options.ph })
+    Ok(Curve {
+        smiles: mol::write_smiles(&a.parent),
+        species,
+        points,
+        ph: options.ph,
+        isoelectric_point: states.isoelectric_point(),
+        method: inner.method.clone(),
+        inner,
+    })
 }
 
-/// Renders a curve as an SVG plot of species fractions against pH.
+/// Renders a curve as an SVG plot of species fractions against pH, with the net charge in
+/// a panel below and the pH of interest marked.
 pub fn plot_svg(curve: &Curve) -> String {
-    let _ = curve;
-    todo!("lead: wire to speciation's plot once it lands")
+    let labels: Vec<String> = curve.species.iter().map(|s| s.smiles.clone()).collect();
+    let options = speciation::PlotOptions {
+        title: Some(curve.smiles.clone()),
+        ph: Some(curve.ph),
+        isoelectric_point: curve.isoelectric_point,
+        ..Default::default()
+    };
+    speciation::svg_plot(&curve.inner, &labels, &options)
 }
