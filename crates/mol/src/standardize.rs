@@ -72,6 +72,8 @@ pub(crate) fn standardize(m: &Molecule) -> Result<Standardized, Error> {
         ));
     }
     let mut changes = Vec::new();
+    let disconnected = disconnect_metals(m, &mut changes);
+    let m = &disconnected;
     let key = |c: &Vec<usize>| {
         let organic = c.iter().any(|&a| m.atoms[a].element == 6);
         let heavy = c.iter().filter(|&&a| m.atoms[a].element > 1).count();
@@ -158,6 +160,39 @@ pub(crate) fn standardize(m: &Molecule) -> Result<Standardized, Error> {
         }
     }
 
+    // S+-O- and P+-O- are the same groups as S=O and P=O (sulfoxide, sulfone, phosphine
+    // oxide, phosphate written charge-separated); the double-bond form is the standard.
+    loop {
+        let mut merged = false;
+        for i in 0..p.atoms.len() {
+            if !matches!(p.atoms[i].element, 15 | 16 | 34) || p.atoms[i].charge < 1 {
+                continue;
+            }
+            let oxide = p.neighbors[i].iter().copied().find(|n| {
+                let o = &p.atoms[n.atom];
+                o.element == 8
+                    && o.charge == -1
+                    && o.hydrogens == 0
+                    && p.neighbors[n.atom].len() == 1
+                    && p.bonds[n.bond].order == 1
+            });
+            if let Some(n) = oxide {
+                p.atoms[i].charge -= 1;
+                p.atoms[n.atom].charge = 0;
+                p.bonds[n.bond].order = 2;
+                changes.push(format!(
+                    "wrote {}+ O- at atom {} as a double bond",
+                    crate::element_symbol(p.atoms[i].element),
+                    keep[i]
+                ));
+                merged = true;
+            }
+        }
+        if !merged {
+            break;
+        }
+    }
+
     let permanent: Vec<bool> = p
         .atoms
         .iter()
@@ -191,4 +226,49 @@ pub(crate) fn standardize(m: &Molecule) -> Result<Standardized, Error> {
         others,
         changes,
     })
+}
+
+/// Alkali and alkaline-earth metals, whose bonds to non-metals are ionic: written as bonds
+/// (`CC(=O)O[Na]`) they are the same salt as the separated ions.
+fn is_ionic_metal(element: u8) -> bool {
+    matches!(element, 3 | 11 | 19 | 37 | 55 | 4 | 12 | 20 | 38 | 56)
+}
+
+/// Breaks bonds between ionic metals and O, N, S or halogens into ion pairs: the metal
+/// takes +1 and the other atom -1 per bond. Common practice in structure standardization.
+fn disconnect_metals(m: &Molecule, changes: &mut Vec<String>) -> Molecule {
+    let mut out = m.clone();
+    let mut removed = vec![false; m.bonds.len()];
+    for (k, b) in m.bonds.iter().enumerate() {
+        let (x, y) = if is_ionic_metal(m.atoms[b.a].element) {
+            (b.a, b.b)
+        } else {
+            (b.b, b.a)
+        };
+        if !is_ionic_metal(m.atoms[x].element)
+            || !matches!(m.atoms[y].element, 7 | 8 | 9 | 16 | 17 | 35 | 53)
+            || b.order != 1
+        {
+            continue;
+        }
+        removed[k] = true;
+        out.atoms[x].charge = out.atoms[x].charge.saturating_add(1);
+        out.atoms[y].charge = out.atoms[y].charge.saturating_sub(1);
+        out.atoms[x].bracket = true;
+        out.atoms[y].bracket = true;
+        changes.push(format!(
+            "separated the {}-{} bond (atoms {x}, {y}) into ions",
+            crate::element_symbol(m.atoms[x].element),
+            crate::element_symbol(m.atoms[y].element)
+        ));
+    }
+    if removed.iter().any(|&r| r) {
+        let mut k = 0;
+        out.bonds.retain(|_| {
+            k += 1;
+            !removed[k - 1]
+        });
+        out.rebuild_graph();
+    }
+    out
 }
