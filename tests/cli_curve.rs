@@ -47,7 +47,6 @@ fn curve_csv_fractions_sum_to_one_and_charge_falls() {
 }
 
 #[test]
-#[ignore = "needs plot_svg"]
 fn curve_writes_an_svg_file() {
     let dir = std::env::temp_dir().join(format!("pkarta-cli-curve-{}", std::process::id()));
     std::fs::create_dir_all(&dir).expect("temp dir");
