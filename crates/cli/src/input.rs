@@ -229,6 +229,10 @@ impl<R: BufRead + Send> Source for LineSource<R> {
                 items.push(item);
                 continue;
             }
+            // Comments are recognized on bytes: a comment that is not UTF-8 is still a comment.
+            if trim_bytes(&buf).first() == Some(&b'#') {
+                continue;
+            }
             match std::str::from_utf8(&buf) {
                 Err(e) => {
                     // Still split SMILES from name, so the record keeps its name.
@@ -247,9 +251,6 @@ impl<R: BufRead + Send> Source for LineSource<R> {
                 }
                 Ok(line) => {
                     let line = line.trim();
-                    if line.starts_with('#') {
-                        continue;
-                    }
                     let (smiles, name) = match line.find(char::is_whitespace) {
                         Some(i) => (&line[..i], line[i..].trim()),
                         None => (line, ""),
@@ -429,7 +430,7 @@ mod tests {
 
     #[test]
     fn comments_are_skipped_blank_lines_are_records() {
-        let items = lines(b"# header\nCC\n\n  # indented comment\nN\n");
+        let items = lines(b"# header\nCC\n\n  # indented comment\n#\xff not UTF-8\nN\n");
         let texts: Vec<_> = items
             .iter()
             .map(|i| (i.number, i.text.as_str(), i.problem.clone()))
@@ -439,7 +440,7 @@ mod tests {
             vec![
                 (2, "CC", None),
                 (3, "", Some("empty input".to_string())),
-                (5, "N", None)
+                (6, "N", None)
             ]
         );
     }
