@@ -715,7 +715,7 @@ fn paths_from(molecule: &Molecule, start: usize, max: usize) -> (Vec<usize>, Vec
 /// (Bjerrum, Z. Phys. Chem. 1923, 106, 219; Kirkwood and Westheimer, J. Chem. Phys. 1938,
 /// 6, 506) in the through-bond form of `fragments/interactions.toml`, whose header gives the
 /// constants and where they come from.
-pub fn interactions(_library: &Library, molecule: &Molecule, sites: &[Site]) -> Vec<Vec<f64>> {
+pub fn interactions(library: &Library, molecule: &Molecule, sites: &[Site]) -> Vec<Vec<f64>> {
     let c = &*COUPLING;
     let n = sites.len();
     let mut w = vec![vec![0.0; n]; n];
@@ -727,8 +727,22 @@ pub fn interactions(_library: &Library, molecule: &Molecule, sites: &[Site]) -> 
                 continue;
             }
             let paths = count[sites[j].atom].min(2) as f64;
-            let magnitude =
+            let mut magnitude =
                 c.w3 * c.falloff.powi(d as i32 - 3) * (1.0 + c.extra_path * (paths - 1.0));
+            // Two OH on one phosphorus or arsenic: the class gives the spread between its
+            // successive constants directly (the through-bond form does not reach that close).
+            if d == 2 && sites[i].class == sites[j].class {
+                let shared = molecule.neighbors(sites[i].atom).iter().any(|n| {
+                    matches!(molecule.atoms()[n.atom].element, 15 | 33)
+                        && molecule.bond_between(n.atom, sites[j].atom).is_some()
+                });
+                let geminal = library
+                    .class_index(&sites[i].class)
+                    .and_then(|k| library.classes[k].geminal_interaction);
+                if let (true, Some(g)) = (shared, geminal) {
+                    magnitude = g;
+                }
+            }
             // Charged forms: acids -1, bases +1; like signs repel.
             let same_sign = sites[i].kind == sites[j].kind;
             let value = if same_sign { magnitude } else { -magnitude };

@@ -130,7 +130,10 @@ pub fn estimate_with(
                     record.sites_outside_window.push(report);
                 }
             }
-            record.macro_pka = at_ph.macro_pka.clone();
+            // Coupling can push a constant past what water allows (the C-H of a malonate
+            // dianion); those are not observable and are left out.
+            let (low, high) = model::AQUEOUS_WINDOW;
+            record.macro_pka = at_ph.macro_pka.iter().copied().filter(|p| (low..=high).contains(p)).collect();
             record.charge_at_ph = Some(at_ph.charge_at_ph);
             record.isoelectric_point = at_ph.isoelectric_point;
             record.species = at_ph
