@@ -339,3 +339,34 @@ fn broken_library_is_exit_2_naming_the_file() {
     );
     assert!(run.stdout.is_empty());
 }
+
+#[test]
+fn demo_reagents_csv_keeps_its_columns() {
+    let path = demo("reagents.csv");
+    let run = pkarta(
+        &["predict", "--format", "csv", path.to_str().expect("path")],
+        b"",
+    );
+    assert_eq!(
+        run.status,
+        Some(1),
+        "one reagent row is broken on purpose: {}",
+        run.stderr
+    );
+    let mut input = csv::Reader::from_path(&path).expect("demo csv");
+    let mut output = csv::Reader::from_reader(run.stdout.as_slice());
+    let in_rows: Vec<csv::StringRecord> = input.records().map(|r| r.expect("row")).collect();
+    let out_rows: Vec<csv::StringRecord> = output.records().map(|r| r.expect("row")).collect();
+    assert_eq!(in_rows.len(), out_rows.len());
+    for (a, b) in in_rows.iter().zip(&out_rows) {
+        assert_eq!(
+            a.iter().collect::<Vec<_>>(),
+            b.iter().take(a.len()).collect::<Vec<_>>()
+        );
+    }
+    let failed = out_rows
+        .iter()
+        .filter(|r| !r[r.len() - 1].is_empty())
+        .count();
+    assert_eq!(failed, 1);
+}

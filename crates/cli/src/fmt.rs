@@ -44,11 +44,11 @@ pub fn align(rows: &[Vec<String>], right: &[usize], indent: &str) -> String {
             }
             let pad = widths[i] - cell.chars().count();
             if right.contains(&i) {
-                line.extend(std::iter::repeat(' ').take(pad));
+                line.push_str(&" ".repeat(pad));
                 line.push_str(cell);
             } else {
                 line.push_str(cell);
-                line.extend(std::iter::repeat(' ').take(pad));
+                line.push_str(&" ".repeat(pad));
             }
         }
         out.push_str(line.trim_end());
