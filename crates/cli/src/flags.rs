@@ -113,7 +113,7 @@ pub struct PredictArgs {
 pub struct LibraryArg {
     /// Use your own fragment library: a directory laid out like `fragments/` (sites/*.toml,
     /// substituents/*.toml, calibration.toml) replaces the built-in library; a single TOML
-    /// file of [[class]] and [[substituent]] tables adds to it.
+    /// file of `[[class]]` and `[[substituent]]` tables adds to it.
     #[arg(long, value_name = "PATH")]
     pub library: Option<PathBuf>,
 }
