@@ -1,5 +1,6 @@
 //! Progress on stderr: a bar while a batch runs and a summary line at the end, only when
 //! stderr is a terminal (a log file or a pipe gets neither) and `--quiet` is not given.
+//! The bar is also left out when stdout is the same terminal.
 
 use std::io::{IsTerminal, Write};
 use std::time::Duration;
@@ -18,7 +19,9 @@ impl Progress {
     /// A bar over `len` input bytes when the size is known, a spinner with a record count
     /// otherwise; nothing when stderr is not a terminal or `quiet`.
     pub fn new(quiet: bool, len: Option<u64>) -> Progress {
-        if quiet || !std::io::stderr().is_terminal() {
+        // A bar redrawn on a terminal that also shows the output would garble it; the output
+        // scrolling by is progress enough there.
+        if quiet || !std::io::stderr().is_terminal() || std::io::stdout().is_terminal() {
             return Progress {
                 bar: None,
                 by_bytes: false,
