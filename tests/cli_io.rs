@@ -255,3 +255,13 @@ fn csv_without_a_smiles_column_is_exit_2_naming_the_columns() {
         run.stderr
     );
 }
+
+#[test]
+fn byte_order_mark_before_a_csv_header_is_ignored() {
+    let run = pkarta(
+        &["inspect", "--format", "jsonl", "--input-format", "csv"],
+        b"\xEF\xBB\xBFsmiles,name\nO,water\n",
+    );
+    assert_eq!(run.status, Some(0), "{}", run.stderr);
+    assert_eq!(run.jsonl()[0]["id"], "water");
+}

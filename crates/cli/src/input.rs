@@ -215,6 +215,10 @@ impl<R: BufRead + Send> Source for LineSource<R> {
                 break;
             };
             self.number += 1;
+            // Editors on some systems start a text file with a byte-order mark.
+            if self.number == 1 && buf.starts_with(b"\xEF\xBB\xBF") {
+                buf.drain(..3);
+            }
             let mut item = Item {
                 number: self.number,
                 text: String::new(),
@@ -468,6 +472,13 @@ mod tests {
         assert_eq!(items[0].text.len(), 64);
         assert_eq!(items[1].text, "O");
         assert_eq!(items[1].end, input.len() as u64);
+    }
+
+    #[test]
+    fn byte_order_mark_is_not_part_of_the_first_smiles() {
+        let items = lines(b"\xEF\xBB\xBFCCO first\nCC\n");
+        assert_eq!(items[0].text, "CCO");
+        assert_eq!(items[0].problem, None);
     }
 
     #[test]
