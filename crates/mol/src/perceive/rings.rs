@@ -266,16 +266,15 @@ fn bits(m: &Molecule, cycle: &[usize], column: &[usize], words: usize) -> Vec<u6
 /// Greedy choice of short, independent cycles: Gaussian elimination over GF(2).
 fn choose(
     m: &Molecule,
-    mut candidates: Vec<Vec<usize>>,
+    candidates: Vec<Vec<usize>>,
     column: &[usize],
     words: usize,
     wanted: usize,
 ) -> Vec<Vec<usize>> {
-    candidates.sort_by(|a, b| {
-        a.len()
-            .cmp(&b.len())
-            .then_with(|| canonical(a).cmp(&canonical(b)))
-    });
+    // Canonical forms make the order, and so the chosen rings, independent of how the
+    // candidates were found.
+    let mut candidates: Vec<Vec<usize>> = candidates.iter().map(|c| canonical(c)).collect();
+    candidates.sort_by(|a, b| a.len().cmp(&b.len()).then_with(|| a.cmp(b)));
     // Reduced rows, each with its pivot bit.
     let mut rows: Vec<(usize, Vec<u64>)> = Vec::new();
     let mut chosen = Vec::new();
@@ -295,7 +294,7 @@ fn choose(
         // Rows stay sorted by their lowest bit, so one pass in order reduces fully.
         let at = rows.partition_point(|(p, _)| *p < pivot);
         rows.insert(at, (pivot, v));
-        chosen.push(canonical(&cycle));
+        chosen.push(cycle);
     }
     chosen
 }
