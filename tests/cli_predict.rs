@@ -370,3 +370,18 @@ fn demo_reagents_csv_keeps_its_columns() {
         .count();
     assert_eq!(failed, 1);
 }
+
+#[test]
+fn csv_row_longer_than_its_header_is_flagged() {
+    let run = pkarta(
+        &["predict", "--format", "csv", "--input-format", "csv"],
+        b"smiles,name\nO,water,extra\n",
+    );
+    let text = run.text();
+    let row = text.lines().nth(1).expect("one row");
+    assert!(row.starts_with("O,water,extra,"), "{row}");
+    assert!(
+        row.contains("row has 3 fields, the header 2: pkarta columns are shifted"),
+        "{row}"
+    );
+}

@@ -24,6 +24,9 @@ pub const COLUMNS: &[&str] = &[
     "pkarta_error",
 ];
 
+/// Index of `pkarta_warnings` in [`COLUMNS`].
+const WARNINGS: usize = 8;
+
 /// Runs `predict`; returns whether any record failed.
 pub fn run(args: &PredictArgs) -> anyhow::Result<bool> {
     // The library first: a broken fragment file is a usage error before any input is read.
@@ -247,15 +250,31 @@ impl<W: Write + Send> Sink<Record> for Delimited<W> {
                 clean(record.id.as_deref().unwrap_or("")),
             ]),
         };
+        let mut cells = cells(record);
         if self.csv_input {
             if let Some(header) = &self.header {
                 // Short rows are padded so the pkarta_* cells land in their columns.
                 while row.len() < header.len() {
                     row.push_field(b"");
                 }
+                // Long rows keep every field, which pushes the pkarta_* cells to the
+                // right: say so rather than let a spreadsheet misread them silently.
+                if row.len() > header.len() {
+                    let note = format!(
+                        "row has {} fields, the header {}: pkarta columns are shifted",
+                        row.len(),
+                        header.len()
+                    );
+                    let warnings = &mut cells[WARNINGS];
+                    *warnings = if warnings.is_empty() {
+                        note
+                    } else {
+                        format!("{note}; {warnings}")
+                    };
+                }
             }
         }
-        for cell in cells(record) {
+        for cell in cells {
             row.push_field(clean(&cell).as_bytes());
         }
         self.writer.write_byte_record(&row).map_err(csv_io)
@@ -427,6 +446,7 @@ mod tests {
 
     #[test]
     fn cells_pick_the_strongest_acid_and_base() {
+        assert_eq!(COLUMNS[WARNINGS], "pkarta_warnings");
         let cells = cells(&record());
         assert_eq!(cells.len(), COLUMNS.len());
         assert_eq!(
