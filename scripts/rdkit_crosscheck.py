@@ -9,12 +9,13 @@ Runs `pkarta inspect --format jsonl` (or, where the binary lacks that command, t
   tests/data/sample.smi when ../shared is absent.
 
 Per molecule it compares heavy atoms, total hydrogens, net charge, aromatic atoms and ring
-count (SSSR size: E - V + C from our bonds; RDKit's RingInfo.NumRings()). Records RDKit
+count (SSSR size: E - V + C from our bonds; RDKit's RingInfo.NumRings()), and, atom by
+atom in input order, element, charge, hydrogens and aromaticity ("per_atom"). Records RDKit
 cannot read are skipped and counted; records RDKit reads and we refuse count as
 disagreements on every measure.
 
 Thresholds: >= 99.5 % agreement on heavy atoms, total H and net charge; >= 99 % on
-aromatic atoms. Ring count is reported, not enforced (RDKit's ring set is the symmetrized
+aromatic atoms. Ring count and per-atom agreement are reported, not enforced (RDKit's ring set is the symmetrized
 SSSR, which is larger for cages such as cubane). Exit status 1 below a threshold, 2 when a
 tool is missing.
 
@@ -30,7 +31,7 @@ import sys
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 THRESHOLDS = {"heavy": 99.5, "hydrogens": 99.5, "charge": 99.5, "aromatic": 99.0}
-MEASURES = ["heavy", "hydrogens", "charge", "aromatic", "rings"]
+MEASURES = ["heavy", "hydrogens", "charge", "aromatic", "rings", "per_atom"]
 
 
 def find_reader(explicit):
@@ -97,11 +98,15 @@ def our_measures(r):
         "charge": sum(a["charge"] for a in atoms),
         "aromatic": sum(1 for a in atoms if a["aromatic"]),
         "rings": n_bonds - len(atoms) + len(r["components"]),
+        "per_atom": [(a["element"], a["charge"], a["hydrogens"], a["aromatic"]) for a in atoms],
     }
 
 
 def rdkit_measures(Chem, smiles):
-    m = Chem.MolFromSmiles(smiles)
+    params = Chem.SmilesParserParams()
+    # Keep written [H] atoms so atoms match ours one to one, in input order.
+    params.removeHs = False
+    m = Chem.MolFromSmiles(smiles, params)
     if m is None:
         return None
     h = Chem.AddHs(m)
@@ -111,6 +116,10 @@ def rdkit_measures(Chem, smiles):
         "charge": sum(a.GetFormalCharge() for a in m.GetAtoms()),
         "aromatic": sum(1 for a in m.GetAtoms() if a.GetIsAromatic()),
         "rings": m.GetRingInfo().NumRings(),
+        "per_atom": [
+            (a.GetSymbol(), a.GetFormalCharge(), a.GetTotalNumHs(), a.GetIsAromatic())
+            for a in m.GetAtoms()
+        ],
     }
 
 
@@ -155,6 +164,11 @@ def check(name, path, reader, Chem, show):
             verdict = "(reported only)"
         print(f"{k:10s} agree {agree[k]}/{compared} = {pct:.2f} % {verdict}")
         for line, s, a, b in disagreements[k][:show]:
+            if k == "per_atom":
+                diff = [i for i, (x, y) in enumerate(zip(a, b)) if x != y]
+                a = [a[i] for i in diff[:3]] if len(a) == len(b) else f"{len(a)} atoms"
+                b = [b[i] for i in diff[:3]] if len(diff) else f"{len(b)} atoms"
+                s = f"{s} (atoms {diff[:3]})"
             print(f"  line {line}: {s}  ours {a}, RDKit {b}")
     return failed
 
