@@ -58,8 +58,12 @@ pub(crate) fn perceive_rings(m: &mut Molecule) {
         systems.push((atoms, bonds));
     }
     let mut rings = Vec::new();
+    let mut scratch = Scratch {
+        prev: vec![usize::MAX; n],
+        column: vec![usize::MAX; m.bonds.len()],
+    };
     for (atoms, bonds) in &systems {
-        rings.extend(system_rings(m, atoms, bonds, &ring_bond));
+        rings.extend(system_rings(m, atoms, bonds, &ring_bond, &mut scratch));
     }
     for ring in &rings {
         for &a in ring {
@@ -191,35 +195,63 @@ fn path_to_root(parent: &[usize], mut v: usize) -> Vec<usize> {
     p
 }
 
+/// Scratch arrays over the whole molecule, allocated once and left all `usize::MAX`
+/// between ring systems, so many small systems cost no more than one big one.
+struct Scratch {
+    prev: Vec<usize>,
+    column: Vec<usize>,
+}
+
 fn system_rings(
     m: &Molecule,
     atoms: &[usize],
     bonds: &[usize],
     ring_bond: &[bool],
+    scratch: &mut Scratch,
+) -> Vec<Vec<usize>> {
+    for (k, &b) in bonds.iter().enumerate() {
+        scratch.column[b] = k;
+    }
+    let rings = system_rings_with(
+        m,
+        atoms,
+        bonds,
+        ring_bond,
+        &mut scratch.prev,
+        &scratch.column,
+    );
+    for &b in bonds {
+        scratch.column[b] = usize::MAX;
+    }
+    rings
+}
+
+fn system_rings_with(
+    m: &Molecule,
+    atoms: &[usize],
+    bonds: &[usize],
+    ring_bond: &[bool],
+    prev: &mut [usize],
+    column: &[usize],
 ) -> Vec<Vec<usize>> {
     let n = m.atoms.len();
     let wanted = bonds.len() + 1 - atoms.len();
-    let mut column = vec![usize::MAX; m.bonds.len()];
-    for (k, &b) in bonds.iter().enumerate() {
-        column[b] = k;
-    }
     let words = bonds.len().div_ceil(64);
-    let mut prev = vec![usize::MAX; n];
     let mut candidates: Vec<Vec<usize>> = Vec::new();
     let mut seen: HashSet<Vec<u64>> = HashSet::new();
     let mut add = |cycle: Vec<usize>, candidates: &mut Vec<Vec<usize>>| {
-        let v = bits(m, &cycle, &column, words);
+        let v = bits(m, &cycle, column, words);
         if seen.insert(v) {
             candidates.push(cycle);
         }
     };
     for &b in bonds {
         let (x, y) = (m.bonds[b].a, m.bonds[b].b);
-        if let Some(path) = shortest_path(m, x, y, b, ring_bond, &mut prev) {
+        if let Some(path) = shortest_path(m, x, y, b, ring_bond, prev) {
             add(path, &mut candidates);
         }
     }
-    let mut basis = choose(m, candidates.clone(), &column, words, wanted);
+    let mut basis = choose(m, candidates.clone(), column, words, wanted);
     if basis.len() < wanted && atoms.len() <= HORTON_LIMIT {
         for &r in atoms {
             let (parent, depth) = bfs_tree(m, r, ring_bond, n);
@@ -244,7 +276,7 @@ fn system_rings(
                 add(cycle, &mut candidates);
             }
         }
-        basis = choose(m, candidates, &column, words, wanted);
+        basis = choose(m, candidates, column, words, wanted);
     }
     basis
 }
