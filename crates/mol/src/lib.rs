@@ -39,9 +39,10 @@
 //! Reading and perception are linear in the size of the input for ordinary molecules;
 //! ring perception and Kekulé matching work per ring system. `cargo bench -p pkarta-mol`
 //! measures each step over `tests/data/sample.smi` (106 drug-like molecules); on the
-//! shared development machine (2 cores, 2026-12-01) one core read and perceived about
-//! 28,000 molecules per second, standardized 40,000, wrote 210,000 and computed symmetry
-//! classes for 185,000. An 8,100-atom square lattice of 7,921 fused rings reads in about
+//! shared development machine (2 cores, other builds running, 2026-12-01) one core read
+//! and perceived about 50,000 molecules per second, standardized 90,000, wrote 360,000
+//! and computed symmetry classes for 210,000; repeated runs varied by up to a factor of
+//! two with the load. An 8,100-atom square lattice of 7,921 fused rings reads in about
 //! 2 s in a debug build.
 //!
 //! # Untrusted input
