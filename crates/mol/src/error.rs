@@ -109,6 +109,13 @@ impl Error {
     }
 }
 
+/// Inputs longer than this many characters are shown as a window around the span.
+const SHOWN_WHOLE: usize = 120;
+/// Characters shown on each side of the span in a window.
+const CONTEXT: usize = 50;
+/// Carets drawn at most; a longer span is marked by its first carets.
+const MAX_CARETS: usize = 100;
+
 impl fmt::Display for Error {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         // Offsets are bytes; the caret column counts characters so it lines up under
@@ -117,13 +124,30 @@ impl fmt::Display for Error {
         let end = floor_boundary(&self.input, self.span.end.max(start));
         let column = self.input[..start].chars().count();
         let width = self.input[start..end].chars().count().max(1);
+        let total = self.input.chars().count();
+        if total <= SHOWN_WHOLE {
+            return write!(
+                f,
+                "{}\n{}\n{}{}",
+                self.message(),
+                self.input,
+                " ".repeat(column),
+                "^".repeat(width)
+            );
+        }
+        // A long input (a polymer, a whole file pasted on one line) is cut to a window so
+        // the message stays readable; "..." marks the cuts.
+        let from = column.saturating_sub(CONTEXT);
+        let to = (column + width.min(MAX_CARETS) + CONTEXT).min(total);
+        let shown: String = self.input.chars().skip(from).take(to - from).collect();
+        let (lead, offset) = if from > 0 { ("...", 3) } else { ("", 0) };
+        let tail = if to < total { "..." } else { "" };
         write!(
             f,
-            "{}\n{}\n{}{}",
+            "{}\n{lead}{shown}{tail}\n{}{}",
             self.message(),
-            self.input,
-            " ".repeat(column),
-            "^".repeat(width)
+            " ".repeat(column - from + offset),
+            "^".repeat(width.min(MAX_CARETS))
         )
     }
 }
@@ -147,6 +171,19 @@ mod tests {
         let input = "é)";
         let e = Error::new(ErrorKind::UnmatchedParenthesis, input, Span::new(2, 3));
         assert_eq!(e.to_string(), "unmatched ')': it closes no branch\né)\n ^");
+    }
+
+    #[test]
+    fn long_input_is_shown_as_a_window_around_the_span() {
+        let input = format!("{}X{}", "C".repeat(200), "C".repeat(200));
+        let e = Error::new(ErrorKind::UnexpectedCharacter, &input, Span::new(200, 201));
+        let want = format!(
+            "unexpected character 'X'\n...{}X{}...\n{}^",
+            "C".repeat(50),
+            "C".repeat(50),
+            " ".repeat(53)
+        );
+        assert_eq!(e.to_string(), want);
     }
 
     #[test]

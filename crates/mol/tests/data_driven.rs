@@ -3,7 +3,8 @@
 //! only the keys given are checked. Inputs that must fail give the exact error text.
 //!
 //! Keys:
-//! - `smiles` (required), `name` (required), `source` (where the expectation comes from)
+//! - `smiles` (required), `name` (required), `source` (where the expectation comes from),
+//!   `repeat` (the input is `smiles` repeated that many times)
 //! - `error`: the whole Display text of the error (message, input, carets)
 //! - `atoms`, `heavy_atoms`, `aromatic_atoms`, `rings`, `components`, `net_charge`,
 //!   `total_hydrogens`: counts
@@ -31,6 +32,8 @@ struct File {
 struct Case {
     name: String,
     smiles: String,
+    /// The input is `smiles` repeated this many times (for size limits).
+    repeat: Option<usize>,
     #[serde(default)]
     source: Option<String>,
     error: Option<String>,
@@ -99,7 +102,8 @@ fn signature(m: &Molecule) -> Vec<String> {
 }
 
 fn check(case: &Case) -> Result<(), String> {
-    let result = parse(&case.smiles);
+    let input = case.smiles.repeat(case.repeat.unwrap_or(1));
+    let result = parse(&input);
     if let Some(want) = &case.error {
         return match result {
             Ok(_) => Err(format!("parsed, but should fail with:\n{want}")),
