@@ -324,18 +324,49 @@ fn reader_error(smiles: &str, info: &Scan, e: purr::read::Error, offsets: &[usiz
                     .take_while(|c| c.is_ascii_alphabetic())
                     .count()
                     .min(3);
-                if letters > 0 && start < sym_start + letters + 1 && start >= sym_start {
-                    // Upper case, then lower case letters only, make one symbol.
-                    let sym = &smiles[sym_start..sym_start + letters];
-                    let len = 1 + sym[1..]
+                // Upper case, then lower case letters only, make one symbol.
+                let len = if letters > 0 {
+                    1 + smiles[sym_start + 1..sym_start + letters]
                         .chars()
                         .take_while(|c| c.is_ascii_lowercase())
-                        .count();
+                        .count()
+                } else {
+                    0
+                };
+                let sym = &smiles[sym_start..sym_start + len];
+                let known = crate::elements::atomic_number(&title_case(sym)).is_some();
+                if len > 0 && !known && start >= sym_start && start <= sym_start + len {
                     return Error::new(
                         ErrorKind::UnknownElement,
                         smiles,
                         Span::new(sym_start, sym_start + len),
                     );
+                }
+            }
+            if first.is_ascii_alphabetic() && !in_bracket {
+                // An element outside the organic subset, written bare: `Na`, `Si`, `Zn`.
+                let before = smiles[..start]
+                    .chars()
+                    .last()
+                    .filter(|c| c.is_ascii_uppercase());
+                let candidates = [
+                    before.map(|b| (start - 1, format!("{b}{first}"))),
+                    rest[1..]
+                        .chars()
+                        .next()
+                        .filter(|c| first.is_ascii_uppercase() && c.is_ascii_lowercase())
+                        .map(|c| (start, format!("{first}{c}"))),
+                ];
+                for (at, sym) in candidates.into_iter().flatten() {
+                    if crate::elements::atomic_number(&sym).is_some() {
+                        return Error::new(
+                            ErrorKind::Other(format!(
+                                "element '{sym}' is outside the organic subset: write it in brackets, as [{sym}]"
+                            )),
+                            smiles,
+                            Span::new(at, at + 2),
+                        );
+                    }
                 }
             }
             if first.is_ascii_alphabetic() {
@@ -355,5 +386,14 @@ fn reader_error(smiles: &str, info: &Scan, e: purr::read::Error, offsets: &[usiz
             }
             Error::new(ErrorKind::UnexpectedCharacter, smiles, one)
         }
+    }
+}
+
+/// `se` -> `Se`: aromatic bracket symbols are written lower case.
+fn title_case(symbol: &str) -> String {
+    let mut chars = symbol.chars();
+    match chars.next() {
+        Some(c) => c.to_ascii_uppercase().to_string() + chars.as_str(),
+        None => String::new(),
     }
 }
