@@ -19,7 +19,15 @@ aromatic atoms. Ring count and per-atom agreement are reported, not enforced (RD
 SSSR, which is larger for cages such as cubane). Exit status 1 below a threshold, 2 when a
 tool is missing.
 
-Usage: python3 scripts/rdkit_crosscheck.py [--show N] [--bin PATH] [FILE ...]
+With --standardize it also compares our standardized parent (through the mol crate's
+`inspect` example, `--parent`) with RDKit's `rdMolStandardize.ChargeParent` (largest
+fragment, then neutralized): parent heavy atoms, parent net charge and the parent itself
+(both canonicalized by RDKit); and our SMILES writer, by reading what it writes with RDKit
+("written": RDKit's canonical form of our output equals that of the input, stereo aside).
+Reported only: the two standardizers follow different rules
+for some classes (docs/rdkit-crosscheck.md).
+
+Usage: python3 scripts/rdkit_crosscheck.py [--show N] [--bin PATH] [--standardize] [FILE ...]
 """
 
 import argparse
@@ -32,6 +40,21 @@ import sys
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 THRESHOLDS = {"heavy": 99.5, "hydrogens": 99.5, "charge": 99.5, "aromatic": 99.0}
 MEASURES = ["heavy", "hydrogens", "charge", "aromatic", "rings", "per_atom"]
+
+
+def find_example():
+    """The mol crate's `inspect` example (built in release when missing)."""
+    target = os.environ.get("CARGO_TARGET_DIR", os.path.join(ROOT, "target"))
+    example = os.path.join(target, "release", "examples", "inspect")
+    if not os.path.exists(example):
+        if shutil.which("cargo") is None:
+            sys.exit("rdkit_crosscheck: no cargo to build the mol inspect example")
+        subprocess.run(
+            ["cargo", "build", "--release", "-p", "pkarta-mol", "--example", "inspect"],
+            cwd=ROOT,
+            check=True,
+        )
+    return example
 
 
 def find_reader(explicit):
@@ -51,17 +74,7 @@ def find_reader(explicit):
         if probe.returncode == 0 and probe.stdout.strip().startswith("{"):
             return [pkarta, "inspect", "-", "--format", "jsonl"]
     # Fallback: the mol crate's example prints the same fields.
-    target = os.environ.get("CARGO_TARGET_DIR", os.path.join(ROOT, "target"))
-    example = os.path.join(target, "release", "examples", "inspect")
-    if not os.path.exists(example):
-        if shutil.which("cargo") is None:
-            sys.exit("rdkit_crosscheck: no pkarta binary and no cargo to build the example")
-        subprocess.run(
-            ["cargo", "build", "--release", "-p", "pkarta-mol", "--example", "inspect"],
-            cwd=ROOT,
-            check=True,
-        )
-    return [example]
+    return [find_example()]
 
 
 def read_smiles(path):
@@ -173,11 +186,65 @@ def check(name, path, reader, Chem, show):
     return failed
 
 
+def canonical(Chem, smiles):
+    """RDKit's canonical SMILES without stereo (we do not keep it), or None."""
+    m = Chem.MolFromSmiles(smiles)
+    if m is None:
+        return None
+    Chem.RemoveStereochemistry(m)
+    return Chem.MolToSmiles(m)
+
+
+def check_standardize(name, path, example, Chem, show):
+    from rdkit.Chem.MolStandardize import rdMolStandardize
+
+    smiles = read_smiles(path)
+    records = ours([example, "--parent"], [s for s, _ in smiles])
+    chooser = rdMolStandardize.LargestFragmentChooser()
+    uncharger = rdMolStandardize.Uncharger()
+    compared = 0
+    agree = {"written": 0, "parent_heavy": 0, "parent_charge": 0, "parent": 0}
+    shown = {k: [] for k in agree}
+    for (s, line), r in zip(smiles, records):
+        m = Chem.MolFromSmiles(s)
+        if m is None or r.get("error"):
+            continue
+        theirs = uncharger.uncharge(chooser.choose(m))
+        mine = Chem.MolFromSmiles(r["parent"])
+        if mine is None:
+            shown["parent"].append((line, s, r["parent"], "RDKit cannot read our parent"))
+            compared += 1
+            continue
+        compared += 1
+        pairs = {
+            "written": (canonical(Chem, r["written"]), canonical(Chem, s)),
+            "parent_heavy": (r["parent_heavy"], theirs.GetNumHeavyAtoms()),
+            "parent_charge": (r["parent_charge"], Chem.GetFormalCharge(theirs)),
+            "parent": (Chem.MolToSmiles(mine), Chem.MolToSmiles(theirs)),
+        }
+        for k, (a, b) in pairs.items():
+            if a == b:
+                agree[k] += 1
+            else:
+                shown[k].append((line, s, a, b))
+    print(f"== standardize, {name}: compared {compared}")
+    for k in agree:
+        pct = 100.0 * agree[k] / compared if compared else 100.0
+        print(f"{k:13s} agree {agree[k]}/{compared} = {pct:.2f} % (reported only)")
+        for line, s, a, b in shown[k][:show]:
+            print(f"  line {line}: {s}  ours {a}, RDKit {b}")
+
+
 def main():
     p = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     p.add_argument("files", nargs="*", help="SMILES files (default: NCI 5K and MOSES sample)")
     p.add_argument("--show", type=int, default=10, help="disagreements shown per measure")
     p.add_argument("--bin", help="pkarta binary or a reader printing inspect JSON lines")
+    p.add_argument(
+        "--standardize",
+        action="store_true",
+        help="also compare standardized parents with RDKit's ChargeParent (reported only)",
+    )
     args = p.parse_args()
     try:
         import rdkit
@@ -201,6 +268,10 @@ def main():
     failed = False
     for name, path in files:
         failed |= check(name, path, reader, Chem, args.show)
+    if args.standardize:
+        example = find_example()
+        for name, path in files:
+            check_standardize(name, path, example, Chem, args.show)
     print("== result:", "BELOW THRESHOLD" if failed else "all thresholds met")
     return 1 if failed else 0
 

@@ -85,11 +85,13 @@ fn organic_form(m: &Molecule, i: usize, lower: bool) -> bool {
         return false;
     }
     let sum = written_bond_sum(m, i, lower);
-    let free = targets
-        .iter()
-        .map(|&t| t as u32)
-        .find(|&t| t >= sum)
-        .map_or(0, |t| t - sum);
+    // Past the highest default valence OpenSMILES adds no hydrogens, but some readers fill
+    // to the next valence they know (RDKit reads bare `I` with two bonds as `[IH]`):
+    // brackets leave no doubt.
+    let Some(target) = targets.iter().map(|&t| t as u32).find(|&t| t >= sum) else {
+        return false;
+    };
+    let free = target - sum;
     if aromatic {
         let has_double = m.neighbors[i]
             .iter()
@@ -336,6 +338,13 @@ mod tests {
             write_smiles(&pyridine.with_protons(&[(3, 1)])),
             "c1cc[nH+]cc1"
         );
+    }
+
+    #[test]
+    fn atoms_past_their_default_valence_get_brackets() {
+        // Diaryliodonium-like iodine with two bonds and no hydrogen (NCI 5K sample).
+        assert_eq!(written("c1ccccc1[I]c1ccccc1"), "c1ccccc1[I]c1ccccc1");
+        assert_eq!(written("CS(=O)(=O)C"), "CS(=O)(=O)C");
     }
 
     #[test]
