@@ -91,6 +91,11 @@ fn organic_form(m: &Molecule, i: usize, lower: bool) -> bool {
     let Some(target) = targets.iter().map(|&t| t as u32).find(|&t| t >= sum) else {
         return false;
     };
+    // Pentavalent N from the organic subset (OpenSMILES allows it) is read by RDKit as
+    // trivalent; brackets keep its hydrogens explicit.
+    if a.element == 7 && target == 5 {
+        return false;
+    }
     let free = target - sum;
     if aromatic {
         let has_double = m.neighbors[i]
