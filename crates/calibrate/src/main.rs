@@ -15,8 +15,8 @@
 //! Per-class linear free-energy fits as in Perrin, Dempsey and Serjeant, *pKa Prediction for
 //! Organic Acids and Bases*, 1981: pKa = pKa0 - rho * sum(sigma). Least squares with a ridge
 //! prior pulling rho towards its published value (so that classes whose sigma sums barely
-//! vary keep the published slope), and Huber weights (Huber, Ann. Math. Stat. 1964, 35, 73)
-//! so that a few misassigned or noisy points do not drag a class.
+//! vary keep the published slope), a weak prior on the parent value, and Cauchy weights
+//! (iteratively reweighted) so that a few misassigned or noisy points do not drag a class.
 
 use std::collections::BTreeMap;
 use std::fmt::Write as _;
@@ -30,8 +30,54 @@ use nalgebra::{DMatrix, DVector};
 const MIN_POINTS: usize = 6;
 /// Strength of the prior on rho, in units of squared sigma per point.
 const RHO_PRIOR: f64 = 0.05;
-/// Huber threshold (pKa units): residuals beyond it are down-weighted.
+/// Scale of the Cauchy weights (pKa units): a point this far off counts half, one five
+/// times as far about a twenty-sixth.
+const CAUCHY: f64 = 1.0;
+/// Huber threshold (pKa units).
 const HUBER: f64 = 1.0;
+/// Weight of the prior on the parent value, in points at its published value, for classes
+/// scored by the parent value alone.
+const PARENT_PRIOR: f64 = 2.0;
+/// The same for classes scored with sigma constants, whose parent value is a measured
+/// parent compound (benzoic acid, phenol, pyridinium, methylammonium...): the line of a
+/// Hammett or Taft plot goes through its parent, so the fit moves rho, not the parent,
+/// unless the data insist. Read from PKARTA_SCALED_PARENT_PRIOR when set (for studies).
+static SCALED_PARENT_PRIOR_DEFAULT: f64 = 1000.0;
+
+fn scaled_parent_prior() -> f64 {
+    std::env::var("PKARTA_SCALED_PARENT_PRIOR")
+        .ok()
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(SCALED_PARENT_PRIOR_DEFAULT)
+}
+
+/// Cauchy (Lorentzian) weight of a residual: redescending, so points that measure another
+/// site or another tautomer than the one scored stop pulling the fit.
+///
+/// # Reference
+///
+/// Holland and Welsch, Commun. Stat. Theory Methods 1977, 6, 813 (iteratively reweighted
+/// least squares with the Cauchy weight function; from memory).
+fn cauchy(residual: f64) -> f64 {
+    1.0 / (1.0 + (residual / CAUCHY).powi(2))
+}
+
+fn weight(residual: f64) -> f64 {
+    match std::env::var("PKARTA_WEIGHT").as_deref() {
+        Ok("cauchy") => cauchy(residual),
+        _ => huber(residual),
+    }
+}
+
+/// Huber weight of a residual: full weight within `HUBER`, falling as 1/r beyond it.
+///
+/// # Reference
+///
+/// Huber, Ann. Math. Stat. 1964, 35, 73.
+fn huber(residual: f64) -> f64 {
+    let r = residual.abs();
+    if r <= HUBER { 1.0 } else { HUBER / r }
+}
 /// Refit rounds: site attribution and coupling corrections depend on the constants.
 const ROUNDS: usize = 3;
 
@@ -172,10 +218,20 @@ fn points(library: &Library, data: &[Measurement]) -> Vec<Point> {
 
 /// Fits y = p0 - rho * x + ortho_term * n_ortho for one class; returns (p0, rho, ortho_term).
 /// The ortho term is fitted only where the class is scored on an aromatic scale.
-fn fit_class(pts: &[&Point], p0: f64, rho0: f64, ortho0: f64, with_ortho: bool) -> (f64, f64, f64) {
+fn fit_class(
+    pts: &[&Point],
+    p0: f64,
+    rho0: f64,
+    ortho0: f64,
+    with_ortho: bool,
+    fixed_rho: bool,
+    parent_prior: f64,
+) -> (f64, f64, f64) {
     let n = pts.len();
     let cols = if with_ortho { 3 } else { 2 };
-    let mut w = vec![1.0f64; n];
+    // Weights start from the residuals to the published line, so a class whose published
+    // values are right is not dragged by a few points that measure something else.
+    let mut w: Vec<f64> = pts.iter().map(|pt| weight(pt.y - (p0 - rho0 * pt.x + ortho0 * pt.ortho))).collect();
     let (mut p, mut r, mut t) = (p0, rho0, ortho0);
     for _ in 0..10 {
         // Rows: sqrt(w) * [1, -x, n_ortho] . [p0, rho, ortho] = sqrt(w) * y, plus prior rows.
@@ -190,7 +246,12 @@ fn fit_class(pts: &[&Point], p0: f64, rho0: f64, ortho0: f64, with_ortho: bool) 
                 a[(i, 2)] = pt.ortho * s;
             }
         }
-        let lambda = (RHO_PRIOR * n as f64).sqrt();
+        let lambda = if fixed_rho { 1e6 } else { (RHO_PRIOR * n as f64).sqrt() };
+        let mut a = a.insert_row(n + cols - 1, 0.0);
+        let mut b = b.insert_row(n + cols - 1, 0.0);
+        let parent_weight = parent_prior.sqrt();
+        a[(n + cols - 1, 0)] = parent_weight;
+        b[n + cols - 1] = parent_weight * p0;
         a[(n, 1)] = lambda;
         b[n] = lambda * rho0;
         if with_ortho {
@@ -204,8 +265,7 @@ fn fit_class(pts: &[&Point], p0: f64, rho0: f64, ortho0: f64, with_ortho: bool) 
             t = sol[2];
         }
         for (i, pt) in pts.iter().enumerate() {
-            let res = (pt.y - (p - r * pt.x + t * pt.ortho)).abs();
-            w[i] = if res <= HUBER { 1.0 } else { HUBER / res };
+            w[i] = weight(pt.y - (p - r * pt.x + t * pt.ortho));
         }
     }
     (p, r, t)
@@ -228,7 +288,15 @@ fn calibrate(published: &Library, data: &[Measurement]) -> (Library, BTreeMap<us
             }
             let pub_class = &published.classes[class];
             let aromatic = matches!(pub_class.scale, Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus);
-            let (p0, rho, ortho) = fit_class(&cp, pub_class.parent_pka, pub_class.rho, pub_class.ortho_term, aromatic);
+            let (p0, rho, ortho) = fit_class(
+                &cp,
+                pub_class.parent_pka,
+                pub_class.rho,
+                pub_class.ortho_term,
+                aromatic,
+                pub_class.fixed_rho,
+                if pub_class.scale == Scale::None { PARENT_PRIOR } else { scaled_parent_prior() },
+            );
             let rmse = (cp.iter().map(|p| (p.y - (p0 - rho * p.x + ortho * p.ortho)).powi(2)).sum::<f64>() / cp.len() as f64).sqrt();
             lib.classes[class].parent_pka = p0;
             lib.classes[class].rho = rho;

@@ -92,6 +92,10 @@ pub struct SiteClass {
     /// Absent: the site atom (map 1).
     #[serde(default)]
     pub anchor: Option<u16>,
+    /// The reaction constant is fixed by definition (benzoic acids: rho = 1): calibration
+    /// fits the parent value only.
+    #[serde(default)]
+    pub fixed_rho: bool,
     /// Ortho correction added for each ortho substituent on aromatic scales (pKa units).
     #[serde(default)]
     pub ortho_term: f64,
