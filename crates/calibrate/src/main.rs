@@ -23,7 +23,7 @@ use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 
 use anyhow::{bail, Context, Result};
-use model::{Kind, Library, Scale, TermRole};
+use model::{Counted, Kind, Library, Scale, TermRole};
 use nalgebra::{DMatrix, DVector};
 
 /// Classes with fewer points than this keep their published values.
@@ -95,6 +95,9 @@ struct Point {
     x: f64,
     /// Number of ortho substituents (the class's ortho term applies to each).
     ortho: f64,
+    /// Counted class corrections: pyridine-type N in fused rings, ring C=O / C=S.
+    fused_aza: f64,
+    ring_oxo: f64,
     /// Measured value less the fixed corrections and the coupling/statistical shift
     /// between the site value and the predicted macroscopic constant.
     y: f64,
@@ -155,6 +158,8 @@ struct Prediction {
     class: String,
     x: f64,
     ortho: f64,
+    fused_aza: f64,
+    ring_oxo: f64,
     corrections: f64,
 }
 
@@ -184,19 +189,28 @@ fn predict(library: &Library, m: &Measurement) -> Option<Prediction> {
     };
     let x = site.terms.iter().filter(|t| t.role == TermRole::Substituent).filter_map(|t| t.sigma).sum();
     let ortho = site.terms.iter().filter(|t| t.ortho_substituent).count() as f64;
-    // Fixed corrections, less the ortho ones: the fit sets those itself.
+    // Fixed corrections, less the ones the fit sets itself (ortho, counted).
     let corrections = site
         .terms
         .iter()
-        .filter(|t| t.role == TermRole::Correction && !t.label.starts_with("ortho correction"))
+        .filter(|t| {
+            t.role == TermRole::Correction && !t.label.starts_with("ortho correction") && t.counted.is_none()
+        })
         .map(|t| t.contribution)
         .sum();
+    let count = |what: Counted| -> f64 {
+        site.terms.iter().filter_map(|t| t.counted).filter(|(w, _)| *w == what).map(|(_, n)| n).sum()
+    };
+    let fused_aza = count(Counted::FusedAza);
+    let ring_oxo = count(Counted::RingOxo);
     Some(Prediction {
         value: macro_value.unwrap_or(site.pka),
         site_pka: site.pka,
         class: site.class,
         x,
         ortho,
+        fused_aza,
+        ring_oxo,
         corrections,
     })
 }
@@ -211,64 +225,75 @@ fn points(library: &Library, data: &[Measurement]) -> Vec<Point> {
         .filter_map(|m| {
             let p = predict(library, m)?;
             let shift = p.value - p.site_pka;
-            Some(Point { class: index[&p.class], x: p.x, ortho: p.ortho, y: m.pka - p.corrections - shift })
+            Some(Point {
+                class: index[&p.class],
+                x: p.x,
+                ortho: p.ortho,
+                fused_aza: p.fused_aza,
+                ring_oxo: p.ring_oxo,
+                y: m.pka - p.corrections - shift,
+            })
         })
         .collect()
 }
 
-/// Fits y = p0 - rho * x + ortho_term * n_ortho for one class; returns (p0, rho, ortho_term).
-/// The ortho term is fitted only where the class is scored on an aromatic scale.
-fn fit_class(
-    pts: &[&Point],
-    p0: f64,
-    rho0: f64,
-    ortho0: f64,
-    with_ortho: bool,
-    fixed_rho: bool,
-    parent_prior: f64,
-) -> (f64, f64, f64) {
+/// The fitted constants of one class.
+#[derive(Clone, Copy)]
+struct Fit {
+    parent: f64,
+    rho: f64,
+    ortho: f64,
+    fused_aza: f64,
+    ring_oxo: f64,
+}
+
+impl Fit {
+    fn predict(&self, pt: &Point) -> f64 {
+        self.parent - self.rho * pt.x + self.ortho * pt.ortho + self.fused_aza * pt.fused_aza + self.ring_oxo * pt.ring_oxo
+    }
+}
+
+/// Fits y = p0 - rho * x (+ ortho, fused-aza and ring-oxo terms times their counts, for
+/// classes on aromatic scales) for one class, each constant pulled towards its published
+/// value by a prior row.
+fn fit_class(pts: &[&Point], published: Fit, aromatic: bool, fixed_rho: bool, parent_prior: f64) -> Fit {
     let n = pts.len();
-    let cols = if with_ortho { 3 } else { 2 };
-    // Weights start from the residuals to the published line, so a class whose published
-    // values are right is not dragged by a few points that measure something else.
-    let mut w: Vec<f64> = pts.iter().map(|pt| weight(pt.y - (p0 - rho0 * pt.x + ortho0 * pt.ortho))).collect();
-    let (mut p, mut r, mut t) = (p0, rho0, ortho0);
+    let cols = if aromatic { 5 } else { 2 };
+    let mut fit = published;
+    let mut w: Vec<f64> = pts.iter().map(|pt| weight(pt.y - published.predict(pt))).collect();
     for _ in 0..10 {
-        // Rows: sqrt(w) * [1, -x, n_ortho] . [p0, rho, ortho] = sqrt(w) * y, plus prior rows.
-        let mut a = DMatrix::<f64>::zeros(n + cols - 1, cols);
-        let mut b = DVector::<f64>::zeros(n + cols - 1);
+        // Rows: sqrt(w) * [1, -x, n_ortho, n_fused_aza, n_ring_oxo] . constants = sqrt(w) * y,
+        // then one prior row per constant.
+        let mut a = DMatrix::<f64>::zeros(n + cols, cols);
+        let mut b = DVector::<f64>::zeros(n + cols);
         for (i, pt) in pts.iter().enumerate() {
             let s = w[i].sqrt();
-            a[(i, 0)] = s;
-            a[(i, 1)] = -pt.x * s;
-            b[i] = (pt.y + if with_ortho { 0.0 } else { ortho0 * pt.ortho }) * s;
-            if with_ortho {
-                a[(i, 2)] = pt.ortho * s;
+            let row = [1.0, -pt.x, pt.ortho, pt.fused_aza, pt.ring_oxo];
+            for c in 0..cols {
+                a[(i, c)] = row[c] * s;
             }
+            b[i] = pt.y * s;
         }
-        let lambda = if fixed_rho { 1e6 } else { (RHO_PRIOR * n as f64).sqrt() };
-        let mut a = a.insert_row(n + cols - 1, 0.0);
-        let mut b = b.insert_row(n + cols - 1, 0.0);
-        let parent_weight = parent_prior.sqrt();
-        a[(n + cols - 1, 0)] = parent_weight;
-        b[n + cols - 1] = parent_weight * p0;
-        a[(n, 1)] = lambda;
-        b[n] = lambda * rho0;
-        if with_ortho {
-            a[(n + 1, 2)] = lambda;
-            b[n + 1] = lambda * ortho0;
+        let slope = if fixed_rho { 1e6 } else { (RHO_PRIOR * n as f64).sqrt() };
+        let weights = [parent_prior.sqrt(), slope, slope, slope, slope];
+        let targets = [published.parent, published.rho, published.ortho, published.fused_aza, published.ring_oxo];
+        for c in 0..cols {
+            a[(n + c, c)] = weights[c];
+            b[n + c] = weights[c] * targets[c];
         }
         let Ok(sol) = a.svd(true, true).solve(&b, 1e-12) else { break };
-        p = sol[0];
-        r = sol[1];
-        if with_ortho {
-            t = sol[2];
+        fit.parent = sol[0];
+        fit.rho = sol[1];
+        if aromatic {
+            fit.ortho = sol[2];
+            fit.fused_aza = sol[3];
+            fit.ring_oxo = sol[4];
         }
         for (i, pt) in pts.iter().enumerate() {
-            w[i] = weight(pt.y - (p - r * pt.x + t * pt.ortho));
+            w[i] = weight(pt.y - fit.predict(pt));
         }
     }
-    (p, r, t)
+    fit
 }
 
 /// Calibrates a copy of `published` on `data`; returns it with fitted classes changed.
@@ -288,19 +313,22 @@ fn calibrate(published: &Library, data: &[Measurement]) -> (Library, BTreeMap<us
             }
             let pub_class = &published.classes[class];
             let aromatic = matches!(pub_class.scale, Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus);
-            let (p0, rho, ortho) = fit_class(
-                &cp,
-                pub_class.parent_pka,
-                pub_class.rho,
-                pub_class.ortho_term,
-                aromatic,
-                pub_class.fixed_rho,
-                if pub_class.scale == Scale::None { PARENT_PRIOR } else { scaled_parent_prior() },
-            );
-            let rmse = (cp.iter().map(|p| (p.y - (p0 - rho * p.x + ortho * p.ortho)).powi(2)).sum::<f64>() / cp.len() as f64).sqrt();
-            lib.classes[class].parent_pka = p0;
-            lib.classes[class].rho = rho;
-            lib.classes[class].ortho_term = ortho;
+            let published_fit = Fit {
+                parent: pub_class.parent_pka,
+                rho: pub_class.rho,
+                ortho: pub_class.ortho_term,
+                fused_aza: pub_class.fused_aza_term,
+                ring_oxo: pub_class.ring_oxo_term,
+            };
+            let prior = if pub_class.scale == Scale::None { PARENT_PRIOR } else { scaled_parent_prior() };
+            let fit = fit_class(&cp, published_fit, aromatic, pub_class.fixed_rho, prior);
+            let rmse = (cp.iter().map(|p| (p.y - fit.predict(p)).powi(2)).sum::<f64>() / cp.len() as f64).sqrt();
+            let c = &mut lib.classes[class];
+            c.parent_pka = fit.parent;
+            c.rho = fit.rho;
+            c.ortho_term = fit.ortho;
+            c.fused_aza_term = fit.fused_aza;
+            c.ring_oxo_term = fit.ring_oxo;
             stats.insert(class, (cp.len(), rmse));
         }
     }
@@ -428,6 +456,8 @@ fn main() -> Result<()> {
             writeln!(out, "rho = {:.3}", c.rho)?;
             if matches!(c.scale, Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus) {
                 writeln!(out, "ortho_term = {:.3}", c.ortho_term)?;
+                writeln!(out, "fused_aza_term = {:.3}", c.fused_aza_term)?;
+                writeln!(out, "ring_oxo_term = {:.3}", c.ring_oxo_term)?;
             }
             writeln!(out, "points = {n}")?;
             writeln!(out, "rmse = {rmse:.3}")?;

@@ -12,7 +12,7 @@ pub use library::{
 };
 pub use sites::{find_sites, FoundSite};
 pub use substituents::{entry_by_id, is_ring_member, recognize, Recognized};
-pub use score::{interactions, score_sites, Site, Term, TermRole};
+pub use score::{interactions, score_sites, Counted, Site, Term, TermRole};
 
 /// The aqueous window: sites whose estimate falls outside it are reported apart.
 /// Common practice: water levels acids stronger than about pKa -2 and bases whose

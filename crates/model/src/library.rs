@@ -99,6 +99,14 @@ pub struct SiteClass {
     /// Ortho correction added for each ortho substituent on aromatic scales (pKa units).
     #[serde(default)]
     pub ortho_term: f64,
+    /// Correction per pyridine-type N in a ring fused to the site's ring (aromatic scales;
+    /// a class correction, set by calibration, 0 when not calibrated).
+    #[serde(default)]
+    pub fused_aza_term: f64,
+    /// Correction per exocyclic C=O or C=S on the site's ring (aromatic scales; a class
+    /// correction, set by calibration, 0 when not calibrated).
+    #[serde(default)]
+    pub ring_oxo_term: f64,
     /// Statistical factor (number of equivalent protons or positions the class counts);
     /// contributes -log10(factor) for acids and +log10(factor) for bases when not 1.
     #[serde(default = "one")]
@@ -180,6 +188,12 @@ pub struct Calibration {
     /// Fitted ortho term, for classes scored on aromatic scales.
     #[serde(default)]
     pub ortho_term: Option<f64>,
+    /// Fitted correction per pyridine-type N in a fused ring.
+    #[serde(default)]
+    pub fused_aza_term: Option<f64>,
+    /// Fitted correction per exocyclic C=O / C=S on the site's ring.
+    #[serde(default)]
+    pub ring_oxo_term: Option<f64>,
     /// Number of measurements fitted.
     pub points: usize,
     /// Residual error of the fit (RMS, pKa units).

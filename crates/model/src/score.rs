@@ -76,6 +76,19 @@ pub struct Term {
     /// applies to; ring members and fused rings are not).
     #[serde(skip)]
     pub ortho_substituent: bool,
+    /// For class corrections that count something (fused-ring N, ring C=O): what, and how
+    /// many. The calibration program fits the per-count value.
+    #[serde(skip)]
+    pub counted: Option<(Counted, f64)>,
+}
+
+/// What a counted class correction counts.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Counted {
+    /// Pyridine-type N in rings fused to the site's ring.
+    FusedAza,
+    /// Exocyclic C=O or C=S on the site's ring.
+    RingOxo,
 }
 
 /// A scored site.
@@ -110,6 +123,8 @@ struct Constants {
     rho: f64,
     rho_source: String,
     ortho_term: f64,
+    fused_aza_term: f64,
+    ring_oxo_term: f64,
     uncertainty: f64,
 }
 
@@ -126,6 +141,8 @@ fn constants(library: &Library, class: &SiteClass) -> Constants {
                 rho: fit.rho,
                 rho_source: provenance,
                 ortho_term: fit.ortho_term.unwrap_or(class.ortho_term),
+                fused_aza_term: fit.fused_aza_term.unwrap_or(class.fused_aza_term),
+                ring_oxo_term: fit.ring_oxo_term.unwrap_or(class.ring_oxo_term),
                 // The class's cross-validated error, as a standard deviation (for normal errors
                 // sd = MAE * sqrt(pi / 2)); never below the residual of the fit itself.
                 uncertainty: (fit.cv_mae * 1.2533).max(fit.rmse).max(0.1),
@@ -137,6 +154,8 @@ fn constants(library: &Library, class: &SiteClass) -> Constants {
             rho: class.rho,
             rho_source: class.rho_source.clone(),
             ortho_term: class.ortho_term,
+            fused_aza_term: class.fused_aza_term,
+            ring_oxo_term: class.ring_oxo_term,
             uncertainty: class.uncertainty,
         },
     }
@@ -174,6 +193,7 @@ impl Account {
             position: Some(position),
             role: TermRole::Substituent,
             ortho_substituent: false,
+            counted: None,
         });
     }
 }
@@ -200,6 +220,7 @@ fn score_one(library: &Library, molecule: &Molecule, found: &FoundSite) -> Site 
             position: None,
             role: TermRole::Parent,
             ortho_substituent: false,
+            counted: None,
         }],
         warnings: Vec::new(),
         approximate: 0,
@@ -229,6 +250,7 @@ fn score_one(library: &Library, molecule: &Molecule, found: &FoundSite) -> Site 
             position: None,
             role: TermRole::Correction,
             ortho_substituent: false,
+            counted: None,
         });
     }
     // The estimate is the sum of its terms, added in the order they are listed, so that a
@@ -358,6 +380,8 @@ fn hammett(
     // A site that is itself a ring member (pyridine N, azole N) has its ortho substituents
     // on the next atom, where their inductive and field effect outweighs resonance.
     let site_in_ring = ring.contains(&found.atom);
+    let mut fused_aza: Vec<usize> = Vec::new();
+    let mut ring_oxo = 0usize;
     for step in 1..n {
         let atom = ring[(start + step) % n];
         let distance = step.min(n - step);
@@ -376,7 +400,33 @@ fn hammett(
                 continue;
             }
             let shares_ring = molecule.bonds()[nb.bond].in_ring;
+            let exocyclic_double = !shares_ring
+                && molecule.bonds()[nb.bond].order == 2
+                && !molecule.bonds()[nb.bond].aromatic
+                && matches!(molecule.atoms()[s].element, 8 | 16)
+                && molecule.degree(s) == 1;
+            if exocyclic_double {
+                // A ring C=O / C=S (pyridones, pyrimidinones): a class correction, not a
+                // sigma substituent.
+                ring_oxo += 1;
+                continue;
+            }
             if shares_ring {
+                for r in molecule.rings().iter().filter(|r| r.contains(&s) && r.contains(&atom)) {
+                    for &a in r {
+                        let at = &molecule.atoms()[a];
+                        if !ring.contains(&a)
+                            && at.element == 7
+                            && at.aromatic
+                            && at.charge == 0
+                            && molecule.total_hydrogens(a) == 0
+                            && molecule.degree(a) == 2
+                            && !fused_aza.contains(&a)
+                        {
+                            fused_aza.push(a);
+                        }
+                    }
+                }
                 // A ring fused to the site's ring: one term per fusion atom.
                 match fused {
                     Some(entry) => push_hammett(
@@ -416,7 +466,8 @@ fn hammett(
                             rho: None,
                             position: Some("ortho".into()),
                             role: TermRole::Correction,
-                            ortho_substituent: false,
+                                            ortho_substituent: false,
+                            counted: None,
                         });
                     }
                 }
@@ -429,6 +480,31 @@ fn hammett(
             }
         }
     }
+    push_counted(account, Counted::FusedAza, fused_aza.len(), k.fused_aza_term, "pyridine-type N in a fused ring");
+    push_counted(account, Counted::RingOxo, ring_oxo, k.ring_oxo_term, "ring C=O / C=S");
+}
+
+/// A counted class correction, shown even while its value is 0 so that the reader sees
+/// the structure was recognized.
+fn push_counted(account: &mut Account, what: Counted, count: usize, per: f64, label: &str) {
+    if count == 0 {
+        return;
+    }
+    account.terms.push(Term {
+        label: format!("{count} x {label}"),
+        contribution: per * count as f64,
+        source: if per == 0.0 {
+            "class correction, not calibrated for this class (0)".into()
+        } else {
+            format!("class correction {per:+.2} each: {}", account.rho_source)
+        },
+        sigma: None,
+        rho: None,
+        position: None,
+        role: TermRole::Correction,
+        ortho_substituent: false,
+        counted: Some((what, count as f64)),
+    });
 }
 
 fn push_hammett(
@@ -551,6 +627,7 @@ fn taft(
                 position: Some("1 bond".into()),
                 role: TermRole::Substituent,
                 ortho_substituent: false,
+            counted: None,
             });
         }
     }
@@ -657,6 +734,7 @@ fn taft(
             position: Some("2 bonds and beyond".into()),
             role: TermRole::Substituent,
             ortho_substituent: false,
+            counted: None,
         });
     }
 }
