@@ -399,7 +399,10 @@ fn hammett(
             if ring.contains(&s) || found.matched.contains(&s) || molecule.atoms()[s].element == 1 {
                 continue;
             }
-            let shares_ring = molecule.bonds()[nb.bond].in_ring;
+            // Only an aromatic ring fused to the site's ring is a fused-ring term; the atoms
+            // of a saturated or partly saturated fused ring (tetralin, tetralone, indane)
+            // are ordinary substituents and are recognized as such.
+            let shares_ring = molecule.bonds()[nb.bond].in_ring && molecule.atoms()[s].aromatic;
             let exocyclic_double = !shares_ring
                 && molecule.bonds()[nb.bond].order == 2
                 && !molecule.bonds()[nb.bond].aromatic
