@@ -251,5 +251,39 @@ fn stages(c: &mut Criterion) {
     }
 }
 
-criterion_group!(benches, stages);
+/// A 30-residue peptide written residue by residue (ten kinds of residue, three times):
+/// about 90 ionizable sites, the case where speciation must fall back to clusters.
+fn peptide(residues: usize) -> String {
+    const SIDE: [&str; 10] = [
+        "(CCCCN)",        // lysine
+        "(CC(=O)O)",      // aspartic acid
+        "(CCC(=O)O)",     // glutamic acid
+        "(Cc1c[nH]cn1)",  // histidine
+        "(Cc1ccc(O)cc1)", // tyrosine
+        "",               // glycine
+        "(C)",            // alanine
+        "(CO)",           // serine
+        "(CCCNC(=N)N)",   // arginine
+        "(CS)",           // cysteine
+    ];
+    let mut s: String = (0..residues).map(|i| format!("NC{}C(=O)", SIDE[i % SIDE.len()])).collect();
+    s.push('O');
+    s
+}
+
+fn long_peptide(c: &mut Criterion) {
+    let smiles = peptide(30);
+    let mut group = c.benchmark_group("peptide");
+    group.sample_size(10);
+    group.bench_function("estimate 30 residues", |b| {
+        b.iter(|| {
+            let r = pkarta::estimate(std::hint::black_box(&smiles), None, &pkarta::Options::default());
+            assert!(r.error.is_none());
+            r
+        })
+    });
+    group.finish();
+}
+
+criterion_group!(benches, stages, long_peptide);
 criterion_main!(benches);
