@@ -308,7 +308,7 @@ fn calibrate(published: &Library, data: &[Measurement]) -> (Library, BTreeMap<us
         }
         stats.clear();
         for (class, cp) in by_class {
-            if cp.len() < MIN_POINTS {
+            if cp.len() < MIN_POINTS || !published.classes[class].calibrate {
                 continue;
             }
             let pub_class = &published.classes[class];

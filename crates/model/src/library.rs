@@ -96,6 +96,11 @@ pub struct SiteClass {
     /// fits the parent value only.
     #[serde(default)]
     pub fixed_rho: bool,
+    /// Whether the calibration program may refit this class. `false` where the measured
+    /// constants that the calibration data attribute to the class mostly belong to another
+    /// site (the note says which), so a fit would learn the wrong thing.
+    #[serde(default = "yes")]
+    pub calibrate: bool,
     /// Ortho correction added for each ortho substituent on aromatic scales (pKa units).
     #[serde(default)]
     pub ortho_term: f64,
@@ -134,6 +139,10 @@ pub struct SiteClass {
 
 fn one() -> f64 {
     1.0
+}
+
+fn yes() -> bool {
+    true
 }
 
 /// One substituent (`[[substituent]]` in `fragments/substituents/*.toml`).
