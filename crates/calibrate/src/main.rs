@@ -350,16 +350,26 @@ struct Tally {
     n: usize,
     abs: f64,
     sq: f64,
+    errors: Vec<f64>,
 }
 
 impl Tally {
     fn add(&mut self, e: f64) {
+        self.errors.push(e.abs());
         self.n += 1;
         self.abs += e.abs();
         self.sq += e * e;
     }
     fn mae(&self) -> f64 {
         self.abs / self.n.max(1) as f64
+    }
+    fn median(&self) -> f64 {
+        let mut e = self.errors.clone();
+        e.sort_by(f64::total_cmp);
+        e.get(e.len() / 2).copied().unwrap_or(f64::NAN)
+    }
+    fn within(&self, bound: f64) -> f64 {
+        100.0 * self.errors.iter().filter(|&&e| e <= bound).count() as f64 / self.n.max(1) as f64
     }
     fn rmse(&self) -> f64 {
         (self.sq / self.n.max(1) as f64).sqrt()
@@ -409,11 +419,19 @@ fn main() -> Result<()> {
     let (lib, stats) = calibrate(&published, &data);
 
     let mut table = String::new();
-    writeln!(table, "| file | molecules | covered | CV MAE | CV RMSE |")?;
-    writeln!(table, "|---|---:|---:|---:|---:|")?;
+    writeln!(table, "| file | molecules | covered | CV MAE | CV median | CV RMSE | within 1 unit |")?;
+    writeln!(table, "|---|---:|---:|---:|---:|---:|---:|")?;
     for (file, t) in &per_file {
         let (c, n) = covered[file];
-        writeln!(table, "| {file} | {n} | {:.1} % | {:.2} | {:.2} |", 100.0 * c as f64 / n as f64, t.mae(), t.rmse())?;
+        writeln!(
+            table,
+            "| {file} | {n} | {:.1} % | {:.2} | {:.2} | {:.2} | {:.0} % |",
+            100.0 * c as f64 / n as f64,
+            t.mae(),
+            t.median(),
+            t.rmse(),
+            t.within(1.0)
+        )?;
     }
     writeln!(table)?;
     writeln!(table, "| class | points | CV MAE | CV RMSE | fitted |")?;
