@@ -266,7 +266,9 @@ fn peptide(residues: usize) -> String {
         "(CCCNC(=N)N)",   // arginine
         "(CS)",           // cysteine
     ];
-    let mut s: String = (0..residues).map(|i| format!("NC{}C(=O)", SIDE[i % SIDE.len()])).collect();
+    let mut s: String = (0..residues)
+        .map(|i| format!("NC{}C(=O)", SIDE[i % SIDE.len()]))
+        .collect();
     s.push('O');
     s
 }
@@ -277,7 +279,11 @@ fn long_peptide(c: &mut Criterion) {
     group.sample_size(10);
     group.bench_function("estimate 30 residues", |b| {
         b.iter(|| {
-            let r = pkarta::estimate(std::hint::black_box(&smiles), None, &pkarta::Options::default());
+            let r = pkarta::estimate(
+                std::hint::black_box(&smiles),
+                None,
+                &pkarta::Options::default(),
+            );
             assert!(r.error.is_none());
             r
         })

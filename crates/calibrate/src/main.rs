@@ -76,7 +76,11 @@ fn weight(residual: f64) -> f64 {
 /// Huber, Ann. Math. Stat. 1964, 35, 73.
 fn huber(residual: f64) -> f64 {
     let r = residual.abs();
-    if r <= HUBER { 1.0 } else { HUBER / r }
+    if r <= HUBER {
+        1.0
+    } else {
+        HUBER / r
+    }
 }
 /// Refit rounds: site attribution and coupling corrections depend on the constants.
 const ROUNDS: usize = 3;
@@ -112,14 +116,22 @@ struct Options {
 }
 
 fn parse_args() -> Result<Options> {
-    let mut o = Options { data: PathBuf::from("../shared/data"), folds: 5, write: false, table: None, dump: None };
+    let mut o = Options {
+        data: PathBuf::from("../shared/data"),
+        folds: 5,
+        write: false,
+        table: None,
+        dump: None,
+    };
     let mut args = std::env::args().skip(1);
     while let Some(a) = args.next() {
         match a.as_str() {
             "--data" => o.data = PathBuf::from(args.next().context("--data needs a directory")?),
             "--folds" => o.folds = args.next().context("--folds needs a number")?.parse()?,
             "--write" => o.write = true,
-            "--table" => o.table = Some(PathBuf::from(args.next().context("--table needs a file")?)),
+            "--table" => {
+                o.table = Some(PathBuf::from(args.next().context("--table needs a file")?))
+            }
             "--dump" => o.dump = Some(PathBuf::from(args.next().context("--dump needs a file")?)),
             "-h" | "--help" => {
                 println!("pkarta-calibrate [--data DIR] [--folds K] [--write] [--table FILE] [--dump FILE]");
@@ -135,17 +147,28 @@ fn parse_args() -> Result<Options> {
 }
 
 fn read_csv(path: &Path, column: &str, kind: Kind) -> Result<Vec<Measurement>> {
-    let text = std::fs::read_to_string(path).with_context(|| format!("reading {}", path.display()))?;
+    let text =
+        std::fs::read_to_string(path).with_context(|| format!("reading {}", path.display()))?;
     let mut lines = text.lines();
     let header: Vec<&str> = lines.next().context("empty file")?.split(',').collect();
-    let si = header.iter().position(|h| *h == "smiles").context("no smiles column")?;
-    let pi = header.iter().position(|h| *h == column).with_context(|| format!("no {column} column"))?;
+    let si = header
+        .iter()
+        .position(|h| *h == "smiles")
+        .context("no smiles column")?;
+    let pi = header
+        .iter()
+        .position(|h| *h == column)
+        .with_context(|| format!("no {column} column"))?;
     let mut out = Vec::new();
     for line in lines {
         // The files hold SMILES (no commas) and numbers: a plain split is exact here.
         let f: Vec<&str> = line.split(',').collect();
         if let (Some(s), Some(p)) = (f.get(si), f.get(pi).and_then(|p| p.parse::<f64>().ok())) {
-            out.push(Measurement { smiles: s.to_string(), pka: p, kind });
+            out.push(Measurement {
+                smiles: s.to_string(),
+                pka: p,
+                kind,
+            });
         }
     }
     Ok(out)
@@ -183,23 +206,38 @@ fn predict(library: &Library, m: &Measurement) -> Option<Prediction> {
     // The macroscopic constant that belongs to the site: the one nearest its own value
     // (coupling and statistical factors move it; sites of the other kind can sit anywhere).
     let macro_value = if in_window {
-        r.macro_pka.iter().copied().min_by(|a, b| (a - site.pka).abs().total_cmp(&(b - site.pka).abs()))
+        r.macro_pka
+            .iter()
+            .copied()
+            .min_by(|a, b| (a - site.pka).abs().total_cmp(&(b - site.pka).abs()))
     } else {
         None
     };
-    let x = site.terms.iter().filter(|t| t.role == TermRole::Substituent).filter_map(|t| t.sigma).sum();
+    let x = site
+        .terms
+        .iter()
+        .filter(|t| t.role == TermRole::Substituent)
+        .filter_map(|t| t.sigma)
+        .sum();
     let ortho = site.terms.iter().filter(|t| t.ortho_substituent).count() as f64;
     // Fixed corrections, less the ones the fit sets itself (ortho, counted).
     let corrections = site
         .terms
         .iter()
         .filter(|t| {
-            t.role == TermRole::Correction && !t.label.starts_with("ortho correction") && t.counted.is_none()
+            t.role == TermRole::Correction
+                && !t.label.starts_with("ortho correction")
+                && t.counted.is_none()
         })
         .map(|t| t.contribution)
         .sum();
     let count = |what: Counted| -> f64 {
-        site.terms.iter().filter_map(|t| t.counted).filter(|(w, _)| *w == what).map(|(_, n)| n).sum()
+        site.terms
+            .iter()
+            .filter_map(|t| t.counted)
+            .filter(|(w, _)| *w == what)
+            .map(|(_, n)| n)
+            .sum()
     };
     let fused_aza = count(Counted::FusedAza);
     let ring_oxo = count(Counted::RingOxo);
@@ -216,7 +254,12 @@ fn predict(library: &Library, m: &Measurement) -> Option<Prediction> {
 }
 
 fn class_index(library: &Library) -> BTreeMap<String, usize> {
-    library.classes.iter().enumerate().map(|(i, c)| (c.id.clone(), i)).collect()
+    library
+        .classes
+        .iter()
+        .enumerate()
+        .map(|(i, c)| (c.id.clone(), i))
+        .collect()
 }
 
 fn points(library: &Library, data: &[Measurement]) -> Vec<Point> {
@@ -249,18 +292,30 @@ struct Fit {
 
 impl Fit {
     fn predict(&self, pt: &Point) -> f64 {
-        self.parent - self.rho * pt.x + self.ortho * pt.ortho + self.fused_aza * pt.fused_aza + self.ring_oxo * pt.ring_oxo
+        self.parent - self.rho * pt.x
+            + self.ortho * pt.ortho
+            + self.fused_aza * pt.fused_aza
+            + self.ring_oxo * pt.ring_oxo
     }
 }
 
 /// Fits y = p0 - rho * x (+ ortho, fused-aza and ring-oxo terms times their counts, for
 /// classes on aromatic scales) for one class, each constant pulled towards its published
 /// value by a prior row.
-fn fit_class(pts: &[&Point], published: Fit, aromatic: bool, fixed_rho: bool, parent_prior: f64) -> Fit {
+fn fit_class(
+    pts: &[&Point],
+    published: Fit,
+    aromatic: bool,
+    fixed_rho: bool,
+    parent_prior: f64,
+) -> Fit {
     let n = pts.len();
     let cols = if aromatic { 5 } else { 2 };
     let mut fit = published;
-    let mut w: Vec<f64> = pts.iter().map(|pt| weight(pt.y - published.predict(pt))).collect();
+    let mut w: Vec<f64> = pts
+        .iter()
+        .map(|pt| weight(pt.y - published.predict(pt)))
+        .collect();
     for _ in 0..10 {
         // Rows: sqrt(w) * [1, -x, n_ortho, n_fused_aza, n_ring_oxo] . constants = sqrt(w) * y,
         // then one prior row per constant.
@@ -274,14 +329,26 @@ fn fit_class(pts: &[&Point], published: Fit, aromatic: bool, fixed_rho: bool, pa
             }
             b[i] = pt.y * s;
         }
-        let slope = if fixed_rho { 1e6 } else { (RHO_PRIOR * n as f64).sqrt() };
+        let slope = if fixed_rho {
+            1e6
+        } else {
+            (RHO_PRIOR * n as f64).sqrt()
+        };
         let weights = [parent_prior.sqrt(), slope, slope, slope, slope];
-        let targets = [published.parent, published.rho, published.ortho, published.fused_aza, published.ring_oxo];
+        let targets = [
+            published.parent,
+            published.rho,
+            published.ortho,
+            published.fused_aza,
+            published.ring_oxo,
+        ];
         for c in 0..cols {
             a[(n + c, c)] = weights[c];
             b[n + c] = weights[c] * targets[c];
         }
-        let Ok(sol) = a.svd(true, true).solve(&b, 1e-12) else { break };
+        let Ok(sol) = a.svd(true, true).solve(&b, 1e-12) else {
+            break;
+        };
         fit.parent = sol[0];
         fit.rho = sol[1];
         if aromatic {
@@ -297,7 +364,10 @@ fn fit_class(pts: &[&Point], published: Fit, aromatic: bool, fixed_rho: bool, pa
 }
 
 /// Calibrates a copy of `published` on `data`; returns it with fitted classes changed.
-fn calibrate(published: &Library, data: &[Measurement]) -> (Library, BTreeMap<usize, (usize, f64)>) {
+fn calibrate(
+    published: &Library,
+    data: &[Measurement],
+) -> (Library, BTreeMap<usize, (usize, f64)>) {
     let mut lib = published.clone();
     let mut stats = BTreeMap::new();
     for _ in 0..ROUNDS {
@@ -312,7 +382,10 @@ fn calibrate(published: &Library, data: &[Measurement]) -> (Library, BTreeMap<us
                 continue;
             }
             let pub_class = &published.classes[class];
-            let aromatic = matches!(pub_class.scale, Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus);
+            let aromatic = matches!(
+                pub_class.scale,
+                Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus
+            );
             let published_fit = Fit {
                 parent: pub_class.parent_pka,
                 rho: pub_class.rho,
@@ -320,9 +393,18 @@ fn calibrate(published: &Library, data: &[Measurement]) -> (Library, BTreeMap<us
                 fused_aza: pub_class.fused_aza_term,
                 ring_oxo: pub_class.ring_oxo_term,
             };
-            let prior = if pub_class.scale == Scale::None { PARENT_PRIOR } else { scaled_parent_prior() };
+            let prior = if pub_class.scale == Scale::None {
+                PARENT_PRIOR
+            } else {
+                scaled_parent_prior()
+            };
             let fit = fit_class(&cp, published_fit, aromatic, pub_class.fixed_rho, prior);
-            let rmse = (cp.iter().map(|p| (p.y - fit.predict(p)).powi(2)).sum::<f64>() / cp.len() as f64).sqrt();
+            let rmse = (cp
+                .iter()
+                .map(|p| (p.y - fit.predict(p)).powi(2))
+                .sum::<f64>()
+                / cp.len() as f64)
+                .sqrt();
             let c = &mut lib.classes[class];
             c.parent_pka = fit.parent;
             c.rho = fit.rho;
@@ -381,7 +463,10 @@ fn main() -> Result<()> {
     let acids = o.data.join("iupac-acids.csv");
     let bases = o.data.join("iupac-bases.csv");
     if !acids.exists() || !bases.exists() {
-        println!("skipped: {} has no iupac-acids.csv / iupac-bases.csv", o.data.display());
+        println!(
+            "skipped: {} has no iupac-acids.csv / iupac-bases.csv",
+            o.data.display()
+        );
         return Ok(());
     }
     let mut data = read_csv(&acids, "pka", Kind::Acid)?;
@@ -398,10 +483,18 @@ fn main() -> Result<()> {
     let mut worst: Vec<(f64, String, String)> = Vec::new();
     let mut dump: Vec<String> = vec!["smiles,class,kind,measured,predicted,site_pka".into()];
     for k in 0..o.folds {
-        let train: Vec<Measurement> = data.iter().filter(|m| fold_of(&m.smiles, o.folds) != k).cloned().collect();
+        let train: Vec<Measurement> = data
+            .iter()
+            .filter(|m| fold_of(&m.smiles, o.folds) != k)
+            .cloned()
+            .collect();
         let (lib, _) = calibrate(&published, &train);
         for m in data.iter().filter(|m| fold_of(&m.smiles, o.folds) == k) {
-            let file = if m.kind == Kind::Acid { "acids" } else { "bases" };
+            let file = if m.kind == Kind::Acid {
+                "acids"
+            } else {
+                "bases"
+            };
             let c = covered.entry(file).or_default();
             c.1 += 1;
             let Some(p) = predict(&lib, m) else { continue };
@@ -409,7 +502,10 @@ fn main() -> Result<()> {
             let e = p.value - m.pka;
             per_class.entry(p.class.clone()).or_default().add(e);
             per_file.entry(file).or_default().add(e);
-            dump.push(format!("{},{},{:?},{:.2},{:.2},{:.2}", m.smiles, p.class, m.kind, m.pka, p.value, p.site_pka));
+            dump.push(format!(
+                "{},{},{:?},{:.2},{:.2},{:.2}",
+                m.smiles, p.class, m.kind, m.pka, p.value, p.site_pka
+            ));
             worst.push((e.abs(), m.smiles.clone(), p.class));
         }
         eprintln!("fold {}/{} done", k + 1, o.folds);
@@ -419,7 +515,10 @@ fn main() -> Result<()> {
     let (lib, stats) = calibrate(&published, &data);
 
     let mut table = String::new();
-    writeln!(table, "| file | molecules | covered | CV MAE | CV median | CV RMSE | within 1 unit |")?;
+    writeln!(
+        table,
+        "| file | molecules | covered | CV MAE | CV median | CV RMSE | within 1 unit |"
+    )?;
     writeln!(table, "|---|---:|---:|---:|---:|---:|---:|")?;
     for (file, t) in &per_file {
         let (c, n) = covered[file];
@@ -440,7 +539,14 @@ fn main() -> Result<()> {
     rows.sort_by(|a, b| b.1.n.cmp(&a.1.n));
     for (class, t) in rows {
         let fitted = stats.contains_key(&index[class]);
-        writeln!(table, "| {class} | {} | {:.2} | {:.2} | {} |", t.n, t.mae(), t.rmse(), if fitted { "yes" } else { "published" })?;
+        writeln!(
+            table,
+            "| {class} | {} | {:.2} | {:.2} | {} |",
+            t.n,
+            t.mae(),
+            t.rmse(),
+            if fitted { "yes" } else { "published" }
+        )?;
     }
     print!("{table}");
     worst.sort_by(|a, b| b.0.total_cmp(&a.0));
@@ -456,12 +562,20 @@ fn main() -> Result<()> {
     }
 
     if o.write {
-        let date = std::process::Command::new("date").arg("+%Y-%m-%d").output().ok()
-            .and_then(|o| String::from_utf8(o.stdout).ok()).map(|s| s.trim().to_string()).unwrap_or_default();
+        let date = std::process::Command::new("date")
+            .arg("+%Y-%m-%d")
+            .output()
+            .ok()
+            .and_then(|o| String::from_utf8(o.stdout).ok())
+            .map(|s| s.trim().to_string())
+            .unwrap_or_default();
         let mut out = String::new();
         writeln!(out, "# Written by `cargo run --release -p pkarta-calibrate -- --write`; do not edit by hand.")?;
         writeln!(out, "# Parent values and rho fitted per class by least squares (Huber weights, ridge prior on")?;
-        writeln!(out, "# rho towards the published value), published sigma constants held fixed, against the")?;
+        writeln!(
+            out,
+            "# rho towards the published value), published sigma constants held fixed, against the"
+        )?;
         writeln!(out, "# IUPAC Digitized pKa Dataset subsets in ../shared/data (iupac-acids.csv, iupac-bases.csv;")?;
         writeln!(out, "# CC BY-NC 4.0, DOI 10.5281/zenodo.7236452). cv_mae: {}-fold cross-validated error of the", o.folds)?;
         writeln!(out, "# class's held-out molecules. Classes with fewer than {MIN_POINTS} points keep their published values.")?;
@@ -472,7 +586,10 @@ fn main() -> Result<()> {
             writeln!(out, "class = {:?}", c.id)?;
             writeln!(out, "parent_pka = {:.3}", c.parent_pka)?;
             writeln!(out, "rho = {:.3}", c.rho)?;
-            if matches!(c.scale, Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus) {
+            if matches!(
+                c.scale,
+                Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus
+            ) {
                 writeln!(out, "ortho_term = {:.3}", c.ortho_term)?;
                 writeln!(out, "fused_aza_term = {:.3}", c.fused_aza_term)?;
                 writeln!(out, "ring_oxo_term = {:.3}", c.ring_oxo_term)?;
@@ -480,10 +597,16 @@ fn main() -> Result<()> {
             writeln!(out, "points = {n}")?;
             writeln!(out, "rmse = {rmse:.3}")?;
             writeln!(out, "cv_mae = {:.3}", if cv.is_nan() { *rmse } else { cv })?;
-            writeln!(out, "source = \"fit to ../shared/data/iupac-*.csv, {date}\"")?;
+            writeln!(
+                out,
+                "source = \"fit to ../shared/data/iupac-*.csv, {date}\""
+            )?;
         }
         std::fs::write("fragments/calibration.toml", out)?;
-        println!("\nwrote fragments/calibration.toml ({} classes fitted)", stats.len());
+        println!(
+            "\nwrote fragments/calibration.toml ({} classes fitted)",
+            stats.len()
+        );
     }
     Ok(())
 }

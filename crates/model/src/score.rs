@@ -163,7 +163,10 @@ fn constants(library: &Library, class: &SiteClass) -> Constants {
 
 /// Scores found sites.
 pub fn score_sites(library: &Library, molecule: &Molecule, found: &[FoundSite]) -> Vec<Site> {
-    found.iter().map(|f| score_one(library, molecule, f)).collect()
+    found
+        .iter()
+        .map(|f| score_one(library, molecule, f))
+        .collect()
 }
 
 /// What scoring one site accumulates before it becomes a [`Site`].
@@ -227,7 +230,13 @@ fn score_one(library: &Library, molecule: &Molecule, found: &FoundSite) -> Site 
     };
     let anchor = class
         .anchor
-        .and_then(|map| found.mapped.iter().find(|(m, _)| *m == map).map(|&(_, a)| a))
+        .and_then(|map| {
+            found
+                .mapped
+                .iter()
+                .find(|(m, _)| *m == map)
+                .map(|&(_, a)| a)
+        })
         .unwrap_or(found.atom);
     match class.scale {
         Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus => {
@@ -255,7 +264,10 @@ fn score_one(library: &Library, molecule: &Molecule, found: &FoundSite) -> Site 
     }
     // The estimate is the sum of its terms, added in the order they are listed, so that a
     // reader adding them up gets the same number.
-    let pka = account.terms.iter().fold(0.0, |sum, t| sum + t.contribution);
+    let pka = account
+        .terms
+        .iter()
+        .fold(0.0, |sum, t| sum + t.contribution);
     let uncertainty =
         (k.uncertainty.powi(2) + account.approximate as f64 * APPROXIMATE_WIDENING.powi(2)).sqrt();
     let (low, high) = crate::AQUEOUS_WINDOW;
@@ -317,7 +329,11 @@ fn position(distance: usize) -> Position {
 
 /// The sigma of an entry at a position on a scale; falls back from sigma-minus/plus to
 /// sigma-para, and says when it did.
-fn hammett_sigma(entry: &SubstituentEntry, pos: Position, scale: Scale) -> Option<(f64, &'static str)> {
+fn hammett_sigma(
+    entry: &SubstituentEntry,
+    pos: Position,
+    scale: Scale,
+) -> Option<(f64, &'static str)> {
     match pos {
         Position::Meta => entry.sigma_m.map(|s| (s, "sigma_m")),
         Position::Ortho | Position::Para => match scale {
@@ -367,13 +383,16 @@ fn hammett(
     account: &mut Account,
 ) {
     let Some(ring) = site_ring(molecule, anchor) else {
-        account
-            .warnings
-            .push(format!("{}: the site is not on a ring; no substituents scored", class.name));
+        account.warnings.push(format!(
+            "{}: the site is not on a ring; no substituents scored",
+            class.name
+        ));
         return;
     };
     let n = ring.len();
-    let Some(start) = ring.iter().position(|&a| a == anchor) else { return };
+    let Some(start) = ring.iter().position(|&a| a == anchor) else {
+        return;
+    };
     let mut avoid: Vec<usize> = ring.to_vec();
     avoid.extend(found.matched.iter().copied());
     let fused = entry_by_id(library, "fused-ring");
@@ -387,12 +406,20 @@ fn hammett(
         let distance = step.min(n - step);
         let pos = position(distance);
         let number = step + 1; // ring numbering from the anchor as 1, the way chemists name it
-        // Ring atoms the class pattern names are part of its parent (the second N of a
-        // pyrimidine class): their own aza term is in the parent value, but what hangs on
-        // them is still scored.
+                               // Ring atoms the class pattern names are part of its parent (the second N of a
+                               // pyrimidine class): their own aza term is in the parent value, but what hangs on
+                               // them is still scored.
         let in_parent = found.matched.contains(&atom);
         if let Some(entry) = ring_member_entry(library, molecule, atom).filter(|_| !in_parent) {
-            push_hammett(account, entry, pos, class.scale, k.rho, format!("{number}-{}", entry.name), false);
+            push_hammett(
+                account,
+                entry,
+                pos,
+                class.scale,
+                k.rho,
+                format!("{number}-{}", entry.name),
+                false,
+            );
         }
         for nb in molecule.neighbors(atom) {
             let s = nb.atom;
@@ -415,7 +442,11 @@ fn hammett(
                 continue;
             }
             if shares_ring {
-                for r in molecule.rings().iter().filter(|r| r.contains(&s) && r.contains(&atom)) {
+                for r in molecule
+                    .rings()
+                    .iter()
+                    .filter(|r| r.contains(&s) && r.contains(&atom))
+                {
                     for &a in r {
                         let at = &molecule.atoms()[a];
                         if !ring.contains(&a)
@@ -441,7 +472,9 @@ fn hammett(
                         format!("{number}-{}", entry.name),
                         false,
                     ),
-                    None => account.warnings.push("no fused-ring entry in the table".into()),
+                    None => account
+                        .warnings
+                        .push("no fused-ring entry in the table".into()),
                 }
                 continue;
             }
@@ -456,9 +489,22 @@ fn hammett(
                     }
                     let ortho = pos == Position::Ortho;
                     if ortho && site_in_ring {
-                        push_ortho_inductive(account, r.entry, k.rho, format!("{number}-{}", r.entry.name));
+                        push_ortho_inductive(
+                            account,
+                            r.entry,
+                            k.rho,
+                            format!("{number}-{}", r.entry.name),
+                        );
                     } else {
-                        push_hammett(account, r.entry, pos, class.scale, k.rho, format!("{number}-{}", r.entry.name), ortho);
+                        push_hammett(
+                            account,
+                            r.entry,
+                            pos,
+                            class.scale,
+                            k.rho,
+                            format!("{number}-{}", r.entry.name),
+                            ortho,
+                        );
                     }
                     if ortho && k.ortho_term != 0.0 {
                         account.terms.push(Term {
@@ -469,22 +515,34 @@ fn hammett(
                             rho: None,
                             position: Some("ortho".into()),
                             role: TermRole::Correction,
-                                            ortho_substituent: false,
+                            ortho_substituent: false,
                             counted: None,
                         });
                     }
                 }
                 None => {
                     account.approximate += 1;
-                    account
-                        .warnings
-                        .push(format!("{number}-substituent at atom {s} not recognized; not scored"));
+                    account.warnings.push(format!(
+                        "{number}-substituent at atom {s} not recognized; not scored"
+                    ));
                 }
             }
         }
     }
-    push_counted(account, Counted::FusedAza, fused_aza.len(), k.fused_aza_term, "pyridine-type N in a fused ring");
-    push_counted(account, Counted::RingOxo, ring_oxo, k.ring_oxo_term, "ring C=O / C=S");
+    push_counted(
+        account,
+        Counted::FusedAza,
+        fused_aza.len(),
+        k.fused_aza_term,
+        "pyridine-type N in a fused ring",
+    );
+    push_counted(
+        account,
+        Counted::RingOxo,
+        ring_oxo,
+        k.ring_oxo_term,
+        "ring C=O / C=S",
+    );
 }
 
 /// A counted class correction, shown even while its value is 0 so that the reader sees
@@ -535,9 +593,10 @@ fn push_hammett(
         }
         None => {
             account.approximate += 1;
-            account
-                .warnings
-                .push(format!("{label}: no {} sigma tabulated; not scored", pos.name()));
+            account.warnings.push(format!(
+                "{label}: no {} sigma tabulated; not scored",
+                pos.name()
+            ));
         }
     }
 }
@@ -558,14 +617,22 @@ fn sigma_inductive(entry: &SubstituentEntry) -> Option<f64> {
 fn push_ortho_inductive(account: &mut Account, entry: &SubstituentEntry, rho: f64, label: String) {
     match sigma_inductive(entry) {
         Some(sigma) => {
-            account.substituent(label, sigma, rho, "ortho (sigma_I = (3 sigma_m - sigma_p) / 2)".into(), entry);
+            account.substituent(
+                label,
+                sigma,
+                rho,
+                "ortho (sigma_I = (3 sigma_m - sigma_p) / 2)".into(),
+                entry,
+            );
             if let Some(t) = account.terms.last_mut() {
                 t.ortho_substituent = true;
             }
         }
         None => {
             account.approximate += 1;
-            account.warnings.push(format!("{label}: no sigma_m and sigma_p to derive an ortho constant; not scored"));
+            account.warnings.push(format!(
+                "{label}: no sigma_m and sigma_p to derive an ortho constant; not scored"
+            ));
         }
     }
 }
@@ -582,7 +649,9 @@ const SIGMA_I_PER_SIGMA_STAR_CH2: f64 = 0.45;
 /// it had to be derived from the entry's Hammett constants (no sigma* tabulated).
 fn taft_sigma(entry: &SubstituentEntry, depth: usize) -> Option<(f64, bool)> {
     let tabulated = if depth == 0 {
-        entry.sigma_star.or(entry.sigma_star_ch2.map(|s| s / TAFT_FALLOFF))
+        entry
+            .sigma_star
+            .or(entry.sigma_star_ch2.map(|s| s / TAFT_FALLOFF))
     } else {
         entry
             .sigma_star_ch2
@@ -617,9 +686,14 @@ fn taft(
     if anchor != found.atom {
         let h = molecule.total_hydrogens(anchor);
         if h > 0 {
-            let (sigma, source) = match entry_by_id(library, "hydrogen").and_then(|e| e.sigma_star.map(|s| (s, cite(e)))) {
+            let (sigma, source) = match entry_by_id(library, "hydrogen")
+                .and_then(|e| e.sigma_star.map(|s| (s, cite(e))))
+            {
                 Some(x) => x,
-                None => (SIGMA_STAR_H, "Taft 1956, sigma*(H) = 0.49 (from memory)".to_string()),
+                None => (
+                    SIGMA_STAR_H,
+                    "Taft 1956, sigma*(H) = 0.49 (from memory)".to_string(),
+                ),
             };
             account.terms.push(Term {
                 label: format!("{h} H on the reaction centre"),
@@ -630,7 +704,7 @@ fn taft(
                 position: Some("1 bond".into()),
                 role: TermRole::Substituent,
                 ortho_substituent: false,
-            counted: None,
+                counted: None,
             });
         }
     }
@@ -651,13 +725,20 @@ fn taft(
     let mut alkyl = 0.0;
     let mut alkyl_source = None;
     while let Some((atom, from, depth)) = queue.pop_front() {
-        let recognized = recognize(library, molecule, atom, from, &visited_except(&visited, atom));
+        let recognized = recognize(
+            library,
+            molecule,
+            atom,
+            from,
+            &visited_except(&visited, atom),
+        );
         let walk = match &recognized {
             // A saturated carbon the table has no sigma* for (CHF2, CH2CN...) is taken
             // apart: the walk scores what hangs on it.
             Some(r) => {
                 r.entry.walk
-                    || ((r.approximate || !has_taft_value(r.entry)) && is_plain_carbon(molecule, atom))
+                    || ((r.approximate || !has_taft_value(r.entry))
+                        && is_plain_carbon(molecule, atom))
             }
             None => is_plain_carbon(molecule, atom),
         };
@@ -666,13 +747,13 @@ fn taft(
             // it is an alkyl branch on the chain, counted with sigma*(CH3CH2) = -0.10.
             if depth >= 1 {
                 let methyl = entry_by_id(library, "methyl");
-                let s = methyl
-                    .and_then(|e| e.sigma_star_ch2)
-                    .unwrap_or(-0.10)
+                let s = methyl.and_then(|e| e.sigma_star_ch2).unwrap_or(-0.10)
                     * TAFT_FALLOFF.powi(depth as i32 - 1);
                 alkyl += s;
                 alkyl_source.get_or_insert_with(|| {
-                    methyl.map(cite).unwrap_or_else(|| "Taft 1956, sigma*(CH3CH2) = -0.10 (from memory)".into())
+                    methyl
+                        .map(cite)
+                        .unwrap_or_else(|| "Taft 1956, sigma*(CH3CH2) = -0.10 (from memory)".into())
                 });
             }
             if depth + 1 <= TAFT_MAX_DEPTH {

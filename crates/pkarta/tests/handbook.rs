@@ -75,7 +75,12 @@ fn check_site_file(file: &str) {
             _ => {}
         }
         if let Some(t) = &c.term {
-            if !site.terms.iter().any(|x| x.position.as_deref().is_some_and(|p| p.contains(t.as_str())) || x.label.contains(t.as_str())) {
+            if !site.terms.iter().any(|x| {
+                x.position
+                    .as_deref()
+                    .is_some_and(|p| p.contains(t.as_str()))
+                    || x.label.contains(t.as_str())
+            }) {
                 failures.push(format!("{}: no term mentioning {t:?}", c.name));
             }
         }
@@ -113,9 +118,17 @@ fn nitrobenzoic_acid_has_a_sigma_para_nitro_term() {
         .iter()
         .find(|t| t.position.as_deref().is_some_and(|p| p.starts_with("para")) && t.sigma.is_some())
         .expect("a para term");
-    assert!(nitro.label.contains("NO2") || nitro.label.to_lowercase().contains("nitro"), "{}", nitro.label);
+    assert!(
+        nitro.label.contains("NO2") || nitro.label.to_lowercase().contains("nitro"),
+        "{}",
+        nitro.label
+    );
     // Hansch, Leo and Taft 1991: sigma-para of NO2 is 0.78.
-    assert!((nitro.sigma.unwrap() - 0.78).abs() < 0.02, "sigma {:?}", nitro.sigma);
+    assert!(
+        (nitro.sigma.unwrap() - 0.78).abs() < 0.02,
+        "sigma {:?}",
+        nitro.sigma
+    );
 }
 
 #[derive(Deserialize)]
@@ -150,11 +163,20 @@ fn several_sites() {
             continue;
         }
         if r.macro_pka.len() != c.macro_pka.len() {
-            failures.push(format!("{}: {} constants {:?}, handbook {:?}", c.name, r.macro_pka.len(), r.macro_pka, c.macro_pka));
+            failures.push(format!(
+                "{}: {} constants {:?}, handbook {:?}",
+                c.name,
+                r.macro_pka.len(),
+                r.macro_pka,
+                c.macro_pka
+            ));
         } else {
             for (got, want) in r.macro_pka.iter().zip(&c.macro_pka) {
                 if (got - want).abs() > c.tolerance {
-                    failures.push(format!("{}: constants {:.2?}, handbook {:?} (tolerance {})", c.name, r.macro_pka, c.macro_pka, c.tolerance));
+                    failures.push(format!(
+                        "{}: constants {:.2?}, handbook {:?} (tolerance {})",
+                        c.name, r.macro_pka, c.macro_pka, c.tolerance
+                    ));
                     break;
                 }
             }
@@ -162,14 +184,20 @@ fn several_sites() {
         if let (Some(pi), Some(tol)) = (c.isoelectric_point, c.isoelectric_tolerance) {
             match r.isoelectric_point {
                 Some(got) if (got - pi).abs() <= tol => {}
-                got => failures.push(format!("{}: isoelectric point {got:?}, handbook {pi} (tolerance {tol})", c.name)),
+                got => failures.push(format!(
+                    "{}: isoelectric point {got:?}, handbook {pi} (tolerance {tol})",
+                    c.name
+                )),
             }
         }
         if let (Some([ph, q]), Some(tol)) = (c.charge_at, c.charge_tolerance) {
             let at = estimate(&c.smiles, None, &Options { ph });
             let got = at.charge_at_ph.unwrap_or(f64::NAN);
             if !((got - q).abs() <= tol) {
-                failures.push(format!("{}: charge at pH {ph} {got:.3}, handbook-derived {q} (tolerance {tol})", c.name));
+                failures.push(format!(
+                    "{}: charge at pH {ph} {got:.3}, handbook-derived {q} (tolerance {tol})",
+                    c.name
+                ));
             }
         }
         if let Some(d) = &c.dominant_at_7 {
@@ -178,18 +206,28 @@ fn several_sites() {
             let has_plus = top.smiles.contains('+');
             let has_minus = top.smiles.contains("-]");
             if !(top.charge == 0 && has_plus && has_minus) {
-                failures.push(format!("{}: top species at pH 7 is {} (charge {}), not a zwitterion", c.name, top.smiles, top.charge));
+                failures.push(format!(
+                    "{}: top species at pH 7 is {} (charge {}), not a zwitterion",
+                    c.name, top.smiles, top.charge
+                ));
             }
         }
         if let Some(why) = &c.known_miss {
             if failures.len() == before {
-                failures.push(format!("{}: marked as a known miss ({why}) but now passes: remove the mark", c.name));
+                failures.push(format!(
+                    "{}: marked as a known miss ({why}) but now passes: remove the mark",
+                    c.name
+                ));
             } else {
                 failures.truncate(before);
             }
         }
     }
-    assert!(failures.is_empty(), "handbook_multisite.toml:\n{}", failures.join("\n"));
+    assert!(
+        failures.is_empty(),
+        "handbook_multisite.toml:\n{}",
+        failures.join("\n")
+    );
 }
 
 #[derive(Deserialize)]
@@ -212,11 +250,19 @@ fn same_molecule_written_differently_gives_identical_estimates() {
             let r = estimate(input, None, &Options::default());
             assert!(r.error.is_none(), "{}: {input}: {:?}", g.name, r.error);
             assert!(!r.sites.is_empty(), "{}: {input}: no sites", g.name);
-            let mut values: Vec<(String, u64)> = r.sites.iter().map(|s| (s.class.clone(), s.pka.to_bits())).collect();
+            let mut values: Vec<(String, u64)> = r
+                .sites
+                .iter()
+                .map(|s| (s.class.clone(), s.pka.to_bits()))
+                .collect();
             values.sort();
             match &first {
                 None => first = Some(values),
-                Some(f) => assert_eq!(f, &values, "{}: {input} differs from {}", g.name, g.inputs[0]),
+                Some(f) => assert_eq!(
+                    f, &values,
+                    "{}: {input} differs from {}",
+                    g.name, g.inputs[0]
+                ),
             }
         }
     }
@@ -224,7 +270,13 @@ fn same_molecule_written_differently_gives_identical_estimates() {
 
 #[test]
 fn terms_add_up_to_the_estimate_exactly() {
-    for smiles in ["OC(=O)c1ccc(cc1)[N+](=O)[O-]", "NCC(=O)O", "Clc1cccnc1", "OC(=O)CCCl", "CCN(CC)CC"] {
+    for smiles in [
+        "OC(=O)c1ccc(cc1)[N+](=O)[O-]",
+        "NCC(=O)O",
+        "Clc1cccnc1",
+        "OC(=O)CCCl",
+        "CCN(CC)CC",
+    ] {
         let r = estimate(smiles, None, &Options::default());
         for s in r.sites.iter().chain(&r.sites_outside_window) {
             let sum = s.terms.iter().fold(0.0, |acc, t| acc + t.contribution);
@@ -236,10 +288,22 @@ fn terms_add_up_to_the_estimate_exactly() {
 
 #[test]
 fn a_molecule_without_sites_is_one_neutral_species() {
-    for smiles in ["c1ccccc1", "CCCCCC", "CCOCC", "CCOC(C)=O", "CC#N", "CC(C)=O", "Cc1ccccc1"] {
+    for smiles in [
+        "c1ccccc1",
+        "CCCCCC",
+        "CCOCC",
+        "CCOC(C)=O",
+        "CC#N",
+        "CC(C)=O",
+        "Cc1ccccc1",
+    ] {
         let r = estimate(smiles, None, &Options::default());
         assert!(r.error.is_none(), "{smiles}");
-        assert!(r.sites.is_empty(), "{smiles}: sites in the aqueous window: {:?}", r.sites);
+        assert!(
+            r.sites.is_empty(),
+            "{smiles}: sites in the aqueous window: {:?}",
+            r.sites
+        );
         assert_eq!(r.species.len(), 1, "{smiles}");
         assert_eq!(r.species[0].charge, 0);
         assert!((r.species[0].fraction - 1.0).abs() < 1e-12);
