@@ -5,28 +5,78 @@
 //! written lower case with the bonds between them elided; an atom goes in brackets when its
 //! charge, isotope, class or hydrogen count is not what a reader would infer without them.
 //! Stereo marks are not written (the molecule does not keep them).
+//!
+//! Protonation microstates are written through an overlay of proton moves (see
+//! [`write_smiles_with_protons`]) rather than a modified copy of the molecule: a record writes
+//! several species of one parent, and copying the whole molecule for each cost more than
+//! writing it.
 
 use crate::elements::{allowed_valences, organic_valences, symbol};
 use crate::molecule::Molecule;
 
 /// Writes SMILES and returns, for each atom in the order written, its index in `m`.
 pub fn write_smiles_ordered(m: &Molecule) -> (String, Vec<usize>) {
-    let mut out = String::new();
     let mut order = Vec::with_capacity(m.atoms.len());
+    let out = write(&View { m, edits: &[] }, Some(&mut order));
+    (out, order)
+}
+
+/// Writes the molecule with protons moved, as [`Molecule::with_protons`] would move them:
+/// `write_smiles_with_protons(m, edits) == write_smiles(&m.with_protons(edits))`, without
+/// the copy.
+pub fn write_smiles_with_protons(m: &Molecule, edits: &[(usize, i8)]) -> String {
+    write(&View { m, edits }, None)
+}
+
+/// The molecule as written: its own atoms, with hydrogens and charges changed by `edits`.
+struct View<'a> {
+    m: &'a Molecule,
+    edits: &'a [(usize, i8)],
+}
+
+impl View<'_> {
+    /// Hydrogens and charge of atom `i`, after the edits (applied in order, as
+    /// [`Molecule::with_protons`] does).
+    #[inline]
+    fn hc(&self, i: usize) -> (u8, i8) {
+        let a = &self.m.atoms[i];
+        let (mut h, mut c) = (a.hydrogens, a.charge);
+        for &(atom, delta) in self.edits {
+            if atom == i {
+                h = (h as i16 + delta as i16).max(0) as u8;
+                c = c.wrapping_add(delta);
+            }
+        }
+        (h, c)
+    }
+}
+
+fn write(v: &View, mut order: Option<&mut Vec<usize>>) -> String {
+    let m = v.m;
+    let mut out = String::with_capacity(m.input.len() + 16);
+    let mut scratch = Scratch::new(m);
     for (k, component) in m.components.iter().enumerate() {
         if k > 0 {
             out.push('.');
         }
-        let lower = aromatic_writable(m, component);
-        write_component(m, component, lower, &mut out, &mut order);
+        let lower = aromatic_writable(v, component);
+        write_component(
+            v,
+            component,
+            lower,
+            &mut out,
+            order.as_deref_mut(),
+            &mut scratch,
+        );
     }
-    (out, order)
+    out
 }
 
 /// Whether the component can be written with lower-case aromatic atoms such that a reader
 /// infers the same hydrogens and the same Kekulé needs; if not it is written in Kekulé
 /// form, which the aromaticity model perceives the same way.
-fn aromatic_writable(m: &Molecule, component: &[usize]) -> bool {
+fn aromatic_writable(v: &View, component: &[usize]) -> bool {
+    let m = v.m;
     component.iter().all(|&i| {
         let a = &m.atoms[i];
         if !a.aromatic {
@@ -38,13 +88,14 @@ fn aromatic_writable(m: &Molecule, component: &[usize]) -> bool {
         let has_double = m.neighbors[i]
             .iter()
             .any(|n| m.bonds[n.bond].aromatic && m.bonds[n.bond].order == 2);
-        if organic_form(m, i, true) {
+        if organic_form(v, i, true) {
             return true;
         }
         // In brackets the hydrogens are given; the free valence must still call for the
         // double bond exactly when the Kekulé form has one.
-        let used = written_bond_sum(m, i, true) + a.hydrogens as u32;
-        let free = allowed_valences(a.element, a.charge)
+        let (hydrogens, charge) = v.hc(i);
+        let used = written_bond_sum(m, i, true) + hydrogens as u32;
+        let free = allowed_valences(a.element, charge)
             .and_then(|v| v.iter().map(|&t| t as u32).find(|&t| t >= used))
             .map_or(0, |t| t - used);
         (free >= 1) == has_double
@@ -68,13 +119,15 @@ fn written_bond_sum(m: &Molecule, i: usize, lower: bool) -> u32 {
 
 /// Whether the atom can be written without brackets and read back with the same
 /// hydrogens (and, for aromatic atoms, the same need for a ring double bond).
-fn organic_form(m: &Molecule, i: usize, lower: bool) -> bool {
+fn organic_form(v: &View, i: usize, lower: bool) -> bool {
+    let m = v.m;
     let a = &m.atoms[i];
-    if a.charge != 0 || a.isotope.is_some() || a.atom_class.is_some() {
+    let (hydrogens, charge) = v.hc(i);
+    if charge != 0 || a.isotope.is_some() || a.atom_class.is_some() {
         return false;
     }
     if a.element == 0 {
-        return a.hydrogens == 0;
+        return hydrogens == 0;
     }
     let aromatic = lower && a.aromatic;
     if aromatic && !matches!(a.element, 5 | 6 | 7 | 8 | 15 | 16) {
@@ -101,47 +154,74 @@ fn organic_form(m: &Molecule, i: usize, lower: bool) -> bool {
         let has_double = m.neighbors[i]
             .iter()
             .any(|n| m.bonds[n.bond].aromatic && m.bonds[n.bond].order == 2);
-        (free >= 1) == has_double && free.saturating_sub(1) == a.hydrogens as u32
+        (free >= 1) == has_double && free.saturating_sub(1) == hydrogens as u32
     } else {
-        free == a.hydrogens as u32
+        free == hydrogens as u32
     }
 }
 
-fn atom_text(m: &Molecule, i: usize, lower: bool, out: &mut String) {
-    let a = &m.atoms[i];
-    let aromatic = lower && a.aromatic;
-    let sym = symbol(a.element);
-    let sym = if aromatic {
-        sym.to_ascii_lowercase()
+/// Appends a number in decimal without a temporary string.
+fn push_number(out: &mut String, x: u32) {
+    let mut digits = [0u8; 10];
+    let mut k = digits.len();
+    let mut x = x;
+    loop {
+        k -= 1;
+        digits[k] = b'0' + (x % 10) as u8;
+        x /= 10;
+        if x == 0 {
+            break;
+        }
+    }
+    for &d in &digits[k..] {
+        out.push(d as char);
+    }
+}
+
+fn push_symbol(out: &mut String, element: u8, aromatic: bool) {
+    let sym = symbol(element);
+    if aromatic {
+        for c in sym.chars() {
+            out.push(c.to_ascii_lowercase());
+        }
     } else {
-        sym.to_string()
-    };
-    if organic_form(m, i, lower) {
-        out.push_str(&sym);
+        out.push_str(sym);
+    }
+}
+
+fn atom_text(v: &View, i: usize, lower: bool, out: &mut String) {
+    let a = &v.m.atoms[i];
+    let aromatic = lower && a.aromatic;
+    if organic_form(v, i, lower) {
+        push_symbol(out, a.element, aromatic);
         return;
     }
+    let (hydrogens, charge) = v.hc(i);
     out.push('[');
     if let Some(iso) = a.isotope {
-        out.push_str(&iso.to_string());
+        push_number(out, iso as u32);
     }
-    out.push_str(&sym);
-    match a.hydrogens {
+    push_symbol(out, a.element, aromatic);
+    match hydrogens {
         0 => {}
         1 => out.push('H'),
         h => {
             out.push('H');
-            out.push_str(&h.to_string());
+            push_number(out, h as u32);
         }
     }
-    match a.charge {
+    match charge {
         0 => {}
         1 => out.push('+'),
         -1 => out.push('-'),
-        c => out.push_str(&format!("{c:+}")),
+        c => {
+            out.push(if c > 0 { '+' } else { '-' });
+            push_number(out, (c as i32).unsigned_abs());
+        }
     }
     if let Some(class) = a.atom_class {
         out.push(':');
-        out.push_str(&class.to_string());
+        push_number(out, class as u32);
     }
     out.push(']');
 }
@@ -164,74 +244,140 @@ enum Task {
     Text(&'static str),
 }
 
+/// Per-molecule arrays of the walk, allocated once for all components and left ready
+/// (`usize::MAX`, `false`, empty) for the next one.
+struct Scratch {
+    pre: Vec<usize>,
+    is_closure: Vec<bool>,
+    tree: Vec<bool>,
+    digit_of: Vec<usize>,
+    /// Neighbours of each atom sorted by (atom, bond), flat, with `start` offsets.
+    sorted: Vec<(usize, usize)>,
+    start: Vec<usize>,
+    /// Children (child, bond) and ring-closure bonds, flat with per-atom ranges.
+    children: Vec<(usize, usize)>,
+    child_range: Vec<(usize, usize)>,
+    closures: Vec<Vec<usize>>,
+    stack: Vec<(usize, usize)>,
+    tasks: Vec<Task>,
+    free: Vec<bool>,
+    rings: Vec<usize>,
+    freed: Vec<usize>,
+}
+
+impl Scratch {
+    fn new(m: &Molecule) -> Self {
+        let n = m.atoms.len();
+        let nb = m.bonds.len();
+        let mut sorted = Vec::with_capacity(2 * nb);
+        let mut start = Vec::with_capacity(n + 1);
+        for v in 0..n {
+            start.push(sorted.len());
+            let from = sorted.len();
+            sorted.extend(m.neighbors[v].iter().map(|nb| (nb.atom, nb.bond)));
+            sorted[from..].sort_unstable();
+        }
+        start.push(sorted.len());
+        Scratch {
+            pre: vec![usize::MAX; n],
+            is_closure: vec![false; nb],
+            tree: vec![false; nb],
+            digit_of: vec![usize::MAX; nb],
+            sorted,
+            start,
+            children: Vec::with_capacity(n),
+            child_range: vec![(0, 0); n],
+            closures: Vec::new(),
+            stack: Vec::new(),
+            tasks: Vec::new(),
+            free: Vec::new(),
+            rings: Vec::new(),
+            freed: Vec::new(),
+        }
+    }
+}
+
 fn write_component(
-    m: &Molecule,
+    v: &View,
     component: &[usize],
     lower: bool,
     out: &mut String,
-    order: &mut Vec<usize>,
+    mut order: Option<&mut Vec<usize>>,
+    s: &mut Scratch,
 ) {
+    let m = v.m;
     let Some(&root) = component.first() else {
         return;
     };
-    let n = m.atoms.len();
-    // Pass 1: depth-first tree, preorder, ring-closure bonds.
-    let mut pre = vec![usize::MAX; n];
-    let mut children: Vec<Vec<(usize, usize)>> = vec![Vec::new(); n];
-    let mut closures: Vec<Vec<usize>> = vec![Vec::new(); n];
-    let mut is_closure = vec![false; m.bonds.len()];
-    let mut tree = vec![false; m.bonds.len()];
+    // Pass 1: depth-first tree, preorder, ring-closure bonds. Children are recorded in
+    // discovery order; a node's children are found while it is on top of the stack, so
+    // they are stored per node after the walk from (parent, child, bond) triples.
     let mut counter = 0;
-    pre[root] = counter;
+    s.pre[root] = counter;
     counter += 1;
-    let mut stack: Vec<(usize, usize)> = vec![(root, 0)];
-    let sorted: Vec<Vec<(usize, usize)>> = component
-        .iter()
-        .map(|&v| {
-            let mut s: Vec<(usize, usize)> =
-                m.neighbors[v].iter().map(|nb| (nb.atom, nb.bond)).collect();
-            s.sort_unstable();
-            s
-        })
-        .collect();
-    let mut local = vec![usize::MAX; n];
-    for (k, &v) in component.iter().enumerate() {
-        local[v] = k;
-    }
-    while let Some(&mut (v, ref mut k)) = stack.last_mut() {
-        let list = &sorted[local[v]];
+    s.stack.clear();
+    s.stack.push((root, 0));
+    let mut found: Vec<(usize, usize, usize)> = Vec::with_capacity(component.len());
+    let mut closure_bonds: Vec<usize> = Vec::new();
+    while let Some(&mut (at, ref mut k)) = s.stack.last_mut() {
+        let list = &s.sorted[s.start[at]..s.start[at + 1]];
         if *k >= list.len() {
-            stack.pop();
+            s.stack.pop();
             continue;
         }
         let (w, b) = list[*k];
         *k += 1;
-        if tree[b] || is_closure[b] {
+        if s.tree[b] || s.is_closure[b] {
             continue;
         }
-        if pre[w] == usize::MAX {
-            tree[b] = true;
-            pre[w] = counter;
+        if s.pre[w] == usize::MAX {
+            s.tree[b] = true;
+            s.pre[w] = counter;
             counter += 1;
-            children[v].push((w, b));
-            stack.push((w, 0));
+            found.push((at, w, b));
+            s.stack.push((w, 0));
         } else {
-            is_closure[b] = true;
-            closures[v].push(b);
-            closures[w].push(b);
+            s.is_closure[b] = true;
+            closure_bonds.push(b);
+        }
+    }
+    // Children of each atom, in discovery order (a stable sort by parent keeps it).
+    s.children.clear();
+    found.sort_by_key(|&(p, _, _)| s.pre[p]);
+    let mut i = 0;
+    while i < found.len() {
+        let p = found[i].0;
+        let from = s.children.len();
+        while i < found.len() && found[i].0 == p {
+            s.children.push((found[i].1, found[i].2));
+            i += 1;
+        }
+        s.child_range[p] = (from, s.children.len());
+    }
+    // Ring-closure bonds at each of their two atoms, in the order found.
+    let has_closures = !closure_bonds.is_empty();
+    if has_closures {
+        if s.closures.len() < m.atoms.len() {
+            s.closures.resize_with(m.atoms.len(), Vec::new);
+        }
+        for &b in &closure_bonds {
+            let (x, y) = (m.bonds[b].a, m.bonds[b].b);
+            s.closures[x].push(b);
+            s.closures[y].push(b);
         }
     }
     // Pass 2: emit in the same order.
-    let mut digit_of: Vec<Option<usize>> = vec![None; m.bonds.len()];
     // Index 0 is never used; past 99 the list grows (see `push_digit`).
-    let mut free: Vec<bool> = vec![true; 100];
-    free[0] = false;
-    let mut tasks = vec![Task::Atom {
+    s.free.clear();
+    s.free.resize(100, true);
+    s.free[0] = false;
+    s.tasks.clear();
+    s.tasks.push(Task::Atom {
         atom: root,
         via: None,
-    }];
-    while let Some(task) = tasks.pop() {
-        let (v, via) = match task {
+    });
+    while let Some(task) = s.tasks.pop() {
+        let (at, via) = match task {
             Task::Text(t) => {
                 out.push_str(t);
                 continue;
@@ -241,52 +387,75 @@ fn write_component(
         if let Some(b) = via {
             out.push_str(bond_text(m, b, lower));
         }
-        atom_text(m, v, lower, out);
-        order.push(v);
-        let mut rings = closures[v].clone();
-        // Closings first (their digits free up for the openings), each in bond order.
-        rings.sort_by_key(|&b| (digit_of[b].is_none(), b));
-        let mut freed = Vec::new();
-        for b in rings {
-            match digit_of[b] {
-                Some(d) => {
-                    freed.push(d);
-                    push_digit(out, d);
-                }
-                None => {
-                    let d = match (1..free.len()).find(|&d| free[d]) {
-                        Some(d) => d,
-                        None => {
-                            free.push(true);
-                            free.len() - 1
-                        }
-                    };
-                    free[d] = false;
-                    digit_of[b] = Some(d);
-                    out.push_str(bond_text(m, b, lower));
-                    push_digit(out, d);
+        atom_text(v, at, lower, out);
+        if let Some(order) = order.as_deref_mut() {
+            order.push(at);
+        }
+        if has_closures && !s.closures[at].is_empty() {
+            s.rings.clear();
+            s.rings.extend_from_slice(&s.closures[at]);
+            // Closings first (their digits free up for the openings), each in bond order.
+            let digit_of = &s.digit_of;
+            s.rings.sort_by_key(|&b| (digit_of[b] == usize::MAX, b));
+            s.freed.clear();
+            for k in 0..s.rings.len() {
+                let b = s.rings[k];
+                match s.digit_of[b] {
+                    usize::MAX => {
+                        let d = match (1..s.free.len()).find(|&d| s.free[d]) {
+                            Some(d) => d,
+                            None => {
+                                s.free.push(true);
+                                s.free.len() - 1
+                            }
+                        };
+                        s.free[d] = false;
+                        s.digit_of[b] = d;
+                        out.push_str(bond_text(m, b, lower));
+                        push_digit(out, d);
+                    }
+                    d => {
+                        s.freed.push(d);
+                        push_digit(out, d);
+                    }
                 }
             }
+            // Freed only now, so no digit closes and reopens on one atom.
+            for &d in &s.freed {
+                s.free[d] = true;
+            }
         }
-        // Freed only now, so no digit closes and reopens on one atom.
-        for d in freed {
-            free[d] = true;
-        }
-        let kids = &children[v];
+        let (from, to) = s.child_range[at];
+        let kids = &s.children[from..to];
         if let Some((&(last, lb), rest)) = kids.split_last() {
-            tasks.push(Task::Atom {
+            s.tasks.push(Task::Atom {
                 atom: last,
                 via: Some(lb),
             });
             for &(c, cb) in rest.iter().rev() {
-                tasks.push(Task::Text(")"));
-                tasks.push(Task::Atom {
+                s.tasks.push(Task::Text(")"));
+                s.tasks.push(Task::Atom {
                     atom: c,
                     via: Some(cb),
                 });
-                tasks.push(Task::Text("("));
+                s.tasks.push(Task::Text("("));
             }
         }
+    }
+    // Leave the scratch arrays ready for the next component.
+    for &a in component {
+        s.pre[a] = usize::MAX;
+        s.child_range[a] = (0, 0);
+    }
+    for &(_, _, b) in &found {
+        s.tree[b] = false;
+    }
+    for &b in &closure_bonds {
+        s.is_closure[b] = false;
+        s.digit_of[b] = usize::MAX;
+        let (x, y) = (m.bonds[b].a, m.bonds[b].b);
+        s.closures[x].clear();
+        s.closures[y].clear();
     }
 }
 
@@ -298,9 +467,11 @@ fn push_digit(out: &mut String, d: usize) {
         out.push((b'0' + d as u8) as char);
     } else if d < 100 {
         out.push('%');
-        out.push_str(&d.to_string());
+        push_number(out, d as u32);
     } else {
-        out.push_str(&format!("%({d})"));
+        out.push_str("%(");
+        push_number(out, d as u32);
+        out.push(')');
     }
 }
 
@@ -343,6 +514,39 @@ mod tests {
             write_smiles(&pyridine.with_protons(&[(3, 1)])),
             "c1cc[nH+]cc1"
         );
+    }
+
+    #[test]
+    fn proton_overlay_writes_what_a_modified_copy_writes() {
+        // Every single and double proton move on acids, bases, aromatic N and an atom moved
+        // twice: the overlay must give the copy's text exactly.
+        for s in [
+            "CC(=O)O",
+            "NCCc1c[nH]cn1",
+            "c1ccncc1C(=O)[O-]",
+            "OC(=O)c1cn(C2CC2)c2cc(N3CCNCC3)c(F)cc2c1=O",
+            "[13CH3:4]N",
+            "c1ccc2[nH]ccc2c1.[Na+]",
+        ] {
+            let m = parse(s).expect("test SMILES reads");
+            let n = m.atoms().len();
+            for i in 0..n {
+                for d in [-1i8, 1] {
+                    let edits = [(i, d)];
+                    assert_eq!(
+                        crate::write_smiles_with_protons(&m, &edits),
+                        write_smiles(&m.with_protons(&edits)),
+                        "{s} {edits:?}"
+                    );
+                    let twice = [(i, d), ((i + 1) % n, -d), (i, d)];
+                    assert_eq!(
+                        crate::write_smiles_with_protons(&m, &twice),
+                        write_smiles(&m.with_protons(&twice)),
+                        "{s} {twice:?}"
+                    );
+                }
+            }
+        }
     }
 
     #[test]

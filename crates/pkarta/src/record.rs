@@ -290,7 +290,7 @@ impl Analysis {
                 (s.atom, if s.kind == model::Kind::Acid { -1 } else { 1 })
             })
             .collect();
-        mol::write_smiles(&self.parent.with_protons(&edits))
+        mol::write_smiles_with_protons(&self.parent, &edits)
     }
 }
 
