@@ -199,6 +199,25 @@ fn main() {
                 black_box(sites(&library, m, cands))
             })
         });
+        // The same work through one `Matcher` per molecule, as site finding does: answers
+        // about environments and atom expressions are shared between the patterns.
+        let mut i = 0;
+        c.bench_function("Matcher, fragments/sites patterns, one molecule", |b| {
+            b.iter(|| {
+                let (m, cands) = &prepared[i % prepared.len()];
+                i += 1;
+                let mut matcher = pattern::Matcher::new(m);
+                let mut found = 0;
+                for &a in cands {
+                    for p in &library {
+                        if matcher.could_anchor(p, a) {
+                            found += matcher.matches_at(p, a, &[]).len();
+                        }
+                    }
+                }
+                black_box(found)
+            })
+        });
     }
     c.bench_function("parse all patterns", |b| {
         b.iter(|| {

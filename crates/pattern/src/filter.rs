@@ -158,6 +158,10 @@ impl AtomFilter {
             exact: by_element || by_charge,
         }
     }
+    /// The element/aromatic projection alone.
+    pub(crate) fn admits_element(&self, element: u8, aromatic: bool) -> bool {
+        self.elements.contains(element, aromatic)
+    }
     #[inline]
     pub(crate) fn admits(&self, molecule: &Molecule, atom: usize) -> bool {
         let a = &molecule.atoms()[atom];

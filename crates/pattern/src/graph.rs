@@ -51,6 +51,10 @@ pub(crate) struct Graph {
     pub(crate) filters: Vec<AtomFilter>,
     /// Pattern bonds per atom: a molecule atom with fewer neighbours cannot sit there.
     pub(crate) min_degree: Vec<usize>,
+    /// Process-wide id per atom expression (the same expression in any pattern has the same
+    /// id), so a `Matcher` can keep the answers for one molecule; empty until
+    /// `Pattern::parse` numbers them.
+    pub(crate) expr_ids: Vec<u32>,
 }
 
 impl Graph {
@@ -118,6 +122,7 @@ impl Graph {
             steps,
             filters,
             min_degree,
+            expr_ids: Vec::new(),
         }
     }
 }

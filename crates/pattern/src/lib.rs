@@ -41,6 +41,11 @@
 //! atom like `C` or `[c,n]` is decided by it alone). A search allocates nothing for patterns
 //! up to 32 atoms besides the matches it returns; `$()` environments are memoized per
 //! (environment, atom) within one call, the first 16 answers without allocating.
+//! [`Matcher`] runs many patterns on one molecule: every environment and every atom
+//! expression gets a process-wide id from its text at parse time, so answers are kept per
+//! molecule and shared between patterns (`!$(NC=O)` written in ten site classes is
+//! searched once per atom), in buffers reused from one matcher to the next on a thread.
+//! [`Pattern::first_match_at`] stops at the first match.
 //! `benches/match.rs` measures anchored site matching over a drug-like sample.
 //!
 //! # Checked against
@@ -71,8 +76,11 @@ pub use error::PatternError;
 
 use mol::Molecule;
 
+use std::collections::HashMap;
+use std::sync::{Mutex, OnceLock};
+
 use graph::Graph;
-use matcher::{Distinct, Search};
+use matcher::{Distinct, EnvMemo, Search};
 
 /// A compiled pattern.
 #[derive(Clone, Debug)]
@@ -81,6 +89,9 @@ pub struct Pattern {
     main: Graph,
     /// Recursive environments, referred to by index from `$()` primitives.
     subs: Vec<Graph>,
+    /// Process-wide id per environment, the same for the same `$()` text in any pattern, so
+    /// a [`Matcher`] shares answers about an environment between patterns.
+    env_ids: Vec<u32>,
     /// The anchored atom's filter, kept inline: `could_anchor` runs for every
     /// (pattern, atom) pair, so one pointer less matters.
     anchor_filter: filter::AtomFilter,
@@ -111,11 +122,21 @@ impl Pattern {
     /// Compiles pattern text.
     pub fn parse(text: &str) -> Result<Pattern, PatternError> {
         let (main, subs) = parse::parse(text)?;
+        let (mut main, mut subs) = (main, subs);
         let anchor_filter = main.filters[main.root];
+        let env_ids = environment_ids(text, subs.len());
+        for graph in std::iter::once(&mut main).chain(subs.iter_mut()) {
+            graph.expr_ids = graph
+                .atoms
+                .iter()
+                .map(|a| expression_id(&a.expr, &env_ids))
+                .collect();
+        }
         Ok(Pattern {
             text: text.to_string(),
             main,
             subs,
+            env_ids,
             anchor_filter,
         })
     }
@@ -160,7 +181,8 @@ impl Pattern {
     /// molecule, since they describe an atom's surroundings. An `atom` out of range has
     /// no matches.
     pub fn matches_at(&self, molecule: &Molecule, atom: usize, avoid: &[usize]) -> Vec<Match> {
-        let mut search = Search::new(molecule, &self.subs);
+        let mut memo = EnvMemo::new(molecule.atoms().len());
+        let mut search = Search::new(molecule, &self.subs, &self.env_ids, &mut memo);
         let mut distinct = Distinct::default();
         search.search(&self.main, atom, avoid, &mut |a| {
             distinct.add(a);
@@ -174,12 +196,31 @@ impl Pattern {
     }
     /// Whether any match sits on `atom` (cheaper than [`Pattern::matches_at`]).
     pub fn is_match_at(&self, molecule: &Molecule, atom: usize, avoid: &[usize]) -> bool {
-        let mut search = Search::new(molecule, &self.subs);
+        let mut memo = EnvMemo::new(molecule.atoms().len());
+        let mut search = Search::new(molecule, &self.subs, &self.env_ids, &mut memo);
         search.search(&self.main, atom, avoid, &mut |_| true)
+    }
+    /// The first match [`Pattern::matches_at`] would list, found without searching further
+    /// (cheaper when only one is wanted).
+    pub fn first_match_at(
+        &self,
+        molecule: &Molecule,
+        atom: usize,
+        avoid: &[usize],
+    ) -> Option<Match> {
+        let mut memo = EnvMemo::new(molecule.atoms().len());
+        let mut search = Search::new(molecule, &self.subs, &self.env_ids, &mut memo);
+        let mut first = None;
+        search.search(&self.main, atom, avoid, &mut |a| {
+            first = Some(a.to_vec());
+            true
+        });
+        first.map(|atoms| Match { atoms })
     }
     /// All matches anywhere in the molecule, distinct atom sets only, ordered by anchor atom.
     pub fn matches(&self, molecule: &Molecule) -> Vec<Match> {
-        let mut search = Search::new(molecule, &self.subs);
+        let mut memo = EnvMemo::new(molecule.atoms().len());
+        let mut search = Search::new(molecule, &self.subs, &self.env_ids, &mut memo);
         let mut distinct = Distinct::default();
         for atom in 0..molecule.atoms().len() {
             search.search(&self.main, atom, &[], &mut |a| {
@@ -198,6 +239,236 @@ impl Pattern {
     /// `false` is certain; `true` means a search is needed.
     pub fn could_anchor(&self, molecule: &Molecule, atom: usize) -> bool {
         atom < molecule.atoms().len() && self.anchor_filter.admits(molecule, atom)
+    }
+    /// Whether the anchored pattern atom could match some atom of this element and
+    /// aromaticity, whatever its charge: lets callers index patterns by anchor element once.
+    /// `false` is certain; for an atom with this element and aromaticity, `false` here
+    /// implies [`Pattern::could_anchor`] is `false`.
+    pub fn could_anchor_element(&self, element: u8, aromatic: bool) -> bool {
+        self.anchor_filter.admits_element(element, aromatic)
+    }
+}
+
+/// The text of each `$(...)` environment of `text`, in the order their `$(` stands, which
+/// is the order the parser numbers them in. Only called on text that parsed, where every
+/// `$` opens an environment and parentheses balance.
+fn environment_texts(text: &str) -> Vec<&str> {
+    let bytes = text.as_bytes();
+    let mut out = Vec::new();
+    for (start, _) in text.match_indices("$(") {
+        let mut depth = 0usize;
+        let mut end = bytes.len();
+        for (j, &b) in bytes.iter().enumerate().skip(start + 1) {
+            match b {
+                b'(' => depth += 1,
+                b')' => {
+                    depth -= 1;
+                    if depth == 0 {
+                        end = j + 1;
+                        break;
+                    }
+                }
+                _ => {}
+            }
+        }
+        out.push(&text[start..end]);
+    }
+    out
+}
+
+/// Process-wide ids of environment texts, handed out at parse time.
+static ENVIRONMENT_IDS: OnceLock<Mutex<HashMap<String, u32>>> = OnceLock::new();
+
+/// The process-wide id of each environment of a parsed pattern. Two environments with the
+/// same text compile to the same graph, so they may share answers; where the texts cannot
+/// be lined up with the parsed environments (never expected), each gets an id of its own.
+fn environment_ids(text: &str, count: usize) -> Vec<u32> {
+    if count == 0 {
+        return Vec::new();
+    }
+    let texts = environment_texts(text);
+    let mut ids = ENVIRONMENT_IDS
+        .get_or_init(|| Mutex::new(HashMap::new()))
+        .lock()
+        .unwrap_or_else(|e| e.into_inner());
+    let fresh = |ids: &mut HashMap<String, u32>| {
+        // A key no text can have (a NUL byte and a counter), so it is never shared.
+        let key = format!("\0{}", ids.len());
+        let id = ids.len() as u32;
+        ids.insert(key, id);
+        id
+    };
+    if texts.len() != count {
+        return (0..count).map(|_| fresh(&mut ids)).collect();
+    }
+    texts
+        .iter()
+        .map(|t| match ids.get(*t) {
+            Some(&id) => id,
+            None => {
+                let id = ids.len() as u32;
+                ids.insert(t.to_string(), id);
+                id
+            }
+        })
+        .collect()
+}
+
+/// Process-wide ids of atom expressions, handed out at parse time.
+static EXPRESSION_IDS: OnceLock<Mutex<HashMap<String, u32>>> = OnceLock::new();
+
+/// Writes an atom expression as a key: its structure, with environments named by their
+/// process-wide ids (local numbers differ from pattern to pattern).
+fn expression_key(expr: &expr::Expr<primitive::AtomPrim>, env_ids: &[u32], out: &mut String) {
+    use std::fmt::Write;
+    match expr {
+        expr::Expr::Prim(primitive::AtomPrim::Recursive(id)) => {
+            // An environment out of range never holds; give it a key no other shares.
+            match env_ids.get(*id as usize) {
+                Some(env) => write!(out, "${env}"),
+                None => write!(out, "$?{id}"),
+            }
+            .ok();
+        }
+        expr::Expr::Prim(p) => {
+            write!(out, "{p:?}").ok();
+        }
+        expr::Expr::Not(e) => {
+            out.push_str("!(");
+            expression_key(e, env_ids, out);
+            out.push(')');
+        }
+        expr::Expr::And(es) | expr::Expr::Or(es) => {
+            out.push_str(if matches!(expr, expr::Expr::And(_)) {
+                "&("
+            } else {
+                "|("
+            });
+            for e in es {
+                expression_key(e, env_ids, out);
+                out.push(' ');
+            }
+            out.push(')');
+        }
+    }
+}
+
+/// The process-wide id of an atom expression: equal expressions (environments by their
+/// ids) share it, so their answers on one molecule may be shared.
+fn expression_id(expr: &expr::Expr<primitive::AtomPrim>, env_ids: &[u32]) -> u32 {
+    let mut key = String::new();
+    expression_key(expr, env_ids, &mut key);
+    let mut ids = EXPRESSION_IDS
+        .get_or_init(|| Mutex::new(HashMap::new()))
+        .lock()
+        .unwrap_or_else(|e| e.into_inner());
+    let next = ids.len() as u32;
+    *ids.entry(key).or_insert(next)
+}
+
+/// Matching state for one molecule, reused across many patterns and atoms: answers about
+/// `$()` environments are kept for the molecule and shared by every pattern holding the
+/// same environment text, so site finding over a whole library evaluates each environment
+/// on each atom at most once. Results are exactly those of the [`Pattern`] methods of the
+/// same names.
+///
+/// ```
+/// let molecule = mol::parse("NCC(=O)O")?;
+/// let amine = pattern::Pattern::parse("[NX3;!$(NC=O):1]")?;
+/// let acid = pattern::Pattern::parse("[OX2H1;!$(ON):1]C=O")?;
+/// let mut matcher = pattern::Matcher::new(&molecule);
+/// assert!(matcher.is_match_at(&amine, 0, &[]));
+/// assert_eq!(matcher.matches_at(&acid, 4, &[]).len(), 1);
+/// Ok::<(), Box<dyn std::error::Error>>(())
+/// ```
+#[derive(Clone, Debug)]
+pub struct Matcher<'m> {
+    molecule: &'m Molecule,
+    /// Boxed, so handing the buffers to and from the thread's spare slot moves a pointer;
+    /// `None` only while being dropped.
+    memo: Option<Box<EnvMemo>>,
+}
+
+thread_local! {
+    /// Buffers handed back by the last matcher dropped on this thread.
+    static SPARE_MEMO: std::cell::RefCell<Option<Box<EnvMemo>>> =
+        const { std::cell::RefCell::new(None) };
+}
+
+impl Drop for Matcher<'_> {
+    fn drop(&mut self) {
+        let Some(memo) = self.memo.take() else {
+            return;
+        };
+        // During thread teardown the slot may be gone; the buffers are then just freed.
+        let _ = SPARE_MEMO.try_with(|spare| *spare.borrow_mut() = Some(memo));
+    }
+}
+
+impl<'m> Matcher<'m> {
+    /// A matcher for `molecule`, with nothing remembered yet.
+    pub fn new(molecule: &'m Molecule) -> Matcher<'m> {
+        let atoms = molecule.atoms().len();
+        // The buffers of the thread's last matcher, when there is one: site finding makes
+        // a matcher per molecule, and recognition one per substituent.
+        let memo = SPARE_MEMO
+            .with(|spare| spare.borrow_mut().take())
+            .map(|mut memo| {
+                memo.reuse(atoms);
+                memo
+            })
+            .unwrap_or_else(|| Box::new(EnvMemo::for_molecule(atoms)));
+        Matcher {
+            molecule,
+            memo: Some(memo),
+        }
+    }
+    fn memo(&mut self) -> &mut EnvMemo {
+        self.memo
+            .get_or_insert_with(|| Box::new(EnvMemo::for_molecule(self.molecule.atoms().len())))
+    }
+    /// The molecule it matches against.
+    pub fn molecule(&self) -> &'m Molecule {
+        self.molecule
+    }
+    /// Like [`Pattern::could_anchor`].
+    #[inline]
+    pub fn could_anchor(&self, pattern: &Pattern, atom: usize) -> bool {
+        pattern.could_anchor(self.molecule, atom)
+    }
+    /// Like [`Pattern::is_match_at`].
+    pub fn is_match_at(&mut self, pattern: &Pattern, atom: usize, avoid: &[usize]) -> bool {
+        let mut search = Search::new(self.molecule, &pattern.subs, &pattern.env_ids, self.memo());
+        search.search(&pattern.main, atom, avoid, &mut |_| true)
+    }
+    /// Like [`Pattern::matches_at`].
+    pub fn matches_at(&mut self, pattern: &Pattern, atom: usize, avoid: &[usize]) -> Vec<Match> {
+        let mut search = Search::new(self.molecule, &pattern.subs, &pattern.env_ids, self.memo());
+        let mut distinct = Distinct::default();
+        search.search(&pattern.main, atom, avoid, &mut |a| {
+            distinct.add(a);
+            false
+        });
+        distinct
+            .matches
+            .into_iter()
+            .map(|atoms| Match { atoms })
+            .collect()
+    }
+    /// Like [`Pattern::first_match_at`].
+    pub fn first_match_at(
+        &mut self,
+        pattern: &Pattern,
+        atom: usize,
+        avoid: &[usize],
+    ) -> Option<Match> {
+        let mut search = Search::new(self.molecule, &pattern.subs, &pattern.env_ids, self.memo());
+        let mut first = None;
+        search.search(&pattern.main, atom, avoid, &mut |a| {
+            first = Some(a.to_vec());
+            true
+        });
+        first.map(|atoms| Match { atoms })
     }
 }
 
@@ -325,6 +596,59 @@ mod tests {
         assert_eq!(p.text(), "[O:2]C[N:1]");
         assert_eq!(p.to_string(), "[O:2]C[N:1]");
         assert_eq!("[O:2]C[N:1]".parse::<Pattern>().map(|p| p.len()), Ok(3));
+    }
+
+    #[test]
+    fn matcher_answers_as_single_calls_do() {
+        // The same environments numbered differently in each pattern, one nested: shared
+        // answers must follow the text, not the local number.
+        let patterns: Vec<Pattern> = [
+            "[N;!$(NC=O);$(NCC)]",
+            "[N;$(NCC);!$(NC=O)]",
+            "[C;$(C[$(N)])]",
+            "[#7;$(N)]",
+            "[$(C=O):1]N",
+            "[OX2H1:1]C=O",
+            "[CX4;H1,H2;+0:1]C(=O)[#7]",
+        ]
+        .iter()
+        .map(|t| pattern(t))
+        .collect();
+        for smiles in ["NCC(=O)O", "CC(=O)NCC", "c1ccncc1CN", "OC(=O)CC(N)C(=O)N"] {
+            let m = molecule(smiles);
+            let mut matcher = Matcher::new(&m);
+            for p in &patterns {
+                for atom in 0..m.atoms().len() + 1 {
+                    let single = p.matches_at(&m, atom, &[]);
+                    assert_eq!(
+                        matcher.matches_at(p, atom, &[]),
+                        single,
+                        "{p} {smiles} {atom}"
+                    );
+                    assert_eq!(matcher.is_match_at(p, atom, &[]), !single.is_empty());
+                    assert_eq!(
+                        matcher.first_match_at(p, atom, &[]),
+                        single.first().cloned()
+                    );
+                    assert_eq!(p.first_match_at(&m, atom, &[]), single.first().cloned());
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn anchor_element_test_agrees_with_could_anchor() {
+        let m = molecule("CC(=O)[O-].c1ccncc1[NH3+]");
+        for text in ["[O-:1]C=O", "[nX2:1]", "[#7;+:1]", "[!#6]", "[a;!c]", "*"] {
+            let p = pattern(text);
+            for (i, a) in m.atoms().iter().enumerate() {
+                if p.could_anchor(&m, i) {
+                    assert!(p.could_anchor_element(a.element, a.aromatic), "{text} {i}");
+                }
+            }
+        }
+        assert!(!pattern("[nX2:1]").could_anchor_element(7, false));
+        assert!(pattern("[nX2:1]").could_anchor_element(7, true));
     }
 
     #[test]

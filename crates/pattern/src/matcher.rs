@@ -24,56 +24,173 @@ const INLINE: usize = 32;
 /// Environment answers kept without allocating; one anchored call rarely asks more.
 const MEMO_INLINE: usize = 16;
 
-/// One matching call: the molecule, the pattern's environments, and the answers about
-/// environments found so far.
-pub(crate) struct Search<'a> {
-    molecule: &'a Molecule,
-    subs: &'a [Graph],
+/// Expression ids and table rows room is made for at once: about what trying a whole
+/// library on one molecule touches, so growing rarely reallocates.
+const EXPR_ROWS_FIRST: usize = 512;
+const TABLE_ROWS_FIRST: usize = 32;
+
+/// Marks an environment with no row in the table yet.
+const NO_ROW: u32 = u32::MAX;
+
+/// Answers about environments on one molecule, keyed by the environment's process-wide id
+/// (the same `$()` text in any pattern has the same id), so that every pattern tried on
+/// the molecule shares them.
+#[derive(Clone, Debug)]
+pub(crate) struct EnvMemo {
+    /// Atoms in the molecule (row length).
+    atoms: usize,
     /// The first answers: (environment, atom, holds).
     recent: [(u32, u32, bool); MEMO_INLINE],
     recent_len: usize,
-    /// Past those, per (environment, atom): 0 not asked yet, 1 no, 2 yes.
-    memo: Vec<u8>,
+    /// Row start in `table` per environment id, `NO_ROW` until one is needed.
+    rows: Vec<u32>,
+    /// Whether atom-expression answers are kept too (worth it only when many patterns run
+    /// on one molecule), and their row starts per expression id.
+    keep_atoms: bool,
+    expr_rows: Vec<u32>,
+    /// Environment and expression ids given a row, so that `reuse` clears only those.
+    touched_env: Vec<u32>,
+    touched_expr: Vec<u32>,
+    /// Per (row, atom): 0 not asked yet, 1 no, 2 yes.
+    table: Vec<u8>,
 }
 
-impl<'a> Search<'a> {
-    pub(crate) fn new(molecule: &'a Molecule, subs: &'a [Graph]) -> Search<'a> {
-        Search {
-            molecule,
-            subs,
+impl EnvMemo {
+    pub(crate) fn new(atoms: usize) -> EnvMemo {
+        EnvMemo {
+            atoms,
             recent: [(0, 0, false); MEMO_INLINE],
             recent_len: 0,
-            memo: Vec::new(),
+            rows: Vec::new(),
+            keep_atoms: false,
+            expr_rows: Vec::new(),
+            touched_env: Vec::new(),
+            touched_expr: Vec::new(),
+            table: Vec::new(),
         }
     }
 
-    fn recall(&self, id: usize, atom: usize) -> Option<bool> {
-        let key = (id as u32, atom as u32);
+    /// Forgets every answer, keeping the buffers, for a molecule of `atoms` atoms.
+    pub(crate) fn reuse(&mut self, atoms: usize) {
+        self.atoms = atoms;
+        self.recent_len = 0;
+        for &e in &self.touched_env {
+            self.rows[e as usize] = NO_ROW;
+        }
+        for &e in &self.touched_expr {
+            self.expr_rows[e as usize] = NO_ROW;
+        }
+        self.touched_env.clear();
+        self.touched_expr.clear();
+        self.table.clear();
+    }
+
+    /// A memo that also keeps atom-expression answers, for many patterns on one molecule.
+    pub(crate) fn for_molecule(atoms: usize) -> EnvMemo {
+        EnvMemo {
+            keep_atoms: true,
+            ..EnvMemo::new(atoms)
+        }
+    }
+
+    /// Adds one row to the table, reserving room for many at the first.
+    fn grow_table(&mut self) {
+        if self.table.capacity() == 0 {
+            self.table.reserve(self.atoms * TABLE_ROWS_FIRST);
+        }
+        self.table.resize(self.table.len() + self.atoms, 0);
+    }
+
+    /// The cell of atom expression `expr` on `atom`: 0 not asked yet, 1 no, 2 yes.
+    #[inline]
+    fn atom_cell(&mut self, expr: u32, atom: usize) -> &mut u8 {
+        let e = expr as usize;
+        if self.expr_rows.len() <= e {
+            // Grown in big steps: a fresh memo meets ids in no particular order.
+            let want = (e + 1).max(self.expr_rows.len() * 2).max(EXPR_ROWS_FIRST);
+            self.expr_rows.resize(want, NO_ROW);
+        }
+        if self.expr_rows[e] == NO_ROW {
+            self.expr_rows[e] = self.table.len() as u32;
+            self.touched_expr.push(expr);
+            self.grow_table();
+        }
+        &mut self.table[self.expr_rows[e] as usize + atom]
+    }
+
+    #[inline]
+    fn recall(&self, env: u32, atom: usize) -> Option<bool> {
+        let key = (env, atom as u32);
+        if self.keep_atoms {
+            // A memo for many patterns keeps everything in the table.
+            return self.recall_table(env, atom);
+        }
         if let Some(&(_, _, holds)) = self.recent[..self.recent_len]
             .iter()
             .find(|r| (r.0, r.1) == key)
         {
             return Some(holds);
         }
-        match self.memo.get(id * self.molecule.atoms().len() + atom) {
+        self.recall_table(env, atom)
+    }
+
+    #[inline]
+    fn recall_table(&self, env: u32, atom: usize) -> Option<bool> {
+        let row = *self.rows.get(env as usize)?;
+        if row == NO_ROW {
+            return None;
+        }
+        match self.table.get(row as usize + atom) {
             Some(1) => Some(false),
             Some(2) => Some(true),
             _ => None,
         }
     }
 
-    fn remember(&mut self, id: usize, atom: usize, holds: bool) {
-        if self.recent_len < MEMO_INLINE {
-            self.recent[self.recent_len] = (id as u32, atom as u32, holds);
+    fn remember(&mut self, env: u32, atom: usize, holds: bool) {
+        if !self.keep_atoms && self.recent_len < MEMO_INLINE {
+            self.recent[self.recent_len] = (env, atom as u32, holds);
             self.recent_len += 1;
             return;
         }
-        let n = self.molecule.atoms().len();
-        if self.memo.is_empty() {
-            self.memo = vec![0; self.subs.len() * n];
+        let e = env as usize;
+        if self.rows.len() <= e {
+            let want = (e + 1).max(self.rows.len() * 2);
+            self.rows.resize(want, NO_ROW);
         }
-        if let Some(m) = self.memo.get_mut(id * n + atom) {
+        if self.rows[e] == NO_ROW {
+            self.rows[e] = self.table.len() as u32;
+            self.touched_env.push(env);
+            self.grow_table();
+        }
+        if let Some(m) = self.table.get_mut(self.rows[e] as usize + atom) {
             *m = if holds { 2 } else { 1 };
+        }
+    }
+}
+
+/// One matching call: the molecule, the pattern's environments, and the answers about
+/// environments found so far.
+pub(crate) struct Search<'a> {
+    molecule: &'a Molecule,
+    subs: &'a [Graph],
+    /// Process-wide id per environment of `subs`.
+    env_ids: &'a [u32],
+    memo: &'a mut EnvMemo,
+}
+
+impl<'a> Search<'a> {
+    pub(crate) fn new(
+        molecule: &'a Molecule,
+        subs: &'a [Graph],
+        env_ids: &'a [u32],
+        memo: &'a mut EnvMemo,
+    ) -> Search<'a> {
+        Search {
+            molecule,
+            subs,
+            env_ids,
+            memo,
         }
     }
 
@@ -95,12 +212,30 @@ impl<'a> Search<'a> {
         {
             return false;
         }
-        filter.exact || self.atom_matches(&graph.atoms[at].expr, atom)
+        if filter.exact {
+            return true;
+        }
+        match graph.expr_ids.get(at) {
+            Some(&id) if self.memo.keep_atoms => {
+                let known = *self.memo.atom_cell(id, atom);
+                if known != 0 {
+                    return known == 2;
+                }
+                let holds = self.atom_matches(&graph.atoms[at].expr, atom);
+                // The evaluation may have grown the table: look the cell up again.
+                *self.memo.atom_cell(id, atom) = if holds { 2 } else { 1 };
+                holds
+            }
+            _ => self.atom_matches(&graph.atoms[at].expr, atom),
+        }
     }
 
     /// Whether environment `id` holds with its first atom on `atom`, memoized.
     fn environment(&mut self, id: usize, atom: usize) -> bool {
-        if let Some(holds) = self.recall(id, atom) {
+        let Some(&env) = self.env_ids.get(id) else {
+            return false;
+        };
+        if let Some(holds) = self.memo.recall(env, atom) {
             return holds;
         }
         let subs = self.subs;
@@ -115,7 +250,7 @@ impl<'a> Search<'a> {
             }
             None => false,
         };
-        self.remember(id, atom, found);
+        self.memo.remember(env, atom, found);
         found
     }
 
