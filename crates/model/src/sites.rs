@@ -41,6 +41,9 @@ pub fn find_sites(library: &Library, molecule: &Molecule) -> Vec<FoundSite> {
     let symmetry = mol::symmetry_classes(molecule);
     let mut groups: HashMap<u32, usize> = HashMap::new();
     let mut sites = Vec::new();
+    // Shared by every class tried on this molecule: an environment (`!$(NC=O)`) written in
+    // many classes is worked out once per atom.
+    let mut matcher = pattern::Matcher::new(molecule);
     for (atom, a) in atoms.iter().enumerate() {
         // Explicit hydrogens never carry a site themselves: their heavy atom does.
         if a.element == 1 {
@@ -50,11 +53,13 @@ pub fn find_sites(library: &Library, molecule: &Molecule) -> Vec<FoundSite> {
             let Some(pattern) = index.patterns[class] else {
                 continue;
             };
-            if !pattern.could_anchor(molecule, atom) || !pattern.is_match_at(molecule, atom, &[]) {
+            // One search: an empty list is a non-match, and `is_match_at` first would only
+            // repeat the search for the classes that match.
+            if !matcher.could_anchor(pattern, atom) {
                 continue;
             }
-            let Some(best) = pattern
-                .matches_at(molecule, atom, &[])
+            let Some(best) = matcher
+                .matches_at(pattern, atom, &[])
                 .into_iter()
                 .map(|m| m.atoms)
                 .min()

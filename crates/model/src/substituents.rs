@@ -6,6 +6,9 @@
 //! nothing matches it falls back to the nearest type by the first atom alone and says so.
 use std::cell::RefCell;
 use std::rc::Rc;
+use std::sync::Arc;
+
+use once_cell::sync::Lazy;
 
 use mol::{Hybridization, Molecule};
 use pattern::Pattern;
@@ -45,8 +48,10 @@ pub fn entry_by_id<'a>(library: &'a Library, id: &str) -> Option<&'a Substituent
 /// there is no sensible nearest type (an unusual element, an anionic nitrogen or sulfur) or
 /// the indices are out of range.
 ///
-/// Patterns are compiled once per thread and library (keyed by the pattern texts, so a
-/// user library or an edited one is compiled afresh); a pattern that does not compile is
+/// Patterns are compiled once per library (once per process for the built-in one, once per
+/// thread for others, keyed by their pattern texts and ids so that a user library or an
+/// edited one is compiled afresh) and indexed by the element and aromaticity their first
+/// atom can have; a pattern that does not compile is
 /// skipped here and reported by the library's own validation.
 pub fn recognize<'a>(
     library: &'a Library,
@@ -68,14 +73,17 @@ pub fn recognize<'a>(
         return None;
     }
 
-    let compiled = compiled_patterns(library);
+    let index = substituent_index(library);
+    let a = &molecule.atoms()[atom];
     // (priority, atoms covered, entry index, matched atoms)
     let mut best: Option<(i32, usize, usize, Vec<usize>)> = None;
-    for (i, entry) in library.substituents.iter().enumerate() {
-        if is_ring_member(entry) {
-            continue;
-        }
-        let Some(Some(p)) = compiled.get(i) else {
+    // Environments shared by several entries are worked out once per call.
+    let mut matcher = pattern::Matcher::new(molecule);
+    // Only entries whose first atom can be this element and aromaticity, in entry order:
+    // the others could not anchor here, so leaving them out changes nothing.
+    for &i in index.candidates(a.element, a.aromatic) {
+        let entry = &library.substituents[i];
+        let Some(p) = &index.compiled[i] else {
             continue;
         };
         if let Some((prio, size, _, _)) = &best {
@@ -88,8 +96,7 @@ pub fn recognize<'a>(
         if !p.could_anchor(molecule, atom) {
             continue;
         }
-        let matches = p.matches_at(molecule, atom, &fence);
-        let Some(m) = matches.into_iter().next() else {
+        let Some(m) = matcher.first_match_at(p, atom, &fence) else {
             continue;
         };
         let size = m.atoms.len();
@@ -239,55 +246,131 @@ fn carries_oxo(molecule: &Molecule, atom: usize, except: usize) -> bool {
     })
 }
 
-/// Compiled patterns of one library, in entry order (`None` where a pattern does not
-/// compile: the loader reports those; recognition skips them).
-type Compiled = Rc<Vec<Option<Pattern>>>;
-
-/// One cached compilation, keyed by the pattern texts themselves so that a library edited
-/// in place or rebuilt at the same address is never served stale patterns.
-struct Slot {
-    texts: Vec<String>,
-    compiled: Compiled,
+/// Recognition data of one library, worked out once: compiled patterns in entry order
+/// (`None` where a pattern does not compile: the loader reports those; recognition skips
+/// them) and, per (element, aromatic) of the first atom, the entries that can start there.
+struct SubstituentIndex {
+    compiled: Vec<Option<Pattern>>,
+    /// Entry indices (ring members and non-compiling patterns left out), in entry order,
+    /// at `element * 2 + aromatic`.
+    by_first_atom: Vec<Vec<usize>>,
+    /// Every usable entry, for elements beyond the table.
+    all: Vec<usize>,
 }
 
-/// Libraries kept compiled per thread. Per-thread, so that batch runs over rayon take no
-/// lock on every call; a handful of slots, since a process rarely holds more libraries.
+/// Elements indexed (atomic numbers below this); others try every entry.
+const INDEXED_ELEMENTS: usize = 128;
+
+impl SubstituentIndex {
+    fn build(entries: &[SubstituentEntry]) -> SubstituentIndex {
+        let compiled: Vec<Option<Pattern>> = entries
+            .iter()
+            .map(|e| Pattern::parse(&e.pattern).ok())
+            .collect();
+        let all: Vec<usize> = (0..entries.len())
+            .filter(|&i| !is_ring_member(&entries[i]) && compiled[i].is_some())
+            .collect();
+        let by_first_atom = (0..INDEXED_ELEMENTS * 2)
+            .map(|key| {
+                let (element, aromatic) = ((key / 2) as u8, key % 2 == 1);
+                all.iter()
+                    .copied()
+                    .filter(|&i| {
+                        compiled[i]
+                            .as_ref()
+                            .is_some_and(|p| p.could_anchor_element(element, aromatic))
+                    })
+                    .collect()
+            })
+            .collect();
+        SubstituentIndex {
+            compiled,
+            by_first_atom,
+            all,
+        }
+    }
+
+    fn candidates(&self, element: u8, aromatic: bool) -> &[usize] {
+        self.by_first_atom
+            .get(element as usize * 2 + aromatic as usize)
+            .unwrap_or(&self.all)
+    }
+}
+
+/// One cached index, keyed by the pattern texts and ids themselves so that a library
+/// edited in place or rebuilt at the same address is never served stale patterns.
+struct Slot {
+    key: Vec<(String, String)>,
+    index: Rc<SubstituentIndex>,
+}
+
+/// Libraries other than the built-in one, kept compiled per thread. Per-thread, so that
+/// batch runs over rayon take no lock on every call; a handful of slots, since a process
+/// rarely holds more libraries.
 const SLOTS: usize = 4;
 
 thread_local! {
     static CACHE: RefCell<Vec<Slot>> = const { RefCell::new(Vec::new()) };
 }
 
-/// The compiled patterns of `library`, compiling them on first use in this thread.
-fn compiled_patterns(library: &Library) -> Compiled {
+/// The built-in library cannot change (it is only ever handed out shared), so its index is
+/// built once per process and found without comparing any text.
+static BUILTIN_INDEX: Lazy<Arc<SubstituentIndex>> =
+    Lazy::new(|| Arc::new(SubstituentIndex::build(&Library::builtin().substituents)));
+
+/// An index shared across threads or local to one.
+enum IndexRef {
+    Shared(Arc<SubstituentIndex>),
+    Local(Rc<SubstituentIndex>),
+}
+
+impl std::ops::Deref for IndexRef {
+    type Target = SubstituentIndex;
+    fn deref(&self) -> &SubstituentIndex {
+        match self {
+            IndexRef::Shared(a) => a,
+            IndexRef::Local(r) => r,
+        }
+    }
+}
+
+/// The recognition index of `library`, built on first use (per process for the built-in
+/// library, per thread for others).
+fn substituent_index(library: &Library) -> IndexRef {
+    if std::ptr::eq(library, Library::builtin()) {
+        return IndexRef::Shared(Arc::clone(&BUILTIN_INDEX));
+    }
     let entries = &library.substituents;
     CACHE.with(|cache| {
         let mut cache = cache.borrow_mut();
+        // Ring membership is read from the id, so ids are part of the key with the texts.
         let hit = cache.iter().position(|slot| {
-            slot.texts.len() == entries.len()
-                && slot.texts.iter().zip(entries).all(|(t, e)| *t == e.pattern)
+            slot.key.len() == entries.len()
+                && slot
+                    .key
+                    .iter()
+                    .zip(entries)
+                    .all(|((t, id), e)| *t == e.pattern && *id == e.id)
         });
         if let Some(i) = hit {
             // Most recently used first, so the usual single library is found at once.
             let slot = cache.remove(i);
-            let compiled = Rc::clone(&slot.compiled);
+            let index = Rc::clone(&slot.index);
             cache.insert(0, slot);
-            return compiled;
+            return IndexRef::Local(index);
         }
-        let compiled: Compiled = Rc::new(
-            entries
-                .iter()
-                .map(|e| Pattern::parse(&e.pattern).ok())
-                .collect(),
-        );
+        let index = Rc::new(SubstituentIndex::build(entries));
         cache.insert(
             0,
             Slot {
-                texts: entries.iter().map(|e| e.pattern.clone()).collect(),
-                compiled: Rc::clone(&compiled),
+                key: entries
+                    .iter()
+                    .map(|e| (e.pattern.clone(), e.id.clone()))
+                    .collect(),
+                index: Rc::clone(&index),
             },
         );
         cache.truncate(SLOTS);
-        compiled
+        IndexRef::Local(index)
     })
 }
