@@ -93,6 +93,20 @@ pub fn standardize(molecule: &Molecule) -> Result<Standardized, Error> {
     standardize::standardize(molecule)
 }
 
+/// As [`standardize`], taking the molecule: a molecule that needs no change (one
+/// component, nothing to neutralize or fold) becomes the parent without being copied. The
+/// result is the same as `standardize(&molecule)`.
+pub fn standardize_owned(molecule: Molecule) -> Result<Standardized, Error> {
+    standardize::standardize_owned(molecule)
+}
+
+/// The full standardizing path for every molecule, without the shortcut for molecules that
+/// need no change; for checking that the shortcut gives the same result.
+#[doc(hidden)]
+pub fn standardize_without_shortcut(molecule: &Molecule) -> Result<Standardized, Error> {
+    standardize::standardize_full(molecule)
+}
+
 /// Writes a molecule as SMILES (aromatic atoms lower case, charges and hydrogens in brackets
 /// where needed). Reading the output back gives the same molecule.
 pub fn write_smiles(molecule: &Molecule) -> String {

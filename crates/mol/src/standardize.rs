@@ -63,7 +63,62 @@ pub(crate) fn submolecule(m: &Molecule, keep: &[usize]) -> Molecule {
     sub
 }
 
+/// Whether the rules above would leave the molecule as it is: one component, no charges,
+/// no hydrogen atoms, no ionic metal and no pentavalent nitrogen. Such a molecule is its
+/// own parent (the full path would copy it, re-perceive it and get the same molecule back,
+/// which `tests/standardize_fast_path.rs` checks over the reference sets).
+fn unchanged(m: &Molecule) -> bool {
+    if m.components.len() != 1 || m.atoms.is_empty() {
+        return false;
+    }
+    m.atoms.iter().enumerate().all(|(i, a)| {
+        if a.charge != 0 || a.element == 1 || is_ionic_metal(a.element) {
+            return false;
+        }
+        if a.element == 7 {
+            let valence: u32 = m.neighbors[i]
+                .iter()
+                .map(|n| m.bonds[n.bond].order as u32)
+                .sum::<u32>()
+                + a.hydrogens as u32;
+            if valence == 5 {
+                return false;
+            }
+        }
+        true
+    })
+}
+
+/// As [`standardize`], taking the molecule: one that needs no change becomes the parent
+/// without a copy.
+pub(crate) fn standardize_owned(m: Molecule) -> Result<Standardized, Error> {
+    if unchanged(&m) {
+        let origin = (0..m.atoms.len()).collect();
+        return Ok(Standardized {
+            parent: m,
+            origin,
+            others: Vec::new(),
+            changes: Vec::new(),
+        });
+    }
+    standardize_full(&m)
+}
+
 pub(crate) fn standardize(m: &Molecule) -> Result<Standardized, Error> {
+    if unchanged(m) {
+        return Ok(Standardized {
+            parent: m.clone(),
+            origin: (0..m.atoms.len()).collect(),
+            others: Vec::new(),
+            changes: Vec::new(),
+        });
+    }
+    standardize_full(m)
+}
+
+/// The rules applied step by step (what [`standardize`] does for every molecule that may
+/// change).
+pub(crate) fn standardize_full(m: &Molecule) -> Result<Standardized, Error> {
     if m.atoms.is_empty() {
         return Err(Error::new(
             ErrorKind::Empty,
