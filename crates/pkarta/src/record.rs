@@ -117,13 +117,15 @@ pub fn estimate_with(
         error: None,
     };
     match analyze(library, input) {
-        Ok(analysis) => {
+        Ok(mut analysis) => {
             let at_ph = analysis.speciate(options.ph);
             record.smiles = Some(mol::write_smiles(&analysis.parent));
             record.warnings = analysis.warnings();
             record.warnings.extend(cautions(&analysis.sites));
-            for site in &analysis.sites {
-                let report = analysis.report(site);
+            // Each site's texts and terms move into its report: nothing reads them after this.
+            let mut sites = std::mem::take(&mut analysis.sites);
+            for site in &mut sites {
+                let report = analysis.report_taking_terms(site);
                 if site.in_window {
                     record.sites.push(report);
                 } else {
@@ -136,6 +138,7 @@ pub fn estimate_with(
             record.macro_pka = at_ph.macro_pka.iter().copied().filter(|p| (low..=high).contains(p)).collect();
             record.charge_at_ph = Some(at_ph.charge_at_ph);
             record.isoelectric_point = at_ph.isoelectric_point;
+            analysis.sites = sites;
             record.species = at_ph
                 .species
                 .iter()
@@ -180,7 +183,10 @@ fn cautions(sites: &[model::Site]) -> Vec<String> {
 pub(crate) struct Analysis {
     pub(crate) parent: mol::Molecule,
     pub(crate) origin: Vec<usize>,
-    pub(crate) standardized: mol::Standardized,
+    /// The components set aside by standardizing, as SMILES.
+    pub(crate) others: Vec<String>,
+    /// What standardizing changed, in words.
+    pub(crate) changes: Vec<String>,
     pub(crate) found: Vec<model::FoundSite>,
     pub(crate) sites: Vec<model::Site>,
     /// Indices into `sites` of the sites inside the aqueous window, which speciation uses.
@@ -192,9 +198,10 @@ pub(crate) struct Analysis {
 
 pub(crate) fn analyze(library: &model::Library, input: &str) -> Result<Analysis, ErrorReport> {
     let molecule = mol::parse(input).map_err(|e| ErrorReport { message: e.to_string() })?;
-    let standardized = mol::standardize(&molecule).map_err(|e| ErrorReport { message: e.to_string() })?;
-    let parent = standardized.parent.clone();
-    let origin = standardized.origin.clone();
+    // Taken, not borrowed: a molecule that needs no standardizing becomes the parent
+    // without a copy.
+    let mol::Standardized { parent, origin, others, changes } =
+        mol::standardize_owned(molecule).map_err(|e| ErrorReport { message: e.to_string() })?;
     let found = model::find_sites(library, &parent);
     let sites = model::score_sites(library, &parent, &found);
     let window: Vec<usize> = (0..sites.len()).filter(|&i| sites[i].in_window).collect();
@@ -208,8 +215,17 @@ pub(crate) fn analyze(library: &model::Library, input: &str) -> Result<Analysis,
             model::Kind::Base => sites[i].pka > high,
         })
         .collect();
-    let coupled: Vec<model::Site> = window.iter().chain(&fixed).map(|&i| sites[i].clone()).collect();
-    let w = model::interactions(library, &parent, &coupled);
+    // The coupled sites are most often all the sites, in order: then they are passed as
+    // they are rather than copied (their terms hold long source texts).
+    let all_in_order = window.len() + fixed.len() == sites.len() && window.iter().chain(&fixed).enumerate().all(|(k, &i)| k == i);
+    let copied: Vec<model::Site>;
+    let coupled: &[model::Site] = if all_in_order {
+        &sites
+    } else {
+        copied = window.iter().chain(&fixed).map(|&i| sites[i].clone()).collect();
+        &copied
+    };
+    let w = model::interactions(library, &parent, coupled);
     let nw = window.len();
     let interaction: Vec<Vec<f64>> = w[..nw].iter().map(|row| row[..nw].to_vec()).collect();
     let fixed_charge: i32 = fixed
@@ -241,7 +257,7 @@ pub(crate) fn analyze(library: &model::Library, input: &str) -> Result<Analysis,
         interaction,
         base_charge,
     };
-    Ok(Analysis { parent, origin, standardized, found, sites, window, fixed, system })
+    Ok(Analysis { parent, origin, others, changes, found, sites, window, fixed, system })
 }
 
 impl Analysis {
@@ -251,10 +267,10 @@ impl Analysis {
 
     pub(crate) fn warnings(&self) -> Vec<String> {
         let mut out: Vec<String> = Vec::new();
-        for other in &self.standardized.others {
+        for other in &self.others {
             out.push(format!("set aside component {other} (counter-ion or solvent)"));
         }
-        out.extend(self.standardized.changes.iter().cloned());
+        out.extend(self.changes.iter().cloned());
         for site in &self.sites {
             for w in &site.warnings {
                 out.push(format!("site at atom {}: {w}", self.origin[site.atom]));
@@ -263,16 +279,18 @@ impl Analysis {
         out
     }
 
-    pub(crate) fn report(&self, site: &model::Site) -> SiteReport {
+    /// The report of a site, its texts and terms moved out of the site (only its atom and
+    /// kind are read after this, to write species).
+    pub(crate) fn report_taking_terms(&self, site: &mut model::Site) -> SiteReport {
         SiteReport {
             atom: self.origin[site.atom],
             kind: site.kind,
             pka: site.pka,
             uncertainty: site.uncertainty,
             group: site.group,
-            class: site.class.clone(),
-            class_name: site.class_name.clone(),
-            terms: site.terms.clone(),
+            class: std::mem::take(&mut site.class),
+            class_name: std::mem::take(&mut site.class_name),
+            terms: std::mem::take(&mut site.terms),
         }
     }
 
