@@ -42,7 +42,7 @@ pub(crate) fn perceive(input: &str, written: Written) -> Result<Molecule, Error>
     let bonds: Vec<Bond> = written
         .bonds
         .iter()
-        .map(|&(a, b, symbol, _)| {
+        .map(|&(a, b, symbol)| {
             let both = atoms[a].written_aromatic && atoms[b].written_aromatic;
             Bond {
                 a,

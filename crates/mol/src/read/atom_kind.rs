@@ -1,6 +1,6 @@
 //! One `purr` atom kind into our atom fields.
 
-use purr::feature::{AtomKind, BracketSymbol};
+use purr::feature::{Aliphatic, Aromatic, AtomKind, BracketSymbol};
 
 use crate::elements;
 
@@ -17,14 +17,65 @@ pub(crate) struct WrittenAtom {
     pub chiral: bool,
 }
 
-/// `purr` writes symbols through Display; its element enum has no numeric value.
-fn number_of(symbol: &str) -> u8 {
-    let mut chars = symbol.chars();
-    let title: String = match chars.next() {
-        Some(c) => c.to_uppercase().chain(chars).collect(),
-        None => return 0,
+/// `purr` writes symbols through Display; its element enum has no numeric value. The
+/// symbol is written into a small buffer on the stack: no allocation per atom.
+fn number_of(symbol: &dyn std::fmt::Display) -> u8 {
+    use std::fmt::Write;
+    struct Buf {
+        bytes: [u8; 8],
+        len: usize,
+    }
+    impl Write for Buf {
+        fn write_str(&mut self, s: &str) -> std::fmt::Result {
+            let end = self.len + s.len();
+            if end > self.bytes.len() {
+                return Err(std::fmt::Error);
+            }
+            self.bytes[self.len..end].copy_from_slice(s.as_bytes());
+            self.len = end;
+            Ok(())
+        }
+    }
+    let mut buf = Buf {
+        bytes: [0; 8],
+        len: 0,
     };
-    elements::atomic_number(&title).unwrap_or(0)
+    if write!(buf, "{symbol}").is_err() || buf.len == 0 {
+        return 0;
+    }
+    buf.bytes[0] = buf.bytes[0].to_ascii_uppercase();
+    match std::str::from_utf8(&buf.bytes[..buf.len]) {
+        Ok(title) => elements::atomic_number(title).unwrap_or(0),
+        Err(_) => 0,
+    }
+}
+
+/// Organic-subset symbols by variant, without formatting.
+fn aliphatic_number(a: &Aliphatic) -> u8 {
+    match a {
+        Aliphatic::B => 5,
+        Aliphatic::C => 6,
+        Aliphatic::N => 7,
+        Aliphatic::O => 8,
+        Aliphatic::S => 16,
+        Aliphatic::P => 15,
+        Aliphatic::F => 9,
+        Aliphatic::Cl => 17,
+        Aliphatic::Br => 35,
+        Aliphatic::I => 53,
+        other => number_of(other),
+    }
+}
+
+fn aromatic_number(a: &Aromatic) -> u8 {
+    match a {
+        Aromatic::B => 5,
+        Aromatic::C => 6,
+        Aromatic::N => 7,
+        Aromatic::O => 8,
+        Aromatic::P => 15,
+        Aromatic::S => 16,
+    }
 }
 
 // <atom> ::= <organic> | <bracket> | <star>
@@ -41,9 +92,9 @@ pub(crate) fn convert(kind: &AtomKind) -> WrittenAtom {
     };
     match kind {
         AtomKind::Star => atom.hcount = Some(0),
-        AtomKind::Aliphatic(a) => atom.element = number_of(&a.to_string()),
+        AtomKind::Aliphatic(a) => atom.element = aliphatic_number(a),
         AtomKind::Aromatic(a) => {
-            atom.element = number_of(&a.to_string());
+            atom.element = aromatic_number(a);
             atom.aromatic = true;
         }
         AtomKind::Bracket {
@@ -57,9 +108,9 @@ pub(crate) fn convert(kind: &AtomKind) -> WrittenAtom {
             atom.bracket = true;
             match symbol {
                 BracketSymbol::Star => {}
-                BracketSymbol::Element(e) => atom.element = number_of(&e.to_string()),
+                BracketSymbol::Element(e) => atom.element = number_of(e),
                 BracketSymbol::Aromatic(e) => {
-                    atom.element = number_of(&e.to_string());
+                    atom.element = number_of(e);
                     atom.aromatic = true;
                 }
             }
@@ -71,4 +122,36 @@ pub(crate) fn convert(kind: &AtomKind) -> WrittenAtom {
         }
     }
     atom
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn organic_symbols_match_their_written_form() {
+        use Aliphatic::*;
+        for a in [B, C, N, O, S, P, F, Cl, Br, I, At, Ts] {
+            let title = a.to_string();
+            assert_eq!(
+                aliphatic_number(&a),
+                elements::atomic_number(&title).unwrap_or(0)
+            );
+        }
+        for a in [
+            Aromatic::B,
+            Aromatic::C,
+            Aromatic::N,
+            Aromatic::O,
+            Aromatic::P,
+            Aromatic::S,
+        ] {
+            let s = a.to_string();
+            let title = s[..1].to_uppercase() + &s[1..];
+            assert_eq!(
+                aromatic_number(&a),
+                elements::atomic_number(&title).unwrap_or(0)
+            );
+        }
+    }
 }

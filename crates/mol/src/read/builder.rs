@@ -45,8 +45,8 @@ pub(crate) struct Written {
     pub atoms: Vec<WrittenAtom>,
     /// Byte spans of the atoms.
     pub spans: Vec<Span>,
-    /// (first atom, second atom, symbol, span of the bond or ring-closure digit)
-    pub bonds: Vec<(usize, usize, Symbol, Span)>,
+    /// (first atom, second atom, symbol), first atom the lower.
+    pub bonds: Vec<(usize, usize, Symbol)>,
 }
 
 struct Open {
@@ -145,11 +145,88 @@ fn byte_offsets(smiles: &str) -> Vec<usize> {
 }
 
 /// Reads SMILES text into atoms and bonds as written.
+///
+/// Valid text is read once without `purr`'s trace (its maps of every bond cost more than
+/// the rest of the reading), the atoms' spans taken from the text itself; anything that
+/// goes wrong is read again with the trace, which places the error.
 pub(crate) fn read(smiles: &str) -> Result<Written, Error> {
     let info = scan(smiles)?;
     let text = ring_number_workaround(smiles)?;
+    if info.chars <= MAX_INLINE_LENGTH {
+        let (builder, _, result) = run_purr(&text, false);
+        if let Some(written) = untraced(smiles, builder, result) {
+            if cfg!(debug_assertions) {
+                let traced = read_traced(smiles, &info, &text);
+                debug_assert!(
+                    matches!(&traced, Ok(t) if t.spans == written.spans && t.bonds == written.bonds),
+                    "untraced reading differs from the traced one for {smiles}"
+                );
+            }
+            return Ok(written);
+        }
+    }
+    read_traced(smiles, &info, &text)
+}
+
+/// The result of an untraced reading when it is a valid molecule whose atom spans the
+/// text gives unambiguously; `None` when the traced reading must decide (every error).
+fn untraced(
+    smiles: &str,
+    builder: Builder,
+    result: Result<(), purr::read::Error>,
+) -> Option<Written> {
+    if result.is_err() || builder.error.is_some() || !builder.opens.is_empty() {
+        return None;
+    }
+    let spans = atom_spans(smiles, builder.atoms.len())?;
+    let mut bonds: Vec<(usize, usize, Symbol)> = Vec::with_capacity(builder.bonds.len());
+    for &(a, b, symbol, _) in &builder.bonds {
+        if symbol == Symbol::Quadruple {
+            return None;
+        }
+        bonds.push((a.min(b), a.max(b), symbol));
+    }
+    let mut pairs: Vec<(usize, usize)> = bonds.iter().map(|&(a, b, _)| (a, b)).collect();
+    pairs.sort_unstable();
+    if pairs.windows(2).any(|w| w[0] == w[1]) {
+        return None;
+    }
+    Some(Written {
+        atoms: builder.atoms,
+        spans,
+        bonds,
+    })
+}
+
+/// Byte spans of the atoms of valid SMILES text, in the order written: a bracket atom from
+/// `[` to `]`, `Cl` and `Br`, and every other letter or `*` outside brackets (the only
+/// letters valid SMILES has there are atom symbols). `None` when the count does not match
+/// the reader's (two-letter symbols such as `At`), so that the trace decides.
+fn atom_spans(smiles: &str, count: usize) -> Option<Vec<Span>> {
+    let b = smiles.as_bytes();
+    let mut spans = Vec::with_capacity(count);
+    let mut i = 0;
+    while i < b.len() {
+        let c = b[i];
+        if c == b'[' {
+            let close = i + 1 + b[i + 1..].iter().position(|&x| x == b']')?;
+            spans.push(Span::new(i, close + 1));
+            i = close + 1;
+        } else if c.is_ascii_alphabetic() || c == b'*' {
+            let two = matches!((c, b.get(i + 1)), (b'C', Some(b'l')) | (b'B', Some(b'r')));
+            let len = if two { 2 } else { 1 };
+            spans.push(Span::new(i, i + len));
+            i += len;
+        } else {
+            i += 1;
+        }
+    }
+    (spans.len() == count).then_some(spans)
+}
+
+fn read_traced(smiles: &str, info: &Scan, text: &str) -> Result<Written, Error> {
     let (builder, trace, result) = if info.chars <= MAX_INLINE_LENGTH {
-        run_purr(&text)
+        run_purr(text, true)
     } else {
         // Deep recursion: a helper thread with a stack sized for it. purr uses a few
         // hundred bytes per character in release builds and about 1 KiB in debug builds
@@ -160,7 +237,7 @@ pub(crate) fn read(smiles: &str) -> Result<Written, Error> {
             .stack_size(stack)
             .spawn({
                 let text = text.to_string();
-                move || run_purr(&text)
+                move || run_purr(&text, true)
             });
         match handle.map(|h| h.join()) {
             Ok(Ok(r)) => r,
@@ -179,7 +256,7 @@ pub(crate) fn read(smiles: &str) -> Result<Written, Error> {
     let offsets = byte_offsets(smiles);
     let at = |c: usize| offsets.get(c).copied().unwrap_or(smiles.len());
     if let Err(e) = result {
-        return Err(reader_error(smiles, &info, e, &offsets));
+        return Err(reader_error(smiles, info, e, &offsets));
     }
     let rnum_span = |join: usize| {
         trace
@@ -239,7 +316,7 @@ pub(crate) fn read(smiles: &str) -> Result<Written, Error> {
                 span,
             ));
         }
-        bonds.push((a.min(b), a.max(b), symbol, span));
+        bonds.push((a.min(b), a.max(b), symbol));
     }
     Ok(Written {
         atoms: builder.atoms,
@@ -277,10 +354,10 @@ fn ring_number_workaround(smiles: &str) -> Result<std::borrow::Cow<'_, str>, Err
     }
 }
 
-fn run_purr(smiles: &str) -> (Builder, Trace, Result<(), purr::read::Error>) {
+fn run_purr(smiles: &str, traced: bool) -> (Builder, Trace, Result<(), purr::read::Error>) {
     let mut builder = Builder::default();
     let mut trace = Trace::new();
-    let result = purr::read::read(smiles, &mut builder, Some(&mut trace));
+    let result = purr::read::read(smiles, &mut builder, traced.then_some(&mut trace));
     (builder, trace, result)
 }
 
