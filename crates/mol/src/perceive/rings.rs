@@ -37,7 +37,7 @@ pub(crate) fn perceive_rings(m: &mut Molecule) {
         }
         let id = systems.len();
         let mut atoms = vec![start];
-        let mut bonds = HashSet::new();
+        let mut bonds = Vec::new();
         system[start] = id;
         let mut stack = vec![start];
         while let Some(a) = stack.pop() {
@@ -45,7 +45,7 @@ pub(crate) fn perceive_rings(m: &mut Molecule) {
                 if !ring_bond[nb.bond] {
                     continue;
                 }
-                bonds.insert(nb.bond);
+                bonds.push(nb.bond);
                 if system[nb.atom] == usize::MAX {
                     system[nb.atom] = id;
                     atoms.push(nb.atom);
@@ -53,14 +53,17 @@ pub(crate) fn perceive_rings(m: &mut Molecule) {
                 }
             }
         }
-        let mut bonds: Vec<usize> = bonds.into_iter().collect();
+        // Each ring bond was met from both ends.
         bonds.sort_unstable();
+        bonds.dedup();
         systems.push((atoms, bonds));
     }
     let mut rings = Vec::new();
     let mut scratch = Scratch {
         prev: vec![usize::MAX; n],
         column: vec![usize::MAX; m.bonds.len()],
+        queue: VecDeque::new(),
+        touched: Vec::new(),
     };
     for (atoms, bonds) in &systems {
         rings.extend(system_rings(m, atoms, bonds, &ring_bond, &mut scratch));
@@ -131,11 +134,18 @@ fn shortest_path(
     to: usize,
     skip: usize,
     ring_bond: &[bool],
-    prev: &mut [usize],
+    search: &mut Search,
 ) -> Option<Vec<usize>> {
-    let mut touched = vec![from];
+    let Search {
+        prev,
+        queue,
+        touched,
+    } = search;
+    touched.clear();
+    touched.push(from);
     prev[from] = from;
-    let mut queue = VecDeque::from([from]);
+    queue.clear();
+    queue.push_back(from);
     let mut found = false;
     'search: while let Some(v) = queue.pop_front() {
         for nb in &m.neighbors[v] {
@@ -161,10 +171,17 @@ fn shortest_path(
         path.reverse();
         path
     });
-    for t in touched {
+    for &t in touched.iter() {
         prev[t] = usize::MAX;
     }
     path
+}
+
+/// The breadth-first search's buffers, borrowed from [`Scratch`].
+struct Search<'a> {
+    prev: &'a mut [usize],
+    queue: &'a mut VecDeque<usize>,
+    touched: &'a mut Vec<usize>,
 }
 
 /// Breadth-first tree from `root`: parent of each atom (`usize::MAX` outside the tree).
@@ -200,6 +217,8 @@ fn path_to_root(parent: &[usize], mut v: usize) -> Vec<usize> {
 struct Scratch {
     prev: Vec<usize>,
     column: Vec<usize>,
+    queue: VecDeque<usize>,
+    touched: Vec<usize>,
 }
 
 fn system_rings(
@@ -212,14 +231,12 @@ fn system_rings(
     for (k, &b) in bonds.iter().enumerate() {
         scratch.column[b] = k;
     }
-    let rings = system_rings_with(
-        m,
-        atoms,
-        bonds,
-        ring_bond,
-        &mut scratch.prev,
-        &scratch.column,
-    );
+    let mut search = Search {
+        prev: &mut scratch.prev,
+        queue: &mut scratch.queue,
+        touched: &mut scratch.touched,
+    };
+    let rings = system_rings_with(m, atoms, bonds, ring_bond, &mut search, &scratch.column);
     for &b in bonds {
         scratch.column[b] = usize::MAX;
     }
@@ -231,14 +248,16 @@ fn system_rings_with(
     atoms: &[usize],
     bonds: &[usize],
     ring_bond: &[bool],
-    prev: &mut [usize],
+    search: &mut Search,
     column: &[usize],
 ) -> Vec<Vec<usize>> {
     let n = m.atoms.len();
     let wanted = bonds.len() + 1 - atoms.len();
     let words = bonds.len().div_ceil(64);
     let mut candidates: Vec<Vec<usize>> = Vec::new();
-    let mut seen: HashSet<Vec<u64>> = HashSet::new();
+    // Distinct bond sets. Most systems have a few dozen candidates at most: a list is
+    // cheaper than hashing there.
+    let mut seen = Seen::new(bonds.len() > 64);
     let mut add = |cycle: Vec<usize>, candidates: &mut Vec<Vec<usize>>| {
         let v = bits(m, &cycle, column, words);
         if seen.insert(v) {
@@ -247,7 +266,7 @@ fn system_rings_with(
     };
     for &b in bonds {
         let (x, y) = (m.bonds[b].a, m.bonds[b].b);
-        if let Some(path) = shortest_path(m, x, y, b, ring_bond, prev) {
+        if let Some(path) = shortest_path(m, x, y, b, ring_bond, search) {
             add(path, &mut candidates);
         }
     }
@@ -279,6 +298,37 @@ fn system_rings_with(
         basis = choose(m, candidates, column, words, wanted);
     }
     basis
+}
+
+/// A set of bond sets: a list for small ring systems, a hash set for large ones.
+enum Seen {
+    List(Vec<Vec<u64>>),
+    Hashed(HashSet<Vec<u64>>),
+}
+
+impl Seen {
+    fn new(large: bool) -> Self {
+        if large {
+            Seen::Hashed(HashSet::new())
+        } else {
+            Seen::List(Vec::new())
+        }
+    }
+
+    /// Adds `v`; whether it was new.
+    fn insert(&mut self, v: Vec<u64>) -> bool {
+        match self {
+            Seen::List(list) => {
+                if list.contains(&v) {
+                    false
+                } else {
+                    list.push(v);
+                    true
+                }
+            }
+            Seen::Hashed(set) => set.insert(v),
+        }
+    }
 }
 
 fn bits(m: &Molecule, cycle: &[usize], column: &[usize], words: usize) -> Vec<u64> {
