@@ -32,25 +32,42 @@ pub fn symmetry_classes(m: &Molecule) -> Vec<u32> {
         .collect();
     let mut classes = rank(&initial);
     let mut count = distinct(&classes);
+    // Each round's keys, flat: an atom's sorted neighbour entries sit at
+    // `flat[start[i]..start[i + 1]]`, each entry (class, bond order, aromatic) packed in a
+    // u64 so that integer order is tuple order.
+    let mut start = Vec::with_capacity(n + 1);
+    start.push(0);
+    for i in 0..n {
+        start.push(start[i] + m.neighbors[i].len());
+    }
+    let mut flat = vec![0u64; start[n]];
+    let mut idx: Vec<usize> = Vec::with_capacity(n);
+    let mut next = vec![0u32; n];
     for _ in 0..n {
-        let keys: Vec<(u32, Vec<(u32, u8, bool)>)> = (0..n)
-            .map(|i| {
-                let mut nbs: Vec<(u32, u8, bool)> = m.neighbors[i]
-                    .iter()
-                    .map(|nb| {
-                        let b = &m.bonds[nb.bond];
-                        // Aromatic bonds compare as one kind whatever their Kekulé order.
-                        let order = if b.aromatic { 4 } else { b.order };
-                        (classes[nb.atom], order, b.aromatic)
-                    })
-                    .collect();
-                nbs.sort_unstable();
-                (classes[i], nbs)
-            })
-            .collect();
-        let next = rank(&keys);
+        for i in 0..n {
+            let entries = &mut flat[start[i]..start[i + 1]];
+            for (e, nb) in entries.iter_mut().zip(m.neighbors[i].iter()) {
+                let b = &m.bonds[nb.bond];
+                // Aromatic bonds compare as one kind whatever their Kekulé order.
+                let order = if b.aromatic { 4 } else { b.order };
+                *e = (classes[nb.atom] as u64) << 16 | (order as u64) << 8 | b.aromatic as u64;
+            }
+            entries.sort_unstable();
+        }
+        let key = |i: usize| (classes[i], &flat[start[i]..start[i + 1]]);
+        idx.clear();
+        idx.extend(0..n);
+        // Equal keys get one class whatever their order: no need for a stable sort.
+        idx.sort_unstable_by(|&a, &b| key(a).cmp(&key(b)));
+        let mut class = 0u32;
+        for k in 0..n {
+            if k > 0 && key(idx[k]) != key(idx[k - 1]) {
+                class += 1;
+            }
+            next[idx[k]] = class;
+        }
         let c = distinct(&next);
-        classes = next;
+        std::mem::swap(&mut classes, &mut next);
         if c == count {
             break;
         }
@@ -61,7 +78,7 @@ pub fn symmetry_classes(m: &Molecule) -> Vec<u32> {
 
 fn rank<T: Ord>(keys: &[T]) -> Vec<u32> {
     let mut idx: Vec<usize> = (0..keys.len()).collect();
-    idx.sort_by(|&a, &b| keys[a].cmp(&keys[b]));
+    idx.sort_unstable_by(|&a, &b| keys[a].cmp(&keys[b]));
     let mut out = vec![0u32; keys.len()];
     let mut class = 0u32;
     for k in 0..idx.len() {
