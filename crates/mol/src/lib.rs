@@ -65,7 +65,7 @@ mod write;
 pub use error::{Error, ErrorKind, Span};
 pub use molecule::{Atom, Bond, Hybridization, Molecule, Neighbor};
 pub use read::{MAX_INLINE_LENGTH, MAX_LENGTH};
-pub use write::{write_smiles_ordered, write_smiles_with_protons};
+pub use write::{write_smiles_ordered, write_smiles_with_protons, SmilesWriter};
 
 /// Reads SMILES text and perceives it (hydrogens, rings, aromaticity, Kekulé form,
 /// hybridization). All components are kept, in input order.

@@ -16,16 +16,87 @@ use crate::molecule::Molecule;
 
 /// Writes SMILES and returns, for each atom in the order written, its index in `m`.
 pub fn write_smiles_ordered(m: &Molecule) -> (String, Vec<usize>) {
-    let mut order = Vec::with_capacity(m.atoms.len());
-    let out = write(&View { m, edits: &[] }, Some(&mut order));
-    (out, order)
+    let w = SmilesWriter::new(m);
+    (w.write(&[]), w.order)
 }
 
 /// Writes the molecule with protons moved, as [`Molecule::with_protons`] would move them:
 /// `write_smiles_with_protons(m, edits) == write_smiles(&m.with_protons(edits))`, without
 /// the copy.
 pub fn write_smiles_with_protons(m: &Molecule, edits: &[(usize, i8)]) -> String {
-    write(&View { m, edits }, None)
+    SmilesWriter::new(m).write(edits)
+}
+
+/// A molecule's SMILES walk, made once and written any number of times with different
+/// protons moved: the walk (atom order, branches, ring-closure digits) depends only on
+/// the bonds, so the species of one parent share it.
+///
+/// ```
+/// let m = mol::parse("NCC(=O)O")?;
+/// let w = mol::SmilesWriter::new(&m);
+/// assert_eq!(w.write(&[]), mol::write_smiles(&m));
+/// assert_eq!(w.write(&[(0, 1), (4, -1)]), "[NH3+]CC(=O)[O-]");
+/// # Ok::<(), mol::Error>(())
+/// ```
+pub struct SmilesWriter<'a> {
+    m: &'a Molecule,
+    ops: Vec<Op>,
+    order: Vec<usize>,
+}
+
+/// One step of the written walk.
+#[derive(Clone, Copy)]
+enum Op {
+    /// Start of component `k` (a `.` before all but the first).
+    Component(usize),
+    Atom(usize),
+    /// The bond symbol, if any, of a bond entered or a ring bond opened.
+    Bond(usize),
+    Text(&'static str),
+    Digit(usize),
+}
+
+impl<'a> SmilesWriter<'a> {
+    /// Walks the molecule once.
+    pub fn new(m: &'a Molecule) -> Self {
+        let mut ops = Vec::with_capacity(3 * m.atoms.len() + m.components.len());
+        let mut order = Vec::with_capacity(m.atoms.len());
+        let mut scratch = Scratch::new(m);
+        for (k, component) in m.components.iter().enumerate() {
+            ops.push(Op::Component(k));
+            walk_component(m, component, &mut ops, &mut order, &mut scratch);
+        }
+        SmilesWriter { m, ops, order }
+    }
+
+    /// For each atom in the order written, its index in the molecule.
+    pub fn order(&self) -> &[usize] {
+        &self.order
+    }
+
+    /// The SMILES with protons moved by `edits` (each `(atom, delta)` as in
+    /// [`Molecule::with_protons`]; empty for the molecule itself).
+    pub fn write(&self, edits: &[(usize, i8)]) -> String {
+        let v = View { m: self.m, edits };
+        let m = self.m;
+        let mut out = String::with_capacity(m.input.len() + 16);
+        let mut lower = false;
+        for &op in &self.ops {
+            match op {
+                Op::Component(k) => {
+                    if k > 0 {
+                        out.push('.');
+                    }
+                    lower = aromatic_writable(&v, &m.components[k]);
+                }
+                Op::Atom(i) => atom_text(&v, i, lower, &mut out),
+                Op::Bond(b) => out.push_str(bond_text(m, b, lower)),
+                Op::Text(t) => out.push_str(t),
+                Op::Digit(d) => push_digit(&mut out, d),
+            }
+        }
+        out
+    }
 }
 
 /// The molecule as written: its own atoms, with hydrogens and charges changed by `edits`.
@@ -49,27 +120,6 @@ impl View<'_> {
         }
         (h, c)
     }
-}
-
-fn write(v: &View, mut order: Option<&mut Vec<usize>>) -> String {
-    let m = v.m;
-    let mut out = String::with_capacity(m.input.len() + 16);
-    let mut scratch = Scratch::new(m);
-    for (k, component) in m.components.iter().enumerate() {
-        if k > 0 {
-            out.push('.');
-        }
-        let lower = aromatic_writable(v, component);
-        write_component(
-            v,
-            component,
-            lower,
-            &mut out,
-            order.as_deref_mut(),
-            &mut scratch,
-        );
-    }
-    out
 }
 
 /// Whether the component can be written with lower-case aromatic atoms such that a reader
@@ -297,15 +347,13 @@ impl Scratch {
     }
 }
 
-fn write_component(
-    v: &View,
+fn walk_component(
+    m: &Molecule,
     component: &[usize],
-    lower: bool,
-    out: &mut String,
-    mut order: Option<&mut Vec<usize>>,
+    ops: &mut Vec<Op>,
+    order: &mut Vec<usize>,
     s: &mut Scratch,
 ) {
-    let m = v.m;
     let Some(&root) = component.first() else {
         return;
     };
@@ -379,18 +427,16 @@ fn write_component(
     while let Some(task) = s.tasks.pop() {
         let (at, via) = match task {
             Task::Text(t) => {
-                out.push_str(t);
+                ops.push(Op::Text(t));
                 continue;
             }
             Task::Atom { atom, via } => (atom, via),
         };
         if let Some(b) = via {
-            out.push_str(bond_text(m, b, lower));
+            ops.push(Op::Bond(b));
         }
-        atom_text(v, at, lower, out);
-        if let Some(order) = order.as_deref_mut() {
-            order.push(at);
-        }
+        ops.push(Op::Atom(at));
+        order.push(at);
         if has_closures && !s.closures[at].is_empty() {
             s.rings.clear();
             s.rings.extend_from_slice(&s.closures[at]);
@@ -411,12 +457,12 @@ fn write_component(
                         };
                         s.free[d] = false;
                         s.digit_of[b] = d;
-                        out.push_str(bond_text(m, b, lower));
-                        push_digit(out, d);
+                        ops.push(Op::Bond(b));
+                        ops.push(Op::Digit(d));
                     }
                     d => {
                         s.freed.push(d);
-                        push_digit(out, d);
+                        ops.push(Op::Digit(d));
                     }
                 }
             }

@@ -119,7 +119,6 @@ pub fn estimate_with(
     match analyze(library, input) {
         Ok(mut analysis) => {
             let at_ph = analysis.speciate(options.ph);
-            record.smiles = Some(mol::write_smiles(&analysis.parent));
             record.warnings = analysis.warnings();
             record.warnings.extend(cautions(&analysis.sites));
             // Each site's texts and terms move into its report: nothing reads them after this.
@@ -139,11 +138,14 @@ pub fn estimate_with(
             record.charge_at_ph = Some(at_ph.charge_at_ph);
             record.isoelectric_point = at_ph.isoelectric_point;
             analysis.sites = sites;
+            // One walk of the parent serves its own SMILES and every species'.
+            let writer = mol::SmilesWriter::new(&analysis.parent);
+            record.smiles = Some(writer.write(&[]));
             record.species = at_ph
                 .species
                 .iter()
                 .map(|sp| SpeciesReport {
-                    smiles: analysis.species_smiles(&sp.charged),
+                    smiles: writer.write(&analysis.species_edits(&sp.charged)),
                     charge: sp.charge,
                     fraction: sp.fraction,
                 })
@@ -296,7 +298,13 @@ impl Analysis {
 
     /// The SMILES of a microspecies: each charged site gains (base) or loses (acid) a proton.
     pub(crate) fn species_smiles(&self, charged: &[bool]) -> String {
-        let edits: Vec<(usize, i8)> = self
+        mol::write_smiles_with_protons(&self.parent, &self.species_edits(charged))
+    }
+
+    /// The proton moves of a microspecies: each charged site of the window, and every
+    /// fixed site.
+    pub(crate) fn species_edits(&self, charged: &[bool]) -> Vec<(usize, i8)> {
+        self
             .window
             .iter()
             .zip(charged)
@@ -307,8 +315,7 @@ impl Analysis {
                 let s = &self.sites[i];
                 (s.atom, if s.kind == model::Kind::Acid { -1 } else { 1 })
             })
-            .collect();
-        mol::write_smiles_with_protons(&self.parent, &edits)
+            .collect()
     }
 }
 
