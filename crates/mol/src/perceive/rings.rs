@@ -270,7 +270,7 @@ fn system_rings_with(
             add(path, &mut candidates);
         }
     }
-    let mut basis = choose(m, candidates.clone(), column, words, wanted);
+    let mut basis = choose(m, &candidates, column, words, wanted);
     if basis.len() < wanted && atoms.len() <= HORTON_LIMIT {
         for &r in atoms {
             let (parent, depth) = bfs_tree(m, r, ring_bond, n);
@@ -295,7 +295,7 @@ fn system_rings_with(
                 add(cycle, &mut candidates);
             }
         }
-        basis = choose(m, candidates, column, words, wanted);
+        basis = choose(m, &candidates, column, words, wanted);
     }
     basis
 }
@@ -348,7 +348,7 @@ fn bits(m: &Molecule, cycle: &[usize], column: &[usize], words: usize) -> Vec<u6
 /// Greedy choice of short, independent cycles: Gaussian elimination over GF(2).
 fn choose(
     m: &Molecule,
-    candidates: Vec<Vec<usize>>,
+    candidates: &[Vec<usize>],
     column: &[usize],
     words: usize,
     wanted: usize,
@@ -395,11 +395,10 @@ fn canonical(cycle: &[usize]) -> Vec<usize> {
     let Some(start) = (0..n).min_by_key(|&i| cycle[i]) else {
         return Vec::new();
     };
-    let forward: Vec<usize> = (0..n).map(|k| cycle[(start + k) % n]).collect();
-    let backward: Vec<usize> = (0..n).map(|k| cycle[(start + n - k) % n]).collect();
-    if n > 1 && backward[1] < forward[1] {
-        backward
+    // backward[1] is the atom before the start, forward[1] the one after.
+    if n > 1 && cycle[(start + n - 1) % n] < cycle[(start + 1) % n] {
+        (0..n).map(|k| cycle[(start + n - k) % n]).collect()
     } else {
-        forward
+        (0..n).map(|k| cycle[(start + k) % n]).collect()
     }
 }
