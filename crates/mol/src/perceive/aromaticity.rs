@@ -138,13 +138,18 @@ fn ring_bond_list(m: &Molecule, ring: &[usize]) -> Vec<usize> {
 /// the RDKit Book, "Aromaticity", default model.
 pub(crate) fn perceive_aromaticity(m: &mut Molecule) {
     let donors: Vec<Donor> = (0..m.atoms.len()).map(|i| donor(m, i)).collect();
-    let rings: Vec<(Vec<usize>, Vec<usize>)> = m
+    // Candidate rings as (index into `m.rings`, ring bonds).
+    let rings: Vec<(usize, Vec<usize>)> = m
         .rings
         .iter()
-        .filter(|r| r.iter().all(|&a| donors[a] != Donor::No))
-        .map(|r| (r.clone(), ring_bond_list(m, r)))
+        .enumerate()
+        .filter(|(_, r)| r.iter().all(|&a| donors[a] != Donor::No))
+        .map(|(i, r)| (i, ring_bond_list(m, r)))
         .collect();
     let k = rings.len();
+    if k == 0 {
+        return;
+    }
     // Fused: rings sharing a bond.
     let mut rings_of_bond: Vec<Vec<usize>> = vec![Vec::new(); m.bonds.len()];
     for (r, (_, bonds)) in rings.iter().enumerate() {
@@ -192,7 +197,10 @@ pub(crate) fn perceive_aromaticity(m: &mut Molecule) {
             if subset.iter().all(|&r| aromatic_rings[r]) {
                 continue;
             }
-            let mut atoms: Vec<usize> = subset.iter().flat_map(|&r| rings[r].0.clone()).collect();
+            let mut atoms: Vec<usize> = subset
+                .iter()
+                .flat_map(|&r| m.rings[rings[r].0].iter().copied())
+                .collect();
             atoms.sort_unstable();
             atoms.dedup();
             let electrons: usize = atoms.iter().map(|&a| donors[a].electrons()).sum();
@@ -203,11 +211,11 @@ pub(crate) fn perceive_aromaticity(m: &mut Molecule) {
             }
         }
     }
-    for (r, (atoms, bonds)) in rings.iter().enumerate() {
+    for (r, (ring, bonds)) in rings.iter().enumerate() {
         if !aromatic_rings[r] {
             continue;
         }
-        for &a in atoms {
+        for &a in &m.rings[*ring] {
             m.atoms[a].aromatic = true;
         }
         for &b in bonds {
