@@ -405,10 +405,11 @@ fn hammett(
         let atom = ring[(start + step) % n];
         let distance = step.min(n - step);
         let pos = position(distance);
-        let number = step + 1; // ring numbering from the anchor as 1, the way chemists name it
-                               // Ring atoms the class pattern names are part of its parent (the second N of a
-                               // pyrimidine class): their own aza term is in the parent value, but what hangs on
-                               // them is still scored.
+        // Ring numbering from the anchor as 1, the way chemists name positions.
+        let number = step + 1;
+        // Ring atoms the class pattern names are part of its parent (the second N of a
+        // pyrimidine class): their own aza term is in the parent value, but what hangs on
+        // them is still scored.
         let in_parent = found.matched.contains(&atom);
         if let Some(entry) = ring_member_entry(library, molecule, atom).filter(|_| !in_parent) {
             push_hammett(
