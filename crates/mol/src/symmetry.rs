@@ -44,6 +44,11 @@ pub fn symmetry_classes(m: &Molecule) -> Vec<u32> {
     let mut idx: Vec<usize> = Vec::with_capacity(n);
     let mut next = vec![0u32; n];
     for _ in 0..n {
+        // All atoms already apart: a round would rank by the classes alone and give them
+        // back unchanged.
+        if count == n {
+            break;
+        }
         for i in 0..n {
             let entries = &mut flat[start[i]..start[i + 1]];
             for (e, nb) in entries.iter_mut().zip(m.neighbors[i].iter()) {
