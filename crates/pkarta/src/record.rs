@@ -134,7 +134,12 @@ pub fn estimate_with(
             // Coupling can push a constant past what water allows (the C-H of a malonate
             // dianion); those are not observable and are left out.
             let (low, high) = model::AQUEOUS_WINDOW;
-            record.macro_pka = at_ph.macro_pka.iter().copied().filter(|p| (low..=high).contains(p)).collect();
+            record.macro_pka = at_ph
+                .macro_pka
+                .iter()
+                .copied()
+                .filter(|p| (low..=high).contains(p))
+                .collect();
             record.charge_at_ph = Some(at_ph.charge_at_ph);
             record.isoelectric_point = at_ph.isoelectric_point;
             analysis.sites = sites;
@@ -151,7 +156,9 @@ pub fn estimate_with(
                 })
                 .collect();
             if at_ph.method != "exact" {
-                record.warnings.push(format!("speciation: {}", at_ph.method));
+                record
+                    .warnings
+                    .push(format!("speciation: {}", at_ph.method));
             }
         }
         Err(e) => record.error = Some(e),
@@ -162,7 +169,11 @@ pub fn estimate_with(
 /// Cautions carried in the output where an estimate could guide lab work.
 fn cautions(sites: &[model::Site]) -> Vec<String> {
     let mut out = Vec::new();
-    if let Some(s) = sites.iter().filter(|s| s.kind == model::Kind::Acid && s.in_window).min_by(|a, b| a.pka.total_cmp(&b.pka)) {
+    if let Some(s) = sites
+        .iter()
+        .filter(|s| s.kind == model::Kind::Acid && s.in_window)
+        .min_by(|a, b| a.pka.total_cmp(&b.pka))
+    {
         if s.pka < 1.0 {
             out.push(format!(
                 "caution: strong acid site (estimated pKa {:.1}); an estimate, not a measurement: handle and choose reagents by measured data, local safety rules and licensed practice",
@@ -170,7 +181,11 @@ fn cautions(sites: &[model::Site]) -> Vec<String> {
             ));
         }
     }
-    if let Some(s) = sites.iter().filter(|s| s.kind == model::Kind::Base && s.in_window).max_by(|a, b| a.pka.total_cmp(&b.pka)) {
+    if let Some(s) = sites
+        .iter()
+        .filter(|s| s.kind == model::Kind::Base && s.in_window)
+        .max_by(|a, b| a.pka.total_cmp(&b.pka))
+    {
         if s.pka > 12.0 {
             out.push(format!(
                 "caution: strong base site (estimated conjugate-acid pKa {:.1}); an estimate, not a measurement: handle and choose reagents by measured data, local safety rules and licensed practice",
@@ -199,11 +214,19 @@ pub(crate) struct Analysis {
 }
 
 pub(crate) fn analyze(library: &model::Library, input: &str) -> Result<Analysis, ErrorReport> {
-    let molecule = mol::parse(input).map_err(|e| ErrorReport { message: e.to_string() })?;
+    let molecule = mol::parse(input).map_err(|e| ErrorReport {
+        message: e.to_string(),
+    })?;
     // Taken, not borrowed: a molecule that needs no standardizing becomes the parent
     // without a copy.
-    let mol::Standardized { parent, origin, others, changes } =
-        mol::standardize_owned(molecule).map_err(|e| ErrorReport { message: e.to_string() })?;
+    let mol::Standardized {
+        parent,
+        origin,
+        others,
+        changes,
+    } = mol::standardize_owned(molecule).map_err(|e| ErrorReport {
+        message: e.to_string(),
+    })?;
     let found = model::find_sites(library, &parent);
     let sites = model::score_sites(library, &parent, &found);
     let window: Vec<usize> = (0..sites.len()).filter(|&i| sites[i].in_window).collect();
@@ -219,12 +242,21 @@ pub(crate) fn analyze(library: &model::Library, input: &str) -> Result<Analysis,
         .collect();
     // The coupled sites are most often all the sites, in order: then they are passed as
     // they are rather than copied (their terms hold long source texts).
-    let all_in_order = window.len() + fixed.len() == sites.len() && window.iter().chain(&fixed).enumerate().all(|(k, &i)| k == i);
+    let all_in_order = window.len() + fixed.len() == sites.len()
+        && window
+            .iter()
+            .chain(&fixed)
+            .enumerate()
+            .all(|(k, &i)| k == i);
     let copied: Vec<model::Site>;
     let coupled: &[model::Site] = if all_in_order {
         &sites
     } else {
-        copied = window.iter().chain(&fixed).map(|&i| sites[i].clone()).collect();
+        copied = window
+            .iter()
+            .chain(&fixed)
+            .map(|&i| sites[i].clone())
+            .collect();
         &copied
     };
     let w = model::interactions(library, &parent, coupled);
@@ -232,9 +264,16 @@ pub(crate) fn analyze(library: &model::Library, input: &str) -> Result<Analysis,
     let interaction: Vec<Vec<f64>> = w[..nw].iter().map(|row| row[..nw].to_vec()).collect();
     let fixed_charge: i32 = fixed
         .iter()
-        .map(|&i| if sites[i].kind == model::Kind::Acid { -1 } else { 1 })
+        .map(|&i| {
+            if sites[i].kind == model::Kind::Acid {
+                -1
+            } else {
+                1
+            }
+        })
         .sum();
-    let base_charge: i32 = parent.atoms().iter().map(|a| a.charge as i32).sum::<i32>() + fixed_charge;
+    let base_charge: i32 =
+        parent.atoms().iter().map(|a| a.charge as i32).sum::<i32>() + fixed_charge;
     let system = speciation::System {
         sites: window
             .iter()
@@ -259,7 +298,17 @@ pub(crate) fn analyze(library: &model::Library, input: &str) -> Result<Analysis,
         interaction,
         base_charge,
     };
-    Ok(Analysis { parent, origin, others, changes, found, sites, window, fixed, system })
+    Ok(Analysis {
+        parent,
+        origin,
+        others,
+        changes,
+        found,
+        sites,
+        window,
+        fixed,
+        system,
+    })
 }
 
 impl Analysis {
@@ -270,7 +319,9 @@ impl Analysis {
     pub(crate) fn warnings(&self) -> Vec<String> {
         let mut out: Vec<String> = Vec::new();
         for other in &self.others {
-            out.push(format!("set aside component {other} (counter-ion or solvent)"));
+            out.push(format!(
+                "set aside component {other} (counter-ion or solvent)"
+            ));
         }
         out.extend(self.changes.iter().cloned());
         for site in &self.sites {
@@ -304,8 +355,7 @@ impl Analysis {
     /// The proton moves of a microspecies: each charged site of the window, and every
     /// fixed site.
     pub(crate) fn species_edits(&self, charged: &[bool]) -> Vec<(usize, i8)> {
-        self
-            .window
+        self.window
             .iter()
             .zip(charged)
             .filter(|(_, &c)| c)
@@ -384,7 +434,12 @@ pub fn inspect(input: &str, id: Option<&str>) -> InspectRecord {
             bonds: m
                 .bonds()
                 .iter()
-                .map(|b| InspectBond { a: b.a, b: b.b, order: b.order, aromatic: b.aromatic })
+                .map(|b| InspectBond {
+                    a: b.a,
+                    b: b.b,
+                    order: b.order,
+                    aromatic: b.aromatic,
+                })
                 .collect(),
             components: m.components().to_vec(),
             error: None,
@@ -395,7 +450,9 @@ pub fn inspect(input: &str, id: Option<&str>) -> InspectRecord {
             atoms: Vec::new(),
             bonds: Vec::new(),
             components: Vec::new(),
-            error: Some(ErrorReport { message: e.to_string() }),
+            error: Some(ErrorReport {
+                message: e.to_string(),
+            }),
         },
     }
 }
@@ -471,24 +528,44 @@ pub struct Curve {
 }
 
 /// Computes a speciation curve from `from` to `to` in steps of `step`.
-pub fn curve(input: &str, options: &Options, from: f64, to: f64, step: f64) -> Result<Curve, ErrorReport> {
+pub fn curve(
+    input: &str,
+    options: &Options,
+    from: f64,
+    to: f64,
+    step: f64,
+) -> Result<Curve, ErrorReport> {
     let a = analyze(model::Library::builtin(), input)?;
-    let states = speciation::Microstates::new(&a.system).map_err(|e| ErrorReport { message: e.to_string() })?;
-    let inner = states.curve(from, to, step).map_err(|e| ErrorReport { message: e.to_string() })?;
-    let at_ph = states.speciation(options.ph).map_err(|e| ErrorReport { message: e.to_string() })?;
+    let states = speciation::Microstates::new(&a.system).map_err(|e| ErrorReport {
+        message: e.to_string(),
+    })?;
+    let inner = states.curve(from, to, step).map_err(|e| ErrorReport {
+        message: e.to_string(),
+    })?;
+    let at_ph = states.speciation(options.ph).map_err(|e| ErrorReport {
+        message: e.to_string(),
+    })?;
     let species = inner
         .species
         .iter()
         .map(|sp| SpeciesReport {
             smiles: a.species_smiles(&sp.charged),
             charge: sp.charge,
-            fraction: at_ph.species.iter().find(|x| x.charged == sp.charged).map_or(0.0, |x| x.fraction),
+            fraction: at_ph
+                .species
+                .iter()
+                .find(|x| x.charged == sp.charged)
+                .map_or(0.0, |x| x.fraction),
         })
         .collect();
     let points = inner
         .points
         .iter()
-        .map(|p| CurvePoint { ph: p.ph, charge: p.charge, fractions: p.fractions.clone() })
+        .map(|p| CurvePoint {
+            ph: p.ph,
+            charge: p.charge,
+            fractions: p.fractions.clone(),
+        })
         .collect();
     Ok(Curve {
         smiles: mol::write_smiles(&a.parent),
