@@ -562,13 +562,23 @@ fn main() -> Result<()> {
         writeln!(doc, "# Accuracy of the calibrated estimates")?;
         writeln!(doc)?;
         writeln!(doc, "Written by `cargo run --release -p pkarta-calibrate -- --write --table docs/accuracy.md`.")?;
-        writeln!(doc, "{}-fold cross-validation over `../shared/data/iupac-acids.csv` (lowest measured pKa,", o.folds)?;
-        writeln!(doc, "compared with the strongest acid site) and `iupac-bases.csv` (highest measured")?;
+        writeln!(
+            doc,
+            "{}-fold cross-validation over `../shared/data/iupac-acids.csv` (lowest measured pKa,",
+            o.folds
+        )?;
+        writeln!(
+            doc,
+            "compared with the strongest acid site) and `iupac-bases.csv` (highest measured"
+        )?;
         writeln!(doc, "conjugate-acid pKa, compared with the most basic site): molecules are split by a hash of")?;
         writeln!(doc, "their SMILES, and each is scored by constants fitted to the other folds only. A molecule")?;
         writeln!(doc, "is covered when it has a site of the measured kind inside the aqueous window. Per class:")?;
         writeln!(doc, "the class of the site each held-out molecule was attributed to; `fitted` says whether the")?;
-        writeln!(doc, "shipped constants of the class are fitted or published.")?;
+        writeln!(
+            doc,
+            "shipped constants of the class are fitted or published."
+        )?;
         writeln!(doc)?;
         doc.push_str(&table);
         writeln!(doc)?;

@@ -12,6 +12,7 @@ pub use pattern;
 pub use speciation;
 
 pub use record::{
-    curve, debug_sites, estimate, estimate_with, inspect, plot_svg, Curve, CurvePoint, DebugSite, ErrorReport, InspectAtom, InspectBond, InspectRecord, Options, Record,
-    SiteReport, SpeciesReport,
+    curve, debug_sites, estimate, estimate_with, inspect, plot_svg, Curve, CurvePoint, DebugSite,
+    ErrorReport, InspectAtom, InspectBond, InspectRecord, Options, Record, SiteReport,
+    SpeciesReport,
 };
