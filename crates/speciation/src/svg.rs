@@ -383,7 +383,7 @@ pub fn svg_plot(curve: &Curve, labels: &[String], options: &PlotOptions) -> Stri
             escape(charge),
             lx + 58.0,
             y,
-            escape(&truncate(label, LABEL_CHARS - 6)),
+            escape(&truncate(label, LABEL_CHARS - 9)),
             w - 8.0,
             y,
             escape(at)
