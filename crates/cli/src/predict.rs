@@ -41,7 +41,7 @@ pub fn run(args: &PredictArgs) -> anyhow::Result<bool> {
     });
     let progress = Progress::new(args.batch.quiet, opened.len);
     let out = batch::stdout();
-    let mut sink: Box<dyn Sink<Record> + Send> = match format {
+    let mut sink: Box<dyn Sink<Estimated> + Send> = match format {
         PredictFormat::Jsonl => Box::new(Jsonl { out }),
         PredictFormat::Table => Box::new(Table { out, first: true }),
         PredictFormat::Csv | PredictFormat::Tsv => {
@@ -71,6 +71,7 @@ pub fn run(args: &PredictArgs) -> anyhow::Result<bool> {
     let job = PredictJob {
         options: Options { ph: args.ph.ph },
         library,
+        json: format == PredictFormat::Jsonl,
     };
     let threads = args.batch.threads.map(usize::from);
     let summary = batch::run(opened.source, threads, &job, sink.as_mut(), &progress)?;
@@ -84,6 +85,24 @@ pub struct PredictJob {
     pub options: Options,
     /// The user's fragment library, if not the built-in one.
     pub library: Option<pkarta::model::Library>,
+    /// Serialize each record to JSON Lines in the worker that estimated it.
+    pub json: bool,
+}
+
+/// A finished record, with its JSON Lines text when that is the output format: the
+/// workers serialize in parallel, so the single writer thread only copies bytes and does
+/// not hold back the others.
+pub struct Estimated {
+    /// The record.
+    pub record: Record,
+    /// Its JSON text (no line end), when the output is JSON Lines.
+    pub json: Option<Vec<u8>>,
+}
+
+impl Outcome for Estimated {
+    fn failed(&self) -> bool {
+        self.record.error.is_some()
+    }
 }
 
 impl Outcome for Record {
@@ -93,10 +112,10 @@ impl Outcome for Record {
 }
 
 impl Job for PredictJob {
-    type Out = Record;
+    type Out = Estimated;
 
-    fn run(&self, item: &Item) -> Record {
-        match &item.problem {
+    fn run(&self, item: &Item) -> Estimated {
+        let record = match &item.problem {
             Some(problem) => failed(item, self.options.ph, problem.clone()),
             None => match &self.library {
                 Some(library) => {
@@ -104,11 +123,23 @@ impl Job for PredictJob {
                 }
                 None => pkarta::estimate(&item.text, item.id.as_deref(), &self.options),
             },
-        }
+        };
+        self.finish(record)
     }
 
-    fn internal_error(&self, item: &Item, message: String) -> Record {
-        failed(item, self.options.ph, message)
+    fn internal_error(&self, item: &Item, message: String) -> Estimated {
+        self.finish(failed(item, self.options.ph, message))
+    }
+}
+
+impl PredictJob {
+    fn finish(&self, record: Record) -> Estimated {
+        let json = if self.json {
+            serde_json::to_vec(&record).ok()
+        } else {
+            None
+        };
+        Estimated { record, json }
     }
 }
 
@@ -159,9 +190,12 @@ struct Jsonl<W> {
     out: W,
 }
 
-impl<W: Write + Send> Sink<Record> for Jsonl<W> {
-    fn write(&mut self, _item: &Item, record: &Record) -> io::Result<()> {
-        serde_json::to_writer(&mut self.out, record)?;
+impl<W: Write + Send> Sink<Estimated> for Jsonl<W> {
+    fn write(&mut self, _item: &Item, done: &Estimated) -> io::Result<()> {
+        match &done.json {
+            Some(json) => self.out.write_all(json)?,
+            None => serde_json::to_writer(&mut self.out, &done.record)?,
+        }
         self.out.write_all(b"\n")
     }
     fn flush(&mut self) -> io::Result<()> {
@@ -230,8 +264,9 @@ pub fn cells(record: &Record) -> Vec<String> {
     ]
 }
 
-impl<W: Write + Send> Sink<Record> for Delimited<W> {
-    fn write(&mut self, item: &Item, record: &Record) -> io::Result<()> {
+impl<W: Write + Send> Sink<Estimated> for Delimited<W> {
+    fn write(&mut self, item: &Item, done: &Estimated) -> io::Result<()> {
+        let record = &done.record;
         if !self.header_written {
             self.write_header()?;
         }
@@ -295,8 +330,9 @@ struct Table<W> {
     first: bool,
 }
 
-impl<W: Write + Send> Sink<Record> for Table<W> {
-    fn write(&mut self, item: &Item, record: &Record) -> io::Result<()> {
+impl<W: Write + Send> Sink<Estimated> for Table<W> {
+    fn write(&mut self, item: &Item, done: &Estimated) -> io::Result<()> {
+        let record = &done.record;
         if !self.first {
             self.out.write_all(b"\n")?;
         }
