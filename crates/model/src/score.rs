@@ -16,7 +16,7 @@ use mol::{Hybridization, Molecule};
 use once_cell::sync::Lazy;
 use serde::{Deserialize, Serialize};
 
-use crate::{recognize, FoundSite, Kind, Library, Scale, SiteClass, SubstituentEntry};
+use crate::{entry_by_id, recognize, FoundSite, Kind, Library, Scale, SiteClass, SubstituentEntry};
 
 /// Fall-off of Taft sigma* per intervening saturated carbon.
 ///
@@ -348,10 +348,6 @@ fn hammett_sigma(
             _ => entry.sigma_p.map(|s| (s, "sigma_p")),
         },
     }
-}
-
-fn entry_by_id<'a>(library: &'a Library, id: &str) -> Option<&'a SubstituentEntry> {
-    library.substituents.iter().find(|e| e.id == id)
 }
 
 /// The table entry standing for a heteroatom that is a member of the site's ring.
@@ -726,13 +722,12 @@ fn taft(
     let mut alkyl = 0.0;
     let mut alkyl_source = None;
     while let Some((atom, from, depth)) = queue.pop_front() {
-        let recognized = recognize(
-            library,
-            molecule,
-            atom,
-            from,
-            &visited_except(&visited, atom),
-        );
+        // The atom was marked visited when it was queued; it must not fence itself off.
+        if let Some(i) = visited.iter().position(|&a| a == atom) {
+            visited.swap_remove(i);
+        }
+        let recognized = recognize(library, molecule, atom, from, &visited);
+        visited.push(atom);
         let walk = match &recognized {
             // A saturated carbon the table has no sigma* for (CHF2, CH2CN...) is taken
             // apart: the walk scores what hangs on it.
@@ -822,10 +817,6 @@ fn taft(
             counted: None,
         });
     }
-}
-
-fn visited_except(visited: &[usize], atom: usize) -> Vec<usize> {
-    visited.iter().copied().filter(|&a| a != atom).collect()
 }
 
 /// The coupling constants of `fragments/interactions.toml`.
