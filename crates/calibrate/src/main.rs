@@ -30,9 +30,6 @@ use nalgebra::{DMatrix, DVector};
 const MIN_POINTS: usize = 6;
 /// Strength of the prior on rho, in units of squared sigma per point.
 const RHO_PRIOR: f64 = 0.05;
-/// Scale of the Cauchy weights (pKa units): a point this far off counts half, one five
-/// times as far about a twenty-sixth.
-const CAUCHY: f64 = 1.0;
 /// Huber threshold (pKa units).
 const HUBER: f64 = 1.0;
 /// Weight of the prior on the parent value, in points at its published value, for classes
@@ -41,40 +38,15 @@ const PARENT_PRIOR: f64 = 2.0;
 /// The same for classes scored with sigma constants, whose parent value is a measured
 /// parent compound (benzoic acid, phenol, pyridinium, methylammonium...): the line of a
 /// Hammett or Taft plot goes through its parent, so the fit moves rho, not the parent,
-/// unless the data insist. Read from PKARTA_SCALED_PARENT_PRIOR when set (for studies).
-static SCALED_PARENT_PRIOR_DEFAULT: f64 = 1000.0;
-
-fn scaled_parent_prior() -> f64 {
-    std::env::var("PKARTA_SCALED_PARENT_PRIOR")
-        .ok()
-        .and_then(|v| v.parse().ok())
-        .unwrap_or(SCALED_PARENT_PRIOR_DEFAULT)
-}
-
-/// Cauchy (Lorentzian) weight of a residual: redescending, so points that measure another
-/// site or another tautomer than the one scored stop pulling the fit.
-///
-/// # Reference
-///
-/// Holland and Welsch, Commun. Stat. Theory Methods 1977, 6, 813 (iteratively reweighted
-/// least squares with the Cauchy weight function; from memory).
-fn cauchy(residual: f64) -> f64 {
-    1.0 / (1.0 + (residual / CAUCHY).powi(2))
-}
-
-fn weight(residual: f64) -> f64 {
-    match std::env::var("PKARTA_WEIGHT").as_deref() {
-        Ok("cauchy") => cauchy(residual),
-        _ => huber(residual),
-    }
-}
+/// unless the data insist.
+const SCALED_PARENT_PRIOR: f64 = 1000.0;
 
 /// Huber weight of a residual: full weight within `HUBER`, falling as 1/r beyond it.
 ///
 /// # Reference
 ///
 /// Huber, Ann. Math. Stat. 1964, 35, 73.
-fn huber(residual: f64) -> f64 {
+fn weight(residual: f64) -> f64 {
     let r = residual.abs();
     if r <= HUBER {
         1.0
@@ -82,6 +54,7 @@ fn huber(residual: f64) -> f64 {
         HUBER / r
     }
 }
+
 /// Refit rounds: site attribution and coupling corrections depend on the constants.
 const ROUNDS: usize = 3;
 
@@ -396,7 +369,7 @@ fn calibrate(
             let prior = if pub_class.scale == Scale::None {
                 PARENT_PRIOR
             } else {
-                scaled_parent_prior()
+                SCALED_PARENT_PRIOR
             };
             let fit = fit_class(&cp, published_fit, aromatic, pub_class.fixed_rho, prior);
             let rmse = (cp
@@ -427,34 +400,33 @@ fn fold_of(smiles: &str, folds: usize) -> usize {
     (h % folds as u64) as usize
 }
 
+/// Signed errors of one group of predictions.
 #[derive(Default)]
 struct Tally {
-    n: usize,
-    abs: f64,
-    sq: f64,
     errors: Vec<f64>,
 }
 
 impl Tally {
     fn add(&mut self, e: f64) {
-        self.errors.push(e.abs());
-        self.n += 1;
-        self.abs += e.abs();
-        self.sq += e * e;
+        self.errors.push(e);
+    }
+    fn n(&self) -> usize {
+        self.errors.len()
     }
     fn mae(&self) -> f64 {
-        self.abs / self.n.max(1) as f64
+        self.errors.iter().map(|e| e.abs()).sum::<f64>() / self.n().max(1) as f64
     }
     fn median(&self) -> f64 {
-        let mut e = self.errors.clone();
+        let mut e: Vec<f64> = self.errors.iter().map(|e| e.abs()).collect();
         e.sort_by(f64::total_cmp);
         e.get(e.len() / 2).copied().unwrap_or(f64::NAN)
     }
     fn within(&self, bound: f64) -> f64 {
-        100.0 * self.errors.iter().filter(|&&e| e <= bound).count() as f64 / self.n.max(1) as f64
+        100.0 * self.errors.iter().filter(|e| e.abs() <= bound).count() as f64
+            / self.n().max(1) as f64
     }
     fn rmse(&self) -> f64 {
-        (self.sq / self.n.max(1) as f64).sqrt()
+        (self.errors.iter().map(|e| e * e).sum::<f64>() / self.n().max(1) as f64).sqrt()
     }
 }
 
@@ -536,13 +508,13 @@ fn main() -> Result<()> {
     writeln!(table, "| class | points | CV MAE | CV RMSE | fitted |")?;
     writeln!(table, "|---|---:|---:|---:|---|")?;
     let mut rows: Vec<_> = per_class.iter().collect();
-    rows.sort_by(|a, b| b.1.n.cmp(&a.1.n));
+    rows.sort_by(|a, b| b.1.n().cmp(&a.1.n()));
     for (class, t) in rows {
         let fitted = stats.contains_key(&index[class]);
         writeln!(
             table,
             "| {class} | {} | {:.2} | {:.2} | {} |",
-            t.n,
+            t.n(),
             t.mae(),
             t.rmse(),
             if fitted { "yes" } else { "published" }
