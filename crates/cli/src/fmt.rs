@@ -101,3 +101,18 @@ mod tests {
         assert_eq!(hang("bad\nC1CC\n^", "   "), "bad\n   C1CC\n   ^");
     }
 }
+
+/// The heading of one record in a table (`#N  name  input`), followed by its error when it
+/// failed. Returns the text and whether the record failed (nothing more to show then).
+pub fn heading(number: u64, id: Option<&str>, input: &str, error: Option<&str>) -> (String, bool) {
+    let mut s = format!("#{number}");
+    if let Some(id) = id {
+        s.push_str(&format!("  {id}"));
+    }
+    s.push_str(&format!("  {input}\n"));
+    if let Some(message) = error {
+        s.push_str(&format!("  error: {}\n", hang(message, "         ")));
+        return (s, true);
+    }
+    (s, false)
+}

@@ -6,7 +6,7 @@ use pkarta::{ErrorReport, InspectRecord};
 
 use crate::batch::{self, Job, Outcome, Sink};
 use crate::flags::{InspectArgs, InspectFormat};
-use crate::fmt::{align, hang};
+use crate::fmt::{align, heading};
 use crate::input::{self, Item};
 use crate::progress::{self, Progress};
 
@@ -114,13 +114,13 @@ impl<W: Write + Send> Sink<InspectRecord> for Table<W> {
 
 /// One record as text for people: a heading, the atoms, the bonds, the components.
 pub fn render(number: u64, record: &InspectRecord) -> String {
-    let mut s = format!("#{number}");
-    if let Some(id) = &record.id {
-        s.push_str(&format!("  {id}"));
-    }
-    s.push_str(&format!("  {}\n", record.input));
-    if let Some(error) = &record.error {
-        s.push_str(&format!("  error: {}\n", hang(&error.message, "         ")));
+    let (mut s, failed) = heading(
+        number,
+        record.id.as_deref(),
+        &record.input,
+        record.error.as_ref().map(|e| e.message.as_str()),
+    );
+    if failed {
         return s;
     }
     let yes_no = |b: bool| if b { "yes" } else { "no" }.to_string();

@@ -6,7 +6,7 @@ use pkarta::{ErrorReport, Options, Record, SiteReport};
 
 use crate::batch::{self, Job, Outcome, Sink};
 use crate::flags::{InputFormat, PredictArgs, PredictFormat};
-use crate::fmt::{align, hang, num, opt_num, percent, CAUTION};
+use crate::fmt::{align, heading, num, opt_num, percent, CAUTION};
 use crate::input::{self, Item};
 use crate::progress::{self, Progress};
 
@@ -353,13 +353,13 @@ impl<W: Write + Send> Sink<Estimated> for Table<W> {
 
 /// One record as text for people: a heading, a row per site, then the molecule summary.
 pub fn render(number: u64, record: &Record) -> String {
-    let mut s = format!("#{number}");
-    if let Some(id) = &record.id {
-        s.push_str(&format!("  {id}"));
-    }
-    s.push_str(&format!("  {}\n", record.input));
-    if let Some(error) = &record.error {
-        s.push_str(&format!("  error: {}\n", hang(&error.message, "         ")));
+    let (mut s, failed) = heading(
+        number,
+        record.id.as_deref(),
+        &record.input,
+        record.error.as_ref().map(|e| e.message.as_str()),
+    );
+    if failed {
         return s;
     }
     if let Some(parent) = &record.smiles {
