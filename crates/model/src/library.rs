@@ -170,6 +170,10 @@ pub struct SubstituentEntry {
     pub sigma_star: Option<f64>,
     /// Taft sigma* of X-CH2 (the group one methylene away), where tabulated.
     pub sigma_star_ch2: Option<f64>,
+    /// Charton's inductive constant sigma_I, where tabulated (otherwise derived from
+    /// sigma_m and sigma_p by the scorer).
+    #[serde(default)]
+    pub sigma_i: Option<f64>,
     /// For Taft scoring: a plain alkyl carbon (methyl, ethyl, ...) that the chain walk
     /// passes through, scoring the groups beyond it, instead of using this entry whole.
     #[serde(default)]

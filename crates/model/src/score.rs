@@ -598,27 +598,36 @@ fn push_hammett(
     }
 }
 
-/// The inductive constant of an entry, from the decomposition sigma_m = sigma_I + sigma_R / 3,
-/// sigma_p = sigma_I + sigma_R, i.e. sigma_I = (3 sigma_m - sigma_p) / 2.
+/// The inductive constant of an entry and whether it was derived: Charton's tabulated
+/// sigma_I where the entry has one, otherwise the decomposition sigma_m = sigma_I +
+/// sigma_R / 3, sigma_p = sigma_I + sigma_R, i.e. sigma_I = (3 sigma_m - sigma_p) / 2.
 ///
 /// # Reference
 ///
-/// The split of sigma into inductive and resonance parts with the resonance transmitted to
-/// meta at about a third of its para weight: Taft and Lewis, J. Am. Chem. Soc. 1959, 81,
-/// 5343; Exner, *Correlation Analysis of Chemical Data*, 1988 (from memory).
-fn sigma_inductive(entry: &SubstituentEntry) -> Option<f64> {
-    Some((3.0 * entry.sigma_m? - entry.sigma_p?) / 2.0)
+/// Charton, Prog. Phys. Org. Chem. 1981, 13, 119 (tabulated sigma_I). The split of sigma
+/// into inductive and resonance parts with the resonance transmitted to meta at about a
+/// third of its para weight: Taft and Lewis, J. Am. Chem. Soc. 1959, 81, 5343; Exner,
+/// *Correlation Analysis of Chemical Data*, 1988 (from memory).
+fn sigma_inductive(entry: &SubstituentEntry) -> Option<(f64, bool)> {
+    if let Some(s) = entry.sigma_i {
+        return Some((s, false));
+    }
+    Some(((3.0 * entry.sigma_m? - entry.sigma_p?) / 2.0, true))
 }
 
 /// An ortho substituent beside a ring-member site, scored by its inductive constant.
 fn push_ortho_inductive(account: &mut Account, entry: &SubstituentEntry, rho: f64, label: String) {
     match sigma_inductive(entry) {
-        Some(sigma) => {
+        Some((sigma, derived)) => {
             account.substituent(
                 label,
                 sigma,
                 rho,
-                "ortho (sigma_I = (3 sigma_m - sigma_p) / 2)".into(),
+                if derived {
+                    "ortho (sigma_I = (3 sigma_m - sigma_p) / 2)".into()
+                } else {
+                    "ortho (sigma_I)".into()
+                },
                 entry,
             );
             if let Some(t) = account.terms.last_mut() {
@@ -643,7 +652,7 @@ fn push_ortho_inductive(account: &mut Account, entry: &SubstituentEntry, rho: f6
 const SIGMA_I_PER_SIGMA_STAR_CH2: f64 = 0.45;
 
 /// Taft sigma* of an entry seen `depth` saturated carbons away from the anchor, and whether
-/// it had to be derived from the entry's Hammett constants (no sigma* tabulated).
+/// it had to be derived from the entry's sigma_I (no sigma* tabulated).
 fn taft_sigma(entry: &SubstituentEntry, depth: usize) -> Option<(f64, bool)> {
     let tabulated = if depth == 0 {
         entry
@@ -658,8 +667,17 @@ fn taft_sigma(entry: &SubstituentEntry, depth: usize) -> Option<(f64, bool)> {
     if let Some(s) = tabulated {
         return Some((s, false));
     }
-    let ch2 = sigma_inductive(entry)? / SIGMA_I_PER_SIGMA_STAR_CH2;
+    let ch2 = sigma_inductive(entry)?.0 / SIGMA_I_PER_SIGMA_STAR_CH2;
     Some((ch2 * TAFT_FALLOFF.powi(depth as i32 - 1), true))
+}
+
+/// How a sigma* with no tabulated value was reached, for the term's position.
+fn derived_label(entry: &SubstituentEntry) -> &'static str {
+    if entry.sigma_i.is_some() {
+        " (sigma* from sigma_I = 0.45 sigma*(XCH2))"
+    } else {
+        " (sigma* from sigma_I = (3 sigma_m - sigma_p) / 2, sigma_I = 0.45 sigma*(XCH2))"
+    }
 }
 
 fn has_taft_value(entry: &SubstituentEntry) -> bool {
@@ -740,8 +758,15 @@ fn taft(
         };
         if walk {
             // A plain carbon: the reference (sigma* 0) when bonded to the anchor; farther out
-            // it is an alkyl branch on the chain, counted with sigma*(CH3CH2) = -0.10.
-            if depth >= 1 {
+            // it is an alkyl branch on the chain, counted with sigma*(CH3CH2) = -0.10 --
+            // unless it carries a group scored by its sigma*(X-CH2), whose value already
+            // stands for this CH2 (sigma*(HOCH2CH2) = 0.4 sigma*(HOCH2), not that minus 0.10).
+            let carries_group = molecule.neighbors(atom).iter().any(|n| {
+                n.atom != from
+                    && molecule.atoms()[n.atom].element != 1
+                    && !is_plain_carbon(molecule, n.atom)
+            });
+            if depth >= 1 && !carries_group {
                 let methyl = entry_by_id(library, "methyl");
                 let s = methyl.and_then(|e| e.sigma_star_ch2).unwrap_or(-0.10)
                     * TAFT_FALLOFF.powi(depth as i32 - 1);
@@ -792,7 +817,7 @@ fn taft(
                     "{} bond{}{}",
                     depth + 1,
                     if depth == 0 { "" } else { "s" },
-                    if derived { " (sigma* from sigma_I = (3 sigma_m - sigma_p) / 2, sigma_I = 0.45 sigma*(XCH2))" } else { "" }
+                    if derived { derived_label(r.entry) } else { "" }
                 ),
                 r.entry,
             ),
@@ -929,6 +954,7 @@ mod tests {
             sigma_p_plus: None,
             sigma_star: None,
             sigma_star_ch2: Some(1.0),
+            sigma_i: None,
             walk: false,
             source: "test".into(),
             from_memory: false,
