@@ -75,6 +75,10 @@ struct Point {
     /// Counted class corrections: pyridine-type N in fused rings, ring C=O / C=S.
     fused_aza: f64,
     ring_oxo: f64,
+    /// Summed sigma_I of the ortho substituents (the ortho field term's count).
+    ortho_field: f64,
+    /// Ortho hydrogen-bond acceptors.
+    ortho_hbond: f64,
     /// Measured value less the fixed corrections and the coupling/statistical shift
     /// between the site value and the predicted macroscopic constant.
     y: f64,
@@ -156,6 +160,8 @@ struct Prediction {
     ortho: f64,
     fused_aza: f64,
     ring_oxo: f64,
+    ortho_field: f64,
+    ortho_hbond: f64,
     corrections: f64,
 }
 
@@ -214,6 +220,8 @@ fn predict(library: &Library, m: &Measurement) -> Option<Prediction> {
     };
     let fused_aza = count(Counted::FusedAza);
     let ring_oxo = count(Counted::RingOxo);
+    let ortho_field = count(Counted::OrthoField);
+    let ortho_hbond = count(Counted::OrthoHbond);
     Some(Prediction {
         value: macro_value.unwrap_or(site.pka),
         site_pka: site.pka,
@@ -222,6 +230,8 @@ fn predict(library: &Library, m: &Measurement) -> Option<Prediction> {
         ortho,
         fused_aza,
         ring_oxo,
+        ortho_field,
+        ortho_hbond,
         corrections,
     })
 }
@@ -247,6 +257,8 @@ fn points(library: &Library, data: &[Measurement]) -> Vec<Point> {
                 ortho: p.ortho,
                 fused_aza: p.fused_aza,
                 ring_oxo: p.ring_oxo,
+                ortho_field: p.ortho_field,
+                ortho_hbond: p.ortho_hbond,
                 y: m.pka - p.corrections - shift,
             })
         })
@@ -261,6 +273,8 @@ struct Fit {
     ortho: f64,
     fused_aza: f64,
     ring_oxo: f64,
+    ortho_field: f64,
+    ortho_hbond: f64,
 }
 
 impl Fit {
@@ -269,6 +283,8 @@ impl Fit {
             + self.ortho * pt.ortho
             + self.fused_aza * pt.fused_aza
             + self.ring_oxo * pt.ring_oxo
+            + self.ortho_field * pt.ortho_field
+            + self.ortho_hbond * pt.ortho_hbond
     }
 }
 
@@ -283,20 +299,30 @@ fn fit_class(
     parent_prior: f64,
 ) -> Fit {
     let n = pts.len();
-    let cols = if aromatic { 5 } else { 2 };
+    let cols = if aromatic { 7 } else { 2 };
     let mut fit = published;
     let mut w: Vec<f64> = pts
         .iter()
         .map(|pt| weight(pt.y - published.predict(pt)))
         .collect();
     for _ in 0..10 {
-        // Rows: sqrt(w) * [1, -x, n_ortho, n_fused_aza, n_ring_oxo] . constants = sqrt(w) * y,
+        // Rows: sqrt(w) * [1, -x, n_ortho, n_fused_aza, n_ring_oxo, sum sigma_I ortho,
+        // n_ortho_hbond]
+        // . constants = sqrt(w) * y,
         // then one prior row per constant.
         let mut a = DMatrix::<f64>::zeros(n + cols, cols);
         let mut b = DVector::<f64>::zeros(n + cols);
         for (i, pt) in pts.iter().enumerate() {
             let s = w[i].sqrt();
-            let row = [1.0, -pt.x, pt.ortho, pt.fused_aza, pt.ring_oxo];
+            let row = [
+                1.0,
+                -pt.x,
+                pt.ortho,
+                pt.fused_aza,
+                pt.ring_oxo,
+                pt.ortho_field,
+                pt.ortho_hbond,
+            ];
             for c in 0..cols {
                 a[(i, c)] = row[c] * s;
             }
@@ -307,13 +333,23 @@ fn fit_class(
         } else {
             (RHO_PRIOR * n as f64).sqrt()
         };
-        let weights = [parent_prior.sqrt(), slope, slope, slope, slope];
+        let weights = [
+            parent_prior.sqrt(),
+            slope,
+            slope,
+            slope,
+            slope,
+            slope,
+            slope,
+        ];
         let targets = [
             published.parent,
             published.rho,
             published.ortho,
             published.fused_aza,
             published.ring_oxo,
+            published.ortho_field,
+            published.ortho_hbond,
         ];
         for c in 0..cols {
             a[(n + c, c)] = weights[c];
@@ -328,6 +364,8 @@ fn fit_class(
             fit.ortho = sol[2];
             fit.fused_aza = sol[3];
             fit.ring_oxo = sol[4];
+            fit.ortho_field = sol[5];
+            fit.ortho_hbond = sol[6];
         }
         for (i, pt) in pts.iter().enumerate() {
             w[i] = weight(pt.y - fit.predict(pt));
@@ -365,6 +403,8 @@ fn calibrate(
                 ortho: pub_class.ortho_term,
                 fused_aza: pub_class.fused_aza_term,
                 ring_oxo: pub_class.ring_oxo_term,
+                ortho_field: pub_class.ortho_field_term,
+                ortho_hbond: pub_class.ortho_hbond_term,
             };
             let prior = if pub_class.scale == Scale::None {
                 PARENT_PRIOR
@@ -384,6 +424,8 @@ fn calibrate(
             c.ortho_term = fit.ortho;
             c.fused_aza_term = fit.fused_aza;
             c.ring_oxo_term = fit.ring_oxo;
+            c.ortho_field_term = fit.ortho_field;
+            c.ortho_hbond_term = fit.ortho_hbond;
             stats.insert(class, (cp.len(), rmse));
         }
     }
@@ -596,6 +638,8 @@ fn main() -> Result<()> {
                 writeln!(out, "ortho_term = {:.3}", c.ortho_term)?;
                 writeln!(out, "fused_aza_term = {:.3}", c.fused_aza_term)?;
                 writeln!(out, "ring_oxo_term = {:.3}", c.ring_oxo_term)?;
+                writeln!(out, "ortho_field_term = {:.3}", c.ortho_field_term)?;
+                writeln!(out, "ortho_hbond_term = {:.3}", c.ortho_hbond_term)?;
             }
             writeln!(out, "points = {n}")?;
             writeln!(out, "rmse = {rmse:.3}")?;

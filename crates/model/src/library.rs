@@ -112,6 +112,15 @@ pub struct SiteClass {
     /// correction, set by calibration, 0 when not calibrated).
     #[serde(default)]
     pub ring_oxo_term: f64,
+    /// Coefficient on the summed sigma_I of the ortho substituents (aromatic scales; the
+    /// field effect of a group beside the site, which sigma-para does not carry; set by
+    /// calibration, 0 when not calibrated).
+    #[serde(default)]
+    pub ortho_field_term: f64,
+    /// Correction per ortho substituent that can take an intramolecular hydrogen bond
+    /// with the site (C=O, NO2; aromatic scales; set by calibration, 0 when not calibrated).
+    #[serde(default)]
+    pub ortho_hbond_term: f64,
     /// Statistical factor (number of equivalent protons or positions the class counts);
     /// contributes -log10(factor) for acids and +log10(factor) for bases when not 1.
     #[serde(default = "one")]
@@ -174,6 +183,10 @@ pub struct SubstituentEntry {
     /// sigma_m and sigma_p by the scorer).
     #[serde(default)]
     pub sigma_i: Option<f64>,
+    /// The group's first atom carries a C=O or N-O that takes an intramolecular hydrogen
+    /// bond with a site ortho to it (salicylaldehyde, 2-nitrophenol type).
+    #[serde(default)]
+    pub hbond_acceptor: bool,
     /// For Taft scoring: a plain alkyl carbon (methyl, ethyl, ...) that the chain walk
     /// passes through, scoring the groups beyond it, instead of using this entry whole.
     #[serde(default)]
@@ -207,6 +220,12 @@ pub struct Calibration {
     /// Fitted correction per exocyclic C=O / C=S on the site's ring.
     #[serde(default)]
     pub ring_oxo_term: Option<f64>,
+    /// Fitted coefficient on the summed sigma_I of the ortho substituents.
+    #[serde(default)]
+    pub ortho_field_term: Option<f64>,
+    /// Fitted correction per ortho hydrogen-bond acceptor.
+    #[serde(default)]
+    pub ortho_hbond_term: Option<f64>,
     /// Number of measurements fitted.
     pub points: usize,
     /// Residual error of the fit (RMS, pKa units).

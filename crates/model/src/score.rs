@@ -89,6 +89,10 @@ pub enum Counted {
     FusedAza,
     /// Exocyclic C=O or C=S on the site's ring.
     RingOxo,
+    /// The field effect of the ortho substituents: the count is their summed sigma_I.
+    OrthoField,
+    /// Ortho groups that take an intramolecular hydrogen bond with the site.
+    OrthoHbond,
 }
 
 /// A scored site.
@@ -125,6 +129,8 @@ struct Constants {
     ortho_term: f64,
     fused_aza_term: f64,
     ring_oxo_term: f64,
+    ortho_field_term: f64,
+    ortho_hbond_term: f64,
     uncertainty: f64,
 }
 
@@ -143,6 +149,8 @@ fn constants(library: &Library, class: &SiteClass) -> Constants {
                 ortho_term: fit.ortho_term.unwrap_or(class.ortho_term),
                 fused_aza_term: fit.fused_aza_term.unwrap_or(class.fused_aza_term),
                 ring_oxo_term: fit.ring_oxo_term.unwrap_or(class.ring_oxo_term),
+                ortho_field_term: fit.ortho_field_term.unwrap_or(class.ortho_field_term),
+                ortho_hbond_term: fit.ortho_hbond_term.unwrap_or(class.ortho_hbond_term),
                 // The class's cross-validated error, as a standard deviation (for normal errors
                 // sd = MAE * sqrt(pi / 2)); never below the residual of the fit itself.
                 uncertainty: (fit.cv_mae * 1.2533).max(fit.rmse).max(0.1),
@@ -156,6 +164,8 @@ fn constants(library: &Library, class: &SiteClass) -> Constants {
             ortho_term: class.ortho_term,
             fused_aza_term: class.fused_aza_term,
             ring_oxo_term: class.ring_oxo_term,
+            ortho_field_term: class.ortho_field_term,
+            ortho_hbond_term: class.ortho_hbond_term,
             uncertainty: class.uncertainty,
         },
     }
@@ -397,6 +407,10 @@ fn hammett(
     let site_in_ring = ring.contains(&found.atom);
     let mut fused_aza: Vec<usize> = Vec::new();
     let mut ring_oxo = 0usize;
+    // Summed sigma_I of the ortho substituents, and their labels for the account.
+    let mut ortho_field = 0.0;
+    let mut ortho_field_groups: Vec<String> = Vec::new();
+    let mut ortho_hbond = 0usize;
     for step in 1..n {
         let atom = ring[(start + step) % n];
         let distance = step.min(n - step);
@@ -485,6 +499,15 @@ fn hammett(
                         ));
                     }
                     let ortho = pos == Position::Ortho;
+                    if ortho && r.entry.hbond_acceptor {
+                        ortho_hbond += 1;
+                    }
+                    if ortho {
+                        if let Some((s_i, _)) = sigma_inductive(r.entry) {
+                            ortho_field += s_i;
+                            ortho_field_groups.push(format!("{number}-{}", r.entry.name));
+                        }
+                    }
                     if ortho && site_in_ring {
                         push_ortho_inductive(
                             account,
@@ -540,6 +563,49 @@ fn hammett(
         k.ring_oxo_term,
         "ring C=O / C=S",
     );
+    push_counted(
+        account,
+        Counted::OrthoHbond,
+        ortho_hbond,
+        k.ortho_hbond_term,
+        "ortho hydrogen-bond acceptor (C=O, NO2)",
+    );
+    push_ortho_field(
+        account,
+        ortho_field,
+        &ortho_field_groups,
+        k.ortho_field_term,
+    );
+}
+
+/// The field effect of the ortho substituents: the class's coefficient times their summed
+/// sigma_I, shown with the coefficient as its rho (contribution = -rho * sigma).
+///
+/// # Reference
+///
+/// Ortho effects split into the para-type electronic part and a proximity (field) part
+/// proportional to the inductive constant: Fujita and Nishioka, Prog. Phys. Org. Chem.
+/// 1976, 12, 49; Charton, Prog. Phys. Org. Chem. 1971, 8, 235 (from memory). The
+/// coefficient per class is fitted by the calibration program.
+fn push_ortho_field(account: &mut Account, sum: f64, groups: &[String], per: f64) {
+    if groups.is_empty() {
+        return;
+    }
+    account.terms.push(Term {
+        label: format!("ortho field ({})", groups.join(", ")),
+        contribution: per * sum,
+        source: if per == 0.0 {
+            "class correction, not calibrated for this class (0)".into()
+        } else {
+            format!("class coefficient on sigma_I: {}", account.rho_source)
+        },
+        sigma: Some(sum),
+        rho: Some(-per),
+        position: Some("ortho (sigma_I)".into()),
+        role: TermRole::Correction,
+        ortho_substituent: false,
+        counted: Some((Counted::OrthoField, sum)),
+    });
 }
 
 /// A counted class correction, shown even while its value is 0 so that the reader sees
@@ -955,6 +1021,7 @@ mod tests {
             sigma_star: None,
             sigma_star_ch2: Some(1.0),
             sigma_i: None,
+            hbond_acceptor: false,
             walk: false,
             source: "test".into(),
             from_memory: false,
