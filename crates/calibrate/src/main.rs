@@ -30,6 +30,9 @@ use nalgebra::{DMatrix, DVector};
 const MIN_POINTS: usize = 6;
 /// Strength of the prior on rho, in units of squared sigma per point.
 const RHO_PRIOR: f64 = 0.05;
+/// The prior on the alkyl coefficient, in the same units (the alkyl sigma* sums are about
+/// -0.1 to -0.3, so a prior as strong as rho's would leave the coefficient at its start).
+const ALKYL_PRIOR: f64 = 0.001;
 /// Huber threshold (pKa units).
 const HUBER: f64 = 1.0;
 /// Weight of the prior on the parent value, in points at its published value, for classes
@@ -82,6 +85,8 @@ struct Point {
     ortho_field: f64,
     /// Ortho hydrogen-bond acceptors.
     ortho_hbond: f64,
+    /// Summed sigma* of the alkyl branches of a Taft chain.
+    alkyl: f64,
     /// Measured value less the fixed corrections and the coupling/statistical shift
     /// between the site value and the predicted macroscopic constant.
     y: f64,
@@ -165,6 +170,7 @@ struct Prediction {
     ring_oxo: f64,
     ortho_field: f64,
     ortho_hbond: f64,
+    alkyl: f64,
     corrections: f64,
 }
 
@@ -225,6 +231,7 @@ fn predict(library: &Library, m: &Measurement) -> Option<Prediction> {
     let ring_oxo = count(Counted::RingOxo);
     let ortho_field = count(Counted::OrthoField);
     let ortho_hbond = count(Counted::OrthoHbond);
+    let alkyl = count(Counted::AlkylBranch);
     Some(Prediction {
         value: macro_value.unwrap_or(site.pka),
         site_pka: site.pka,
@@ -235,6 +242,7 @@ fn predict(library: &Library, m: &Measurement) -> Option<Prediction> {
         ring_oxo,
         ortho_field,
         ortho_hbond,
+        alkyl,
         corrections,
     })
 }
@@ -262,6 +270,7 @@ fn points(library: &Library, data: &[Measurement]) -> Vec<Point> {
                 ring_oxo: p.ring_oxo,
                 ortho_field: p.ortho_field,
                 ortho_hbond: p.ortho_hbond,
+                alkyl: p.alkyl,
                 y: m.pka - p.corrections - shift,
             })
         })
@@ -278,6 +287,7 @@ struct Fit {
     ring_oxo: f64,
     ortho_field: f64,
     ortho_hbond: f64,
+    alkyl: f64,
 }
 
 impl Fit {
@@ -288,21 +298,20 @@ impl Fit {
             + self.ring_oxo * pt.ring_oxo
             + self.ortho_field * pt.ortho_field
             + self.ortho_hbond * pt.ortho_hbond
+            + self.alkyl * pt.alkyl
     }
 }
 
-/// Fits y = p0 - rho * x (+ ortho, fused-aza and ring-oxo terms times their counts, for
-/// classes on aromatic scales) for one class, each constant pulled towards its published
+/// Fits y = p0 - rho * x (+ the counted class corrections: ortho, fused-aza, ring-oxo,
+/// ortho field and hydrogen-bond terms on aromatic scales, the alkyl term on Taft's) for one
+/// class, each constant pulled towards its published
 /// value by a prior row.
-fn fit_class(
-    pts: &[&Point],
-    published: Fit,
-    aromatic: bool,
-    fixed_rho: bool,
-    parent_prior: f64,
-) -> Fit {
+fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64) -> Fit {
     let n = pts.len();
-    let cols = if aromatic { 7 } else { 2 };
+    // Every column is fitted; the ones a class's scale never fills (aromatic terms on a
+    // Taft class, the alkyl term on an aromatic one) are all zero, and their prior rows
+    // keep them at the published value.
+    let cols = 8;
     let mut fit = published;
     let mut w: Vec<f64> = pts
         .iter()
@@ -310,7 +319,7 @@ fn fit_class(
         .collect();
     for _ in 0..10 {
         // Rows: sqrt(w) * [1, -x, n_ortho, n_fused_aza, n_ring_oxo, sum sigma_I ortho,
-        // n_ortho_hbond]
+        // n_ortho_hbond, sum sigma* alkyl]
         // . constants = sqrt(w) * y,
         // then one prior row per constant.
         let mut a = DMatrix::<f64>::zeros(n + cols, cols);
@@ -325,6 +334,7 @@ fn fit_class(
                 pt.ring_oxo,
                 pt.ortho_field,
                 pt.ortho_hbond,
+                pt.alkyl,
             ];
             for c in 0..cols {
                 a[(i, c)] = row[c] * s;
@@ -344,6 +354,9 @@ fn fit_class(
             slope,
             slope,
             slope,
+            // The alkyl sigma* sums are a tenth of an ordinary sigma sum: a prior of the same
+            // weight would hold the coefficient near 0 whatever the data say.
+            (ALKYL_PRIOR * n as f64).sqrt(),
         ];
         let targets = [
             published.parent,
@@ -353,6 +366,7 @@ fn fit_class(
             published.ring_oxo,
             published.ortho_field,
             published.ortho_hbond,
+            published.alkyl,
         ];
         for c in 0..cols {
             a[(n + c, c)] = weights[c];
@@ -363,13 +377,12 @@ fn fit_class(
         };
         fit.parent = sol[0];
         fit.rho = sol[1];
-        if aromatic {
-            fit.ortho = sol[2];
-            fit.fused_aza = sol[3];
-            fit.ring_oxo = sol[4];
-            fit.ortho_field = sol[5];
-            fit.ortho_hbond = sol[6];
-        }
+        fit.ortho = sol[2];
+        fit.fused_aza = sol[3];
+        fit.ring_oxo = sol[4];
+        fit.ortho_field = sol[5];
+        fit.ortho_hbond = sol[6];
+        fit.alkyl = sol[7];
         for (i, pt) in pts.iter().enumerate() {
             w[i] = weight(pt.y - fit.predict(pt));
         }
@@ -396,10 +409,6 @@ fn calibrate(
                 continue;
             }
             let pub_class = &published.classes[class];
-            let aromatic = matches!(
-                pub_class.scale,
-                Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus
-            );
             let published_fit = Fit {
                 parent: pub_class.parent_pka,
                 rho: pub_class.rho,
@@ -408,13 +417,14 @@ fn calibrate(
                 ring_oxo: pub_class.ring_oxo_term,
                 ortho_field: pub_class.ortho_field_term,
                 ortho_hbond: pub_class.ortho_hbond_term,
+                alkyl: pub_class.alkyl_term,
             };
             let prior = if pub_class.scale == Scale::None {
                 PARENT_PRIOR
             } else {
                 SCALED_PARENT_PRIOR
             };
-            let fit = fit_class(&cp, published_fit, aromatic, pub_class.fixed_rho, prior);
+            let fit = fit_class(&cp, published_fit, pub_class.fixed_rho, prior);
             let rmse = (cp
                 .iter()
                 .map(|p| (p.y - fit.predict(p)).powi(2))
@@ -429,6 +439,7 @@ fn calibrate(
             c.ring_oxo_term = fit.ring_oxo;
             c.ortho_field_term = fit.ortho_field;
             c.ortho_hbond_term = fit.ortho_hbond;
+            c.alkyl_term = fit.alkyl;
             stats.insert(class, (cp.len(), rmse));
         }
     }
@@ -643,6 +654,9 @@ fn main() -> Result<()> {
                 writeln!(out, "ring_oxo_term = {:.3}", c.ring_oxo_term)?;
                 writeln!(out, "ortho_field_term = {:.3}", c.ortho_field_term)?;
                 writeln!(out, "ortho_hbond_term = {:.3}", c.ortho_hbond_term)?;
+            }
+            if c.scale == Scale::Taft {
+                writeln!(out, "alkyl_term = {:.3}", c.alkyl_term)?;
             }
             writeln!(out, "points = {n}")?;
             writeln!(out, "rmse = {rmse:.3}")?;

@@ -121,6 +121,11 @@ pub struct SiteClass {
     /// with the site (C=O, NO2; aromatic scales; set by calibration, 0 when not calibrated).
     #[serde(default)]
     pub ortho_hbond_term: f64,
+    /// Coefficient on the summed Taft sigma* of plain alkyl branches along the chain (Taft
+    /// scale; corrects the inductive count of alkyl groups, which solvation largely
+    /// cancels in water; set by calibration, 0 when not calibrated).
+    #[serde(default)]
+    pub alkyl_term: f64,
     /// Statistical factor (number of equivalent protons or positions the class counts);
     /// contributes -log10(factor) for acids and +log10(factor) for bases when not 1.
     #[serde(default = "one")]
@@ -226,6 +231,9 @@ pub struct Calibration {
     /// Fitted correction per ortho hydrogen-bond acceptor.
     #[serde(default)]
     pub ortho_hbond_term: Option<f64>,
+    /// Fitted coefficient on the summed sigma* of alkyl branches.
+    #[serde(default)]
+    pub alkyl_term: Option<f64>,
     /// Number of measurements fitted.
     pub points: usize,
     /// Residual error of the fit (RMS, pKa units).

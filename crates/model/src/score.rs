@@ -93,6 +93,8 @@ pub enum Counted {
     OrthoField,
     /// Ortho groups that take an intramolecular hydrogen bond with the site.
     OrthoHbond,
+    /// Plain alkyl branches along a Taft chain: the count is their summed sigma*.
+    AlkylBranch,
 }
 
 /// A scored site.
@@ -131,6 +133,7 @@ struct Constants {
     ring_oxo_term: f64,
     ortho_field_term: f64,
     ortho_hbond_term: f64,
+    alkyl_term: f64,
     uncertainty: f64,
 }
 
@@ -151,6 +154,7 @@ fn constants(library: &Library, class: &SiteClass) -> Constants {
                 ring_oxo_term: fit.ring_oxo_term.unwrap_or(class.ring_oxo_term),
                 ortho_field_term: fit.ortho_field_term.unwrap_or(class.ortho_field_term),
                 ortho_hbond_term: fit.ortho_hbond_term.unwrap_or(class.ortho_hbond_term),
+                alkyl_term: fit.alkyl_term.unwrap_or(class.alkyl_term),
                 // The class's cross-validated error, as a standard deviation (for normal errors
                 // sd = MAE * sqrt(pi / 2)); never below the residual of the fit itself.
                 uncertainty: (fit.cv_mae * 1.2533).max(fit.rmse).max(0.1),
@@ -166,6 +170,7 @@ fn constants(library: &Library, class: &SiteClass) -> Constants {
             ring_oxo_term: class.ring_oxo_term,
             ortho_field_term: class.ortho_field_term,
             ortho_hbond_term: class.ortho_hbond_term,
+            alkyl_term: class.alkyl_term,
             uncertainty: class.uncertainty,
         },
     }
@@ -906,6 +911,26 @@ fn taft(
             role: TermRole::Substituent,
             ortho_substituent: false,
             counted: None,
+        });
+        // In water, solvation of the charged form largely cancels the inductive push of
+        // alkyl groups (tert-butylamine 10.68, methylamine 10.64; pivalic acid 5.03, acetic
+        // 4.76): the class's fitted coefficient takes back what the Taft count overstates.
+        // Reference: Taft, in Newman (ed.), Steric Effects in Organic Chemistry, 1956, and
+        // Perrin, Dempsey and Serjeant 1981 on alkyl groups in amine basicity (from memory).
+        account.terms.push(Term {
+            label: "solvation offset of the alkyl branches".into(),
+            contribution: k.alkyl_term * alkyl,
+            source: if k.alkyl_term == 0.0 {
+                "class correction, not calibrated for this class (0)".into()
+            } else {
+                format!("class coefficient on the alkyl sigma*: {}", k.rho_source)
+            },
+            sigma: Some(alkyl),
+            rho: Some(-k.alkyl_term),
+            position: Some("2 bonds and beyond".into()),
+            role: TermRole::Correction,
+            ortho_substituent: false,
+            counted: Some((Counted::AlkylBranch, alkyl)),
         });
     }
 }
