@@ -30,9 +30,10 @@ use nalgebra::{DMatrix, DVector};
 const MIN_POINTS: usize = 6;
 /// Strength of the prior on rho, in units of squared sigma per point.
 const RHO_PRIOR: f64 = 0.05;
-/// The prior on the alkyl coefficient, in the same units (the alkyl sigma* sums are about
-/// -0.1 to -0.3, so a prior as strong as rho's would leave the coefficient at its start).
-const ALKYL_PRIOR: f64 = 0.001;
+/// Strength of the prior on each class correction (ortho, fused aza, ring oxo, ortho field,
+/// hydrogen bond, alkyl), as a fraction of the information the class's data hold on it
+/// (the column's sum of squares).
+const CORRECTION_PRIOR: f64 = 0.1;
 /// Huber threshold (pKa units).
 const HUBER: f64 = 1.0;
 /// Weight of the prior on the parent value, in points at its published value, for classes
@@ -346,18 +347,28 @@ fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64)
         } else {
             (RHO_PRIOR * n as f64).sqrt()
         };
-        let weights = [
-            parent_prior.sqrt(),
-            slope,
-            slope,
-            slope,
-            slope,
-            slope,
-            slope,
-            // The alkyl sigma* sums are a tenth of an ordinary sigma sum: a prior of the same
-            // weight would hold the coefficient near 0 whatever the data say.
-            (ALKYL_PRIOR * n as f64).sqrt(),
-        ];
+        // The class corrections' priors scale with what the data hold on each: a fixed
+        // fraction of the column's sum of squares (plus a floor for empty columns), so a
+        // column of small values (alkyl sigma* sums) is held no harder than a column of
+        // counts.
+        let mut weights = [parent_prior.sqrt(), slope, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0];
+        for (c, wc) in weights.iter_mut().enumerate().skip(2) {
+            let information: f64 = pts
+                .iter()
+                .map(|pt| {
+                    let v = [
+                        pt.ortho,
+                        pt.fused_aza,
+                        pt.ring_oxo,
+                        pt.ortho_field,
+                        pt.ortho_hbond,
+                        pt.alkyl,
+                    ][c - 2];
+                    v * v
+                })
+                .sum();
+            *wc = (CORRECTION_PRIOR * information + 1e-3).sqrt();
+        }
         let targets = [
             published.parent,
             published.rho,
