@@ -86,6 +86,8 @@ struct Point {
     ortho_field: f64,
     /// Ortho hydrogen-bond acceptors.
     ortho_hbond: f64,
+    /// Summed sigma_R (sigma_p - sigma_I) of the ortho substituents.
+    ortho_resonance: f64,
     /// Summed sigma* of the alkyl branches of a Taft chain.
     alkyl: f64,
     /// Measured value less the fixed corrections and the coupling/statistical shift
@@ -171,6 +173,7 @@ struct Prediction {
     ring_oxo: f64,
     ortho_field: f64,
     ortho_hbond: f64,
+    ortho_resonance: f64,
     alkyl: f64,
     corrections: f64,
 }
@@ -232,6 +235,7 @@ fn predict(library: &Library, m: &Measurement) -> Option<Prediction> {
     let ring_oxo = count(Counted::RingOxo);
     let ortho_field = count(Counted::OrthoField);
     let ortho_hbond = count(Counted::OrthoHbond);
+    let ortho_resonance = count(Counted::OrthoResonance);
     let alkyl = count(Counted::AlkylBranch);
     Some(Prediction {
         value: macro_value.unwrap_or(site.pka),
@@ -243,6 +247,7 @@ fn predict(library: &Library, m: &Measurement) -> Option<Prediction> {
         ring_oxo,
         ortho_field,
         ortho_hbond,
+        ortho_resonance,
         alkyl,
         corrections,
     })
@@ -271,6 +276,7 @@ fn points(library: &Library, data: &[Measurement]) -> Vec<Point> {
                 ring_oxo: p.ring_oxo,
                 ortho_field: p.ortho_field,
                 ortho_hbond: p.ortho_hbond,
+                ortho_resonance: p.ortho_resonance,
                 alkyl: p.alkyl,
                 y: m.pka - p.corrections - shift,
             })
@@ -288,6 +294,7 @@ struct Fit {
     ring_oxo: f64,
     ortho_field: f64,
     ortho_hbond: f64,
+    ortho_resonance: f64,
     alkyl: f64,
 }
 
@@ -299,6 +306,7 @@ impl Fit {
             + self.ring_oxo * pt.ring_oxo
             + self.ortho_field * pt.ortho_field
             + self.ortho_hbond * pt.ortho_hbond
+            + self.ortho_resonance * pt.ortho_resonance
             + self.alkyl * pt.alkyl
     }
 }
@@ -312,7 +320,7 @@ fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64)
     // Every column is fitted; the ones a class's scale never fills (aromatic terms on a
     // Taft class, the alkyl term on an aromatic one) are all zero, and their prior rows
     // keep them at the published value.
-    let cols = 8;
+    let cols = 9;
     let mut fit = published;
     let mut w: Vec<f64> = pts
         .iter()
@@ -320,7 +328,7 @@ fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64)
         .collect();
     for _ in 0..10 {
         // Rows: sqrt(w) * [1, -x, n_ortho, n_fused_aza, n_ring_oxo, sum sigma_I ortho,
-        // n_ortho_hbond, sum sigma* alkyl]
+        // n_ortho_hbond, sum sigma* alkyl, sum sigma_R ortho]
         // . constants = sqrt(w) * y,
         // then one prior row per constant.
         let mut a = DMatrix::<f64>::zeros(n + cols, cols);
@@ -335,6 +343,7 @@ fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64)
                 pt.ring_oxo,
                 pt.ortho_field,
                 pt.ortho_hbond,
+                pt.ortho_resonance,
                 pt.alkyl,
             ];
             for c in 0..cols {
@@ -351,7 +360,17 @@ fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64)
         // fraction of the column's sum of squares (plus a floor for empty columns), so a
         // column of small values (alkyl sigma* sums) is held no harder than a column of
         // counts.
-        let mut weights = [parent_prior.sqrt(), slope, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0];
+        let mut weights = [
+            parent_prior.sqrt(),
+            slope,
+            0.0,
+            0.0,
+            0.0,
+            0.0,
+            0.0,
+            0.0,
+            0.0,
+        ];
         for (c, wc) in weights.iter_mut().enumerate().skip(2) {
             let information: f64 = pts
                 .iter()
@@ -362,6 +381,7 @@ fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64)
                         pt.ring_oxo,
                         pt.ortho_field,
                         pt.ortho_hbond,
+                        pt.ortho_resonance,
                         pt.alkyl,
                     ][c - 2];
                     v * v
@@ -377,6 +397,7 @@ fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64)
             published.ring_oxo,
             published.ortho_field,
             published.ortho_hbond,
+            published.ortho_resonance,
             published.alkyl,
         ];
         for c in 0..cols {
@@ -393,7 +414,8 @@ fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64)
         fit.ring_oxo = sol[4];
         fit.ortho_field = sol[5];
         fit.ortho_hbond = sol[6];
-        fit.alkyl = sol[7];
+        fit.ortho_resonance = sol[7];
+        fit.alkyl = sol[8];
         for (i, pt) in pts.iter().enumerate() {
             w[i] = weight(pt.y - fit.predict(pt));
         }
@@ -428,6 +450,7 @@ fn calibrate(
                 ring_oxo: pub_class.ring_oxo_term,
                 ortho_field: pub_class.ortho_field_term,
                 ortho_hbond: pub_class.ortho_hbond_term,
+                ortho_resonance: pub_class.ortho_resonance_term,
                 alkyl: pub_class.alkyl_term,
             };
             let prior = if pub_class.scale == Scale::None {
@@ -450,6 +473,7 @@ fn calibrate(
             c.ring_oxo_term = fit.ring_oxo;
             c.ortho_field_term = fit.ortho_field;
             c.ortho_hbond_term = fit.ortho_hbond;
+            c.ortho_resonance_term = fit.ortho_resonance;
             c.alkyl_term = fit.alkyl;
             stats.insert(class, (cp.len(), rmse));
         }
@@ -665,6 +689,7 @@ fn main() -> Result<()> {
                 writeln!(out, "ring_oxo_term = {:.3}", c.ring_oxo_term)?;
                 writeln!(out, "ortho_field_term = {:.3}", c.ortho_field_term)?;
                 writeln!(out, "ortho_hbond_term = {:.3}", c.ortho_hbond_term)?;
+                writeln!(out, "ortho_resonance_term = {:.3}", c.ortho_resonance_term)?;
             }
             if c.scale == Scale::Taft {
                 writeln!(out, "alkyl_term = {:.3}", c.alkyl_term)?;

@@ -121,6 +121,10 @@ pub struct SiteClass {
     /// with the site (C=O, NO2; aromatic scales; set by calibration, 0 when not calibrated).
     #[serde(default)]
     pub ortho_hbond_term: f64,
+    /// Coefficient on the summed resonance constant sigma_R = sigma_p - sigma_I of the
+    /// ortho substituents (aromatic scales; set by calibration, 0 when not calibrated).
+    #[serde(default)]
+    pub ortho_resonance_term: f64,
     /// Coefficient on the summed Taft sigma* of plain alkyl branches along the chain (Taft
     /// scale; corrects the inductive count of alkyl groups, which solvation largely
     /// cancels in water; set by calibration, 0 when not calibrated).
@@ -231,6 +235,9 @@ pub struct Calibration {
     /// Fitted correction per ortho hydrogen-bond acceptor.
     #[serde(default)]
     pub ortho_hbond_term: Option<f64>,
+    /// Fitted coefficient on the summed sigma_R of the ortho substituents.
+    #[serde(default)]
+    pub ortho_resonance_term: Option<f64>,
     /// Fitted coefficient on the summed sigma* of alkyl branches.
     #[serde(default)]
     pub alkyl_term: Option<f64>,

@@ -93,6 +93,8 @@ pub enum Counted {
     OrthoField,
     /// Ortho groups that take an intramolecular hydrogen bond with the site.
     OrthoHbond,
+    /// The resonance part of the ortho substituents: the count is their summed sigma_R.
+    OrthoResonance,
     /// Plain alkyl branches along a Taft chain: the count is their summed sigma*.
     AlkylBranch,
 }
@@ -133,6 +135,7 @@ struct Constants {
     ring_oxo_term: f64,
     ortho_field_term: f64,
     ortho_hbond_term: f64,
+    ortho_resonance_term: f64,
     alkyl_term: f64,
     uncertainty: f64,
 }
@@ -154,6 +157,9 @@ fn constants(library: &Library, class: &SiteClass) -> Constants {
                 ring_oxo_term: fit.ring_oxo_term.unwrap_or(class.ring_oxo_term),
                 ortho_field_term: fit.ortho_field_term.unwrap_or(class.ortho_field_term),
                 ortho_hbond_term: fit.ortho_hbond_term.unwrap_or(class.ortho_hbond_term),
+                ortho_resonance_term: fit
+                    .ortho_resonance_term
+                    .unwrap_or(class.ortho_resonance_term),
                 alkyl_term: fit.alkyl_term.unwrap_or(class.alkyl_term),
                 // The class's cross-validated error, as a standard deviation (for normal errors
                 // sd = MAE * sqrt(pi / 2)); never below the residual of the fit itself.
@@ -170,6 +176,7 @@ fn constants(library: &Library, class: &SiteClass) -> Constants {
             ring_oxo_term: class.ring_oxo_term,
             ortho_field_term: class.ortho_field_term,
             ortho_hbond_term: class.ortho_hbond_term,
+            ortho_resonance_term: class.ortho_resonance_term,
             alkyl_term: class.alkyl_term,
             uncertainty: class.uncertainty,
         },
@@ -416,6 +423,8 @@ fn hammett(
     let mut ortho_field = 0.0;
     let mut ortho_field_groups: Vec<String> = Vec::new();
     let mut ortho_hbond = 0usize;
+    let mut ortho_resonance = 0.0;
+    let mut ortho_resonance_groups: Vec<String> = Vec::new();
     for step in 1..n {
         let atom = ring[(start + step) % n];
         let distance = step.min(n - step);
@@ -511,6 +520,10 @@ fn hammett(
                         if let Some((s_i, _)) = sigma_inductive(r.entry) {
                             ortho_field += s_i;
                             ortho_field_groups.push(format!("{number}-{}", r.entry.name));
+                            if let Some(s_p) = r.entry.sigma_p {
+                                ortho_resonance += s_p - s_i;
+                                ortho_resonance_groups.push(format!("{number}-{}", r.entry.name));
+                            }
                         }
                     }
                     if ortho && site_in_ring {
@@ -581,6 +594,42 @@ fn hammett(
         &ortho_field_groups,
         k.ortho_field_term,
     );
+    push_ortho_resonance(
+        account,
+        ortho_resonance,
+        &ortho_resonance_groups,
+        k.ortho_resonance_term,
+    );
+}
+
+/// The resonance part of the ortho substituents, sigma_R = sigma_p - sigma_I summed, times
+/// the class's coefficient: with the field term it lets the fit weigh the two parts of an
+/// ortho effect separately (for a ring-member site the ortho group is otherwise scored by
+/// sigma_I alone).
+///
+/// # Reference
+///
+/// The dual-parameter treatment of ortho substituents: Charton, Prog. Phys. Org. Chem.
+/// 1971, 8, 235; Fujita and Nishioka, Prog. Phys. Org. Chem. 1976, 12, 49 (from memory).
+fn push_ortho_resonance(account: &mut Account, sum: f64, groups: &[String], per: f64) {
+    if groups.is_empty() {
+        return;
+    }
+    account.terms.push(Term {
+        label: format!("ortho resonance ({})", groups.join(", ")),
+        contribution: per * sum,
+        source: if per == 0.0 {
+            "class correction, not calibrated for this class (0)".into()
+        } else {
+            format!("class coefficient on sigma_R: {}", account.rho_source)
+        },
+        sigma: Some(sum),
+        rho: Some(-per),
+        position: Some("ortho (sigma_R = sigma_p - sigma_I)".into()),
+        role: TermRole::Correction,
+        ortho_substituent: false,
+        counted: Some((Counted::OrthoResonance, sum)),
+    });
 }
 
 /// The field effect of the ortho substituents: the class's coefficient times their summed
