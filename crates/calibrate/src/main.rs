@@ -88,6 +88,8 @@ struct Point {
     ortho_hbond: f64,
     /// Summed sigma_R (sigma_p - sigma_I) of the ortho substituents.
     ortho_resonance: f64,
+    /// Pairs of pyridine-type N in the site's ring besides the site.
+    aza_pairs: f64,
     /// Summed sigma* of the alkyl branches of a Taft chain.
     alkyl: f64,
     /// Measured value less the fixed corrections and the coupling/statistical shift
@@ -174,6 +176,7 @@ struct Prediction {
     ortho_field: f64,
     ortho_hbond: f64,
     ortho_resonance: f64,
+    aza_pairs: f64,
     alkyl: f64,
     corrections: f64,
 }
@@ -236,6 +239,7 @@ fn predict(library: &Library, m: &Measurement) -> Option<Prediction> {
     let ortho_field = count(Counted::OrthoField);
     let ortho_hbond = count(Counted::OrthoHbond);
     let ortho_resonance = count(Counted::OrthoResonance);
+    let aza_pairs = count(Counted::AzaPair);
     let alkyl = count(Counted::AlkylBranch);
     Some(Prediction {
         value: macro_value.unwrap_or(site.pka),
@@ -248,6 +252,7 @@ fn predict(library: &Library, m: &Measurement) -> Option<Prediction> {
         ortho_field,
         ortho_hbond,
         ortho_resonance,
+        aza_pairs,
         alkyl,
         corrections,
     })
@@ -277,6 +282,7 @@ fn points(library: &Library, data: &[Measurement]) -> Vec<Point> {
                 ortho_field: p.ortho_field,
                 ortho_hbond: p.ortho_hbond,
                 ortho_resonance: p.ortho_resonance,
+                aza_pairs: p.aza_pairs,
                 alkyl: p.alkyl,
                 y: m.pka - p.corrections - shift,
             })
@@ -295,6 +301,7 @@ struct Fit {
     ortho_field: f64,
     ortho_hbond: f64,
     ortho_resonance: f64,
+    aza_pairs: f64,
     alkyl: f64,
 }
 
@@ -307,6 +314,7 @@ impl Fit {
             + self.ortho_field * pt.ortho_field
             + self.ortho_hbond * pt.ortho_hbond
             + self.ortho_resonance * pt.ortho_resonance
+            + self.aza_pairs * pt.aza_pairs
             + self.alkyl * pt.alkyl
     }
 }
@@ -320,7 +328,7 @@ fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64)
     // Every column is fitted; the ones a class's scale never fills (aromatic terms on a
     // Taft class, the alkyl term on an aromatic one) are all zero, and their prior rows
     // keep them at the published value.
-    let cols = 9;
+    let cols = 10;
     let mut fit = published;
     let mut w: Vec<f64> = pts
         .iter()
@@ -328,7 +336,7 @@ fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64)
         .collect();
     for _ in 0..10 {
         // Rows: sqrt(w) * [1, -x, n_ortho, n_fused_aza, n_ring_oxo, sum sigma_I ortho,
-        // n_ortho_hbond, sum sigma* alkyl, sum sigma_R ortho]
+        // n_ortho_hbond, sum sigma_R ortho, sum sigma* alkyl, aza pairs]
         // . constants = sqrt(w) * y,
         // then one prior row per constant.
         let mut a = DMatrix::<f64>::zeros(n + cols, cols);
@@ -344,6 +352,7 @@ fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64)
                 pt.ortho_field,
                 pt.ortho_hbond,
                 pt.ortho_resonance,
+                pt.aza_pairs,
                 pt.alkyl,
             ];
             for c in 0..cols {
@@ -370,6 +379,7 @@ fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64)
             0.0,
             0.0,
             0.0,
+            0.0,
         ];
         for (c, wc) in weights.iter_mut().enumerate().skip(2) {
             let information: f64 = pts
@@ -382,6 +392,7 @@ fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64)
                         pt.ortho_field,
                         pt.ortho_hbond,
                         pt.ortho_resonance,
+                        pt.aza_pairs,
                         pt.alkyl,
                     ][c - 2];
                     v * v
@@ -398,6 +409,7 @@ fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64)
             published.ortho_field,
             published.ortho_hbond,
             published.ortho_resonance,
+            published.aza_pairs,
             published.alkyl,
         ];
         for c in 0..cols {
@@ -415,7 +427,8 @@ fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64)
         fit.ortho_field = sol[5];
         fit.ortho_hbond = sol[6];
         fit.ortho_resonance = sol[7];
-        fit.alkyl = sol[8];
+        fit.aza_pairs = sol[8];
+        fit.alkyl = sol[9];
         for (i, pt) in pts.iter().enumerate() {
             w[i] = weight(pt.y - fit.predict(pt));
         }
@@ -451,6 +464,7 @@ fn calibrate(
                 ortho_field: pub_class.ortho_field_term,
                 ortho_hbond: pub_class.ortho_hbond_term,
                 ortho_resonance: pub_class.ortho_resonance_term,
+                aza_pairs: pub_class.aza_pair_term,
                 alkyl: pub_class.alkyl_term,
             };
             let prior = if pub_class.scale == Scale::None {
@@ -474,6 +488,7 @@ fn calibrate(
             c.ortho_field_term = fit.ortho_field;
             c.ortho_hbond_term = fit.ortho_hbond;
             c.ortho_resonance_term = fit.ortho_resonance;
+            c.aza_pair_term = fit.aza_pairs;
             c.alkyl_term = fit.alkyl;
             stats.insert(class, (cp.len(), rmse));
         }
@@ -690,6 +705,7 @@ fn main() -> Result<()> {
                 writeln!(out, "ortho_field_term = {:.3}", c.ortho_field_term)?;
                 writeln!(out, "ortho_hbond_term = {:.3}", c.ortho_hbond_term)?;
                 writeln!(out, "ortho_resonance_term = {:.3}", c.ortho_resonance_term)?;
+                writeln!(out, "aza_pair_term = {:.3}", c.aza_pair_term)?;
             }
             if c.scale == Scale::Taft {
                 writeln!(out, "alkyl_term = {:.3}", c.alkyl_term)?;

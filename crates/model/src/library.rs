@@ -125,6 +125,11 @@ pub struct SiteClass {
     /// ortho substituents (aromatic scales; set by calibration, 0 when not calibrated).
     #[serde(default)]
     pub ortho_resonance_term: f64,
+    /// Correction per pair of pyridine-type N in the site's ring besides the site (aromatic
+    /// scales: aza terms do not add fully in triazines; set by calibration, 0 when not
+    /// calibrated).
+    #[serde(default)]
+    pub aza_pair_term: f64,
     /// Coefficient on the summed Taft sigma* of plain alkyl branches along the chain (Taft
     /// scale; corrects the inductive count of alkyl groups, which solvation largely
     /// cancels in water; set by calibration, 0 when not calibrated).
@@ -238,6 +243,9 @@ pub struct Calibration {
     /// Fitted coefficient on the summed sigma_R of the ortho substituents.
     #[serde(default)]
     pub ortho_resonance_term: Option<f64>,
+    /// Fitted correction per pair of ring aza N.
+    #[serde(default)]
+    pub aza_pair_term: Option<f64>,
     /// Fitted coefficient on the summed sigma* of alkyl branches.
     #[serde(default)]
     pub alkyl_term: Option<f64>,

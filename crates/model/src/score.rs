@@ -95,6 +95,8 @@ pub enum Counted {
     OrthoHbond,
     /// The resonance part of the ortho substituents: the count is their summed sigma_R.
     OrthoResonance,
+    /// Pairs of pyridine-type N in the site's ring besides the site.
+    AzaPair,
     /// Plain alkyl branches along a Taft chain: the count is their summed sigma*.
     AlkylBranch,
 }
@@ -136,6 +138,7 @@ struct Constants {
     ortho_field_term: f64,
     ortho_hbond_term: f64,
     ortho_resonance_term: f64,
+    aza_pair_term: f64,
     alkyl_term: f64,
     uncertainty: f64,
 }
@@ -160,6 +163,7 @@ fn constants(library: &Library, class: &SiteClass) -> Constants {
                 ortho_resonance_term: fit
                     .ortho_resonance_term
                     .unwrap_or(class.ortho_resonance_term),
+                aza_pair_term: fit.aza_pair_term.unwrap_or(class.aza_pair_term),
                 alkyl_term: fit.alkyl_term.unwrap_or(class.alkyl_term),
                 // The class's cross-validated error, as a standard deviation (for normal errors
                 // sd = MAE * sqrt(pi / 2)); never below the residual of the fit itself.
@@ -177,6 +181,7 @@ fn constants(library: &Library, class: &SiteClass) -> Constants {
             ortho_field_term: class.ortho_field_term,
             ortho_hbond_term: class.ortho_hbond_term,
             ortho_resonance_term: class.ortho_resonance_term,
+            aza_pair_term: class.aza_pair_term,
             alkyl_term: class.alkyl_term,
             uncertainty: class.uncertainty,
         },
@@ -599,6 +604,29 @@ fn hammett(
         ortho_resonance,
         &ortho_resonance_groups,
         k.ortho_resonance_term,
+    );
+    // Aza terms add less than fully when several ring N share the ring (pyrimidine 1.3 from
+    // pyridine 5.2, but 1,3,5-triazine far above the sum): one correction per pair of
+    // pyridine-type N besides the site atom, named in the parent or not (common practice;
+    // cf. Perrin, Dempsey and Serjeant 1981 on polyaza heterocycles).
+    let aza = ring
+        .iter()
+        .filter(|&&a| {
+            let at = &molecule.atoms()[a];
+            a != found.atom
+                && at.element == 7
+                && at.aromatic
+                && at.charge == 0
+                && molecule.total_hydrogens(a) == 0
+                && molecule.degree(a) == 2
+        })
+        .count();
+    push_counted(
+        account,
+        Counted::AzaPair,
+        aza * aza.saturating_sub(1) / 2,
+        k.aza_pair_term,
+        "pair of ring aza N",
     );
 }
 
