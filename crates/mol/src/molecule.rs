@@ -69,13 +69,55 @@ pub struct Neighbor {
     pub bond: usize,
 }
 
+/// Neighbour lists of all atoms in one allocation: atom `i`'s neighbours are
+/// `list[start[i]..start[i + 1]]`, in bond order, as separate per-atom lists would hold
+/// them. One list per atom cost an allocation per atom on every molecule read.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub(crate) struct Adjacency {
+    start: Vec<u32>,
+    list: Vec<Neighbor>,
+}
+
+impl Adjacency {
+    /// The lists of `atoms` atoms joined by `bonds` (`(a, b)` per bond, in bond order).
+    pub(crate) fn build(atoms: usize, bonds: impl Iterator<Item = (usize, usize)> + Clone) -> Self {
+        let mut start = vec![0u32; atoms + 1];
+        let mut count = 0usize;
+        for (a, b) in bonds.clone() {
+            start[a + 1] += 1;
+            start[b + 1] += 1;
+            count += 2;
+        }
+        for i in 0..atoms {
+            start[i + 1] += start[i];
+        }
+        let mut fill: Vec<u32> = start[..atoms].to_vec();
+        let mut list = vec![Neighbor { atom: 0, bond: 0 }; count];
+        for (i, (a, b)) in bonds.enumerate() {
+            list[fill[a] as usize] = Neighbor { atom: b, bond: i };
+            fill[a] += 1;
+            list[fill[b] as usize] = Neighbor { atom: a, bond: i };
+            fill[b] += 1;
+        }
+        Adjacency { start, list }
+    }
+}
+
+impl std::ops::Index<usize> for Adjacency {
+    type Output = [Neighbor];
+    #[inline]
+    fn index(&self, atom: usize) -> &[Neighbor] {
+        &self.list[self.start[atom] as usize..self.start[atom + 1] as usize]
+    }
+}
+
 /// A molecule as read and perceived: atoms, bonds, rings and components.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Molecule {
     pub(crate) input: String,
     pub(crate) atoms: Vec<Atom>,
     pub(crate) bonds: Vec<Bond>,
-    pub(crate) neighbors: Vec<Vec<Neighbor>>,
+    pub(crate) neighbors: Adjacency,
     pub(crate) rings: Vec<Vec<usize>>,
     pub(crate) components: Vec<Vec<usize>>,
 }
@@ -144,11 +186,7 @@ impl Molecule {
 
     /// Rebuilds neighbour lists and components from the bonds.
     pub(crate) fn rebuild_graph(&mut self) {
-        self.neighbors = vec![Vec::new(); self.atoms.len()];
-        for (i, b) in self.bonds.iter().enumerate() {
-            self.neighbors[b.a].push(Neighbor { atom: b.b, bond: i });
-            self.neighbors[b.b].push(Neighbor { atom: b.a, bond: i });
-        }
+        self.neighbors = Adjacency::build(self.atoms.len(), self.bonds.iter().map(|b| (b.a, b.b)));
         let n = self.atoms.len();
         let mut seen = vec![false; n];
         let mut out = Vec::new();

@@ -136,6 +136,21 @@ fn shortest_path(
     ring_bond: &[bool],
     search: &mut Search,
 ) -> Option<Vec<usize>> {
+    let mut path = Vec::new();
+    shortest_path_into(m, from, to, skip, ring_bond, search, &mut path).then_some(path)
+}
+
+/// As [`shortest_path`], appending the path to `out`; whether there is one (`out` is left
+/// as it was when there is not).
+fn shortest_path_into(
+    m: &Molecule,
+    from: usize,
+    to: usize,
+    skip: usize,
+    ring_bond: &[bool],
+    search: &mut Search,
+    out: &mut Vec<usize>,
+) -> bool {
     let Search {
         prev,
         queue,
@@ -161,20 +176,20 @@ fn shortest_path(
             queue.push_back(nb.atom);
         }
     }
-    let path = found.then(|| {
-        let mut path = vec![to];
+    if found {
+        let begin = out.len();
+        out.push(to);
         let mut v = to;
         while v != from {
             v = prev[v];
-            path.push(v);
+            out.push(v);
         }
-        path.reverse();
-        path
-    });
+        out[begin..].reverse();
+    }
     for &t in touched.iter() {
         prev[t] = usize::MAX;
     }
-    path
+    found
 }
 
 /// The breadth-first search's buffers, borrowed from [`Scratch`].
@@ -236,11 +251,124 @@ fn system_rings(
         queue: &mut scratch.queue,
         touched: &mut scratch.touched,
     };
-    let rings = system_rings_with(m, atoms, bonds, ring_bond, &mut search, &scratch.column);
+    let rings = if atoms.len() == bonds.len() {
+        Some(vec![simple_cycle(m, atoms[0], ring_bond)])
+    } else if bonds.len() <= 64 {
+        small_system_rings(m, atoms, bonds, ring_bond, &mut search, &scratch.column)
+    } else {
+        None
+    };
+    let rings = rings.unwrap_or_else(|| {
+        system_rings_with(m, atoms, bonds, ring_bond, &mut search, &scratch.column)
+    });
     for &b in bonds {
         scratch.column[b] = usize::MAX;
     }
     rings
+}
+
+/// The one ring of a system with as many bonds as atoms (a single ring, fused to nothing):
+/// walked from `start` and put in canonical form, as the general path would choose it (its
+/// only candidate is that cycle).
+fn simple_cycle(m: &Molecule, start: usize, ring_bond: &[bool]) -> Vec<usize> {
+    let mut cycle = vec![start];
+    let mut prev = usize::MAX;
+    let mut v = start;
+    loop {
+        let next = m.neighbors[v]
+            .iter()
+            .find(|nb| ring_bond[nb.bond] && nb.atom != prev)
+            .map(|nb| nb.atom);
+        match next {
+            Some(w) if w != start => {
+                cycle.push(w);
+                prev = v;
+                v = w;
+            }
+            _ => break,
+        }
+    }
+    canonical(&cycle)
+}
+
+/// The rings of a system of at most 64 bonds, each bond set one `u64`: the same candidates,
+/// order and choice as [`system_rings_with`] without a vector per candidate. `None` when
+/// the shortest cycles through each bond do not give a full basis, which the general path
+/// (with Horton's candidates) then finds.
+fn small_system_rings(
+    m: &Molecule,
+    atoms: &[usize],
+    bonds: &[usize],
+    ring_bond: &[bool],
+    search: &mut Search,
+    column: &[usize],
+) -> Option<Vec<Vec<usize>>> {
+    let wanted = bonds.len() + 1 - atoms.len();
+    // Candidate cycles back to back in `flat`, each as (start, end, bond set).
+    let mut flat: Vec<usize> = Vec::with_capacity(4 * bonds.len());
+    let mut candidates: Vec<(usize, usize, u64)> = Vec::with_capacity(bonds.len());
+    for &b in bonds {
+        let (x, y) = (m.bonds[b].a, m.bonds[b].b);
+        let begin = flat.len();
+        if shortest_path_into(m, x, y, b, ring_bond, search, &mut flat) {
+            let v = bits64(m, &flat[begin..], column);
+            if candidates.iter().any(|c| c.2 == v) {
+                flat.truncate(begin);
+            } else {
+                candidates.push((begin, flat.len(), v));
+            }
+        }
+    }
+    if candidates.len() < wanted {
+        return None;
+    }
+    // Canonical forms, in place: the same bond set, read the same way however found.
+    let mut canon: Vec<usize> = Vec::with_capacity(flat.len());
+    for c in &mut candidates {
+        let begin = canon.len();
+        canonical_into(&flat[c.0..c.1], &mut canon);
+        *c = (begin, canon.len(), c.2);
+    }
+    candidates.sort_by(|a, b| {
+        (a.1 - a.0)
+            .cmp(&(b.1 - b.0))
+            .then_with(|| canon[a.0..a.1].cmp(&canon[b.0..b.1]))
+    });
+    let mut rows: Vec<(u32, u64)> = Vec::with_capacity(wanted);
+    let mut chosen = Vec::with_capacity(wanted);
+    for &(begin, end, mut v) in &candidates {
+        if chosen.len() == wanted {
+            break;
+        }
+        for &(pivot, row) in &rows {
+            if v >> pivot & 1 == 1 {
+                v ^= row;
+            }
+        }
+        if v == 0 {
+            continue;
+        }
+        let pivot = v.trailing_zeros();
+        let at = rows.partition_point(|&(p, _)| p < pivot);
+        rows.insert(at, (pivot, v));
+        chosen.push(canon[begin..end].to_vec());
+    }
+    (chosen.len() == wanted).then_some(chosen)
+}
+
+/// The bond set of a cycle as one word (systems of at most 64 bonds).
+fn bits64(m: &Molecule, cycle: &[usize], column: &[usize]) -> u64 {
+    let mut v = 0u64;
+    for k in 0..cycle.len() {
+        let (a, b) = (cycle[k], cycle[(k + 1) % cycle.len()]);
+        if let Some(bond) = m.bond_between(a, b) {
+            let c = column[bond];
+            if c != usize::MAX {
+                v |= 1 << c;
+            }
+        }
+    }
+    v
 }
 
 fn system_rings_with(
@@ -386,6 +514,19 @@ fn first_bit(v: &[u64]) -> Option<usize> {
         .enumerate()
         .find(|(_, w)| **w != 0)
         .map(|(i, w)| i * 64 + w.trailing_zeros() as usize)
+}
+
+/// [`canonical`], appended to `out`.
+fn canonical_into(cycle: &[usize], out: &mut Vec<usize>) {
+    let n = cycle.len();
+    let Some(start) = (0..n).min_by_key(|&i| cycle[i]) else {
+        return;
+    };
+    if n > 1 && cycle[(start + n - 1) % n] < cycle[(start + 1) % n] {
+        out.extend((0..n).map(|k| cycle[(start + n - k) % n]));
+    } else {
+        out.extend((0..n).map(|k| cycle[(start + k) % n]));
+    }
 }
 
 /// The ring rotated to start at its lowest atom, going towards the lower neighbour: the same
