@@ -74,6 +74,14 @@ pub fn parse(smiles: &str) -> Result<Molecule, Error> {
     perceive::perceive(smiles, written)
 }
 
+/// As [`parse`], reading through `purr` alone, without the direct reader for common
+/// SMILES; for checking that the direct reader gives the same molecule.
+#[doc(hidden)]
+pub fn parse_with_purr(smiles: &str) -> Result<Molecule, Error> {
+    let written = read::read_with_purr(smiles)?;
+    perceive::perceive(smiles, written)
+}
+
 /// The parent component chosen by [`standardize`], in its neutral form where one exists.
 #[derive(Clone, Debug)]
 pub struct Standardized {

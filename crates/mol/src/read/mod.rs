@@ -2,7 +2,8 @@
 
 mod atom_kind;
 mod builder;
+mod fast;
 mod scan;
 
-pub(crate) use builder::{read, Symbol, Written};
+pub(crate) use builder::{read, read_with_purr, Symbol, Written};
 pub use scan::{MAX_INLINE_LENGTH, MAX_LENGTH};
