@@ -28,35 +28,56 @@ pub(crate) fn perceive_rings(m: &mut Molecule) {
     for (b, &r) in m.bonds.iter_mut().zip(&ring_bond) {
         b.in_ring = r;
     }
-    // Ring systems: components of the ring-bond subgraph.
+    if !ring_bond.iter().any(|&r| r) {
+        m.rings = Vec::new();
+        return;
+    }
+    // Ring systems: components of the ring-bond subgraph, their atoms (in discovery order)
+    // and bonds (sorted) back to back in two lists.
     let mut system = vec![usize::MAX; n];
-    let mut systems: Vec<(Vec<usize>, Vec<usize>)> = Vec::new();
+    let mut system_atoms: Vec<usize> = Vec::with_capacity(n);
+    let mut system_bonds: Vec<usize> = Vec::with_capacity(2 * m.bonds.len());
+    let mut systems: Vec<(usize, usize, usize, usize)> = Vec::new();
+    let mut stack: Vec<usize> = Vec::new();
     for start in 0..n {
         if system[start] != usize::MAX || !m.neighbors[start].iter().any(|nb| ring_bond[nb.bond]) {
             continue;
         }
         let id = systems.len();
-        let mut atoms = vec![start];
-        let mut bonds = Vec::new();
+        let (atoms_from, bonds_from) = (system_atoms.len(), system_bonds.len());
+        system_atoms.push(start);
         system[start] = id;
-        let mut stack = vec![start];
+        stack.push(start);
         while let Some(a) = stack.pop() {
             for nb in &m.neighbors[a] {
                 if !ring_bond[nb.bond] {
                     continue;
                 }
-                bonds.push(nb.bond);
+                system_bonds.push(nb.bond);
                 if system[nb.atom] == usize::MAX {
                     system[nb.atom] = id;
-                    atoms.push(nb.atom);
+                    system_atoms.push(nb.atom);
                     stack.push(nb.atom);
                 }
             }
         }
         // Each ring bond was met from both ends.
+        let bonds = &mut system_bonds[bonds_from..];
         bonds.sort_unstable();
-        bonds.dedup();
-        systems.push((atoms, bonds));
+        let mut kept = 0;
+        for k in 0..bonds.len() {
+            if k == 0 || bonds[k] != bonds[kept - 1] {
+                bonds[kept] = bonds[k];
+                kept += 1;
+            }
+        }
+        system_bonds.truncate(bonds_from + kept);
+        systems.push((
+            atoms_from,
+            system_atoms.len(),
+            bonds_from,
+            system_bonds.len(),
+        ));
     }
     let mut rings = Vec::new();
     let mut scratch = Scratch {
@@ -65,7 +86,8 @@ pub(crate) fn perceive_rings(m: &mut Molecule) {
         queue: VecDeque::new(),
         touched: Vec::new(),
     };
-    for (atoms, bonds) in &systems {
+    for &(a0, a1, b0, b1) in &systems {
+        let (atoms, bonds) = (&system_atoms[a0..a1], &system_bonds[b0..b1]);
         rings.extend(system_rings(m, atoms, bonds, &ring_bond, &mut scratch));
     }
     for ring in &rings {
