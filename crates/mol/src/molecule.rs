@@ -188,29 +188,34 @@ impl Molecule {
     pub(crate) fn rebuild_graph(&mut self) {
         self.neighbors = Adjacency::build(self.atoms.len(), self.bonds.iter().map(|b| (b.a, b.b)));
         let n = self.atoms.len();
-        let mut seen = vec![false; n];
-        let mut out = Vec::new();
+        // Components numbered by their lowest atom; then each one's atoms, ascending, in a
+        // list of the exact size.
+        let mut label = vec![usize::MAX; n];
+        let mut sizes: Vec<usize> = Vec::new();
+        let mut stack: Vec<usize> = Vec::with_capacity(n);
         for start in 0..n {
-            if seen[start] {
+            if label[start] != usize::MAX {
                 continue;
             }
-            seen[start] = true;
-            let mut list = vec![start];
-            let mut stack = vec![start];
+            let id = sizes.len();
+            let mut size = 1;
+            label[start] = id;
+            stack.push(start);
             while let Some(a) = stack.pop() {
                 for nb in &self.neighbors[a] {
-                    if !seen[nb.atom] {
-                        seen[nb.atom] = true;
-                        list.push(nb.atom);
+                    if label[nb.atom] == usize::MAX {
+                        label[nb.atom] = id;
+                        size += 1;
                         stack.push(nb.atom);
                     }
                 }
             }
-            list.sort_unstable();
-            for &a in &list {
-                self.atoms[a].component = out.len();
-            }
-            out.push(list);
+            sizes.push(size);
+        }
+        let mut out: Vec<Vec<usize>> = sizes.iter().map(|&s| Vec::with_capacity(s)).collect();
+        for (a, &c) in label.iter().enumerate() {
+            out[c].push(a);
+            self.atoms[a].component = c;
         }
         self.components = out;
     }

@@ -79,7 +79,12 @@ pub(crate) fn perceive_rings(m: &mut Molecule) {
             system_bonds.len(),
         ));
     }
-    let mut rings = Vec::new();
+    // As many rings as the cyclomatic number of the ring bonds.
+    let wanted: usize = systems
+        .iter()
+        .map(|&(a0, a1, b0, b1)| (b1 - b0 + 1).saturating_sub(a1 - a0))
+        .sum();
+    let mut rings = Vec::with_capacity(wanted);
     let mut scratch = Scratch {
         prev: vec![usize::MAX; n],
         column: vec![usize::MAX; m.bonds.len()],
@@ -110,12 +115,13 @@ fn ring_bonds(m: &Molecule) -> Vec<bool> {
     let mut low = vec![0usize; n];
     let mut is_bridge = vec![false; m.bonds.len()];
     let mut counter = 0;
+    // (atom, bond we came by, next neighbour index)
+    let mut stack: Vec<(usize, usize, usize)> = Vec::with_capacity(n);
     for root in 0..n {
         if order[root] != usize::MAX {
             continue;
         }
-        // (atom, bond we came by, next neighbour index)
-        let mut stack: Vec<(usize, usize, usize)> = vec![(root, usize::MAX, 0)];
+        stack.push((root, usize::MAX, 0));
         order[root] = counter;
         low[root] = counter;
         counter += 1;
@@ -274,7 +280,7 @@ fn system_rings(
         touched: &mut scratch.touched,
     };
     let rings = if atoms.len() == bonds.len() {
-        Some(vec![simple_cycle(m, atoms[0], ring_bond)])
+        Some(vec![simple_cycle(m, atoms[0], ring_bond, atoms.len())])
     } else if bonds.len() <= 64 {
         small_system_rings(m, atoms, bonds, ring_bond, &mut search, &scratch.column)
     } else {
@@ -292,8 +298,9 @@ fn system_rings(
 /// The one ring of a system with as many bonds as atoms (a single ring, fused to nothing):
 /// walked from `start` and put in canonical form, as the general path would choose it (its
 /// only candidate is that cycle).
-fn simple_cycle(m: &Molecule, start: usize, ring_bond: &[bool]) -> Vec<usize> {
-    let mut cycle = vec![start];
+fn simple_cycle(m: &Molecule, start: usize, ring_bond: &[bool], size: usize) -> Vec<usize> {
+    let mut cycle = Vec::with_capacity(size);
+    cycle.push(start);
     let mut prev = usize::MAX;
     let mut v = start;
     loop {
