@@ -2,7 +2,8 @@
 //!
 //! # Overview
 //!
-//! [`parse`] reads SMILES text (through `purr`) and perceives it: implicit hydrogens
+//! [`parse`] reads SMILES text (common valid SMILES by a direct reader, everything else,
+//! errors included, through `purr`) and perceives it: implicit hydrogens
 //! (OpenSMILES default valences), rings (smallest set of smallest rings), aromaticity (one
 //! Hückel model, the same for aromatic and Kekulé input), Kekulé bond orders and
 //! hybridization. [`standardize`] picks the parent component and brings it to its neutral

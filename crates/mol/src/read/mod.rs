@@ -1,4 +1,5 @@
-//! Reading SMILES text into atoms and bonds as written (stage 1), through `purr`.
+//! Reading SMILES text into atoms and bonds as written (stage 1): a direct reader for
+//! common valid SMILES, `purr` for the rest and for every error.
 
 mod atom_kind;
 mod builder;
