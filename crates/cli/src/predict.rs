@@ -135,7 +135,10 @@ impl Job for PredictJob {
 impl PredictJob {
     fn finish(&self, record: Record) -> Estimated {
         let json = if self.json {
-            serde_json::to_vec(&record).ok()
+            // Records run to a few kilobytes (terms carry their sources): one allocation
+            // of that size rather than a buffer doubling up to it.
+            let mut buf = Vec::with_capacity(8192);
+            serde_json::to_writer(&mut buf, &record).ok().map(|()| buf)
         } else {
             None
         };

@@ -52,11 +52,21 @@ const MAIN_GROUP: [(u8, u8, u8); 22] = [
     (117, 17, 7),
 ];
 
+/// [`MAIN_GROUP`] by atomic number, built once at compile time: valence rules are looked up
+/// for every atom read.
+const GROUP_PERIOD: [Option<(u8, u8)>; 256] = {
+    let mut table = [None; 256];
+    let mut k = 0;
+    while k < MAIN_GROUP.len() {
+        let (z, g, p) = MAIN_GROUP[k];
+        table[z as usize] = Some((g, p));
+        k += 1;
+    }
+    table
+};
+
 fn group_period(element: u8) -> Option<(u8, u8)> {
-    MAIN_GROUP
-        .iter()
-        .find(|e| e.0 == element)
-        .map(|e| (e.1, e.2))
+    GROUP_PERIOD[element as usize]
 }
 
 /// Outer-shell electrons of a main-group element (0 when unknown).

@@ -2,7 +2,8 @@
 //!
 //! # Overview
 //!
-//! [`parse`] reads SMILES text (through `purr`) and perceives it: implicit hydrogens
+//! [`parse`] reads SMILES text (common valid SMILES by a direct reader, everything else,
+//! errors included, through `purr`) and perceives it: implicit hydrogens
 //! (OpenSMILES default valences), rings (smallest set of smallest rings), aromaticity (one
 //! Hückel model, the same for aromatic and Kekulé input), Kekulé bond orders and
 //! hybridization. [`standardize`] picks the parent component and brings it to its neutral
@@ -71,6 +72,14 @@ pub use write::{write_smiles_ordered, write_smiles_with_protons, SmilesWriter};
 /// hybridization). All components are kept, in input order.
 pub fn parse(smiles: &str) -> Result<Molecule, Error> {
     let written = read::read(smiles)?;
+    perceive::perceive(smiles, written)
+}
+
+/// As [`parse`], reading through `purr` alone, without the direct reader for common
+/// SMILES; for checking that the direct reader gives the same molecule.
+#[doc(hidden)]
+pub fn parse_with_purr(smiles: &str) -> Result<Molecule, Error> {
+    let written = read::read_with_purr(smiles)?;
     perceive::perceive(smiles, written)
 }
 

@@ -69,35 +69,72 @@ pub struct Neighbor {
     pub bond: usize,
 }
 
+/// Neighbour lists of all atoms, in bond order. One list per atom (rather than one flat
+/// list with offsets) because the pattern matcher reads them in its innermost loops, where
+/// a flat list's extra bounds checks cost more than the allocations they save; each list
+/// is allocated once at its final size.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub(crate) struct Adjacency(Vec<Vec<Neighbor>>);
+
+impl Adjacency {
+    /// The lists of `atoms` atoms joined by `bonds` (`(a, b)` per bond, in bond order).
+    pub(crate) fn build(atoms: usize, bonds: impl Iterator<Item = (usize, usize)> + Clone) -> Self {
+        let mut degree = vec![0usize; atoms];
+        for (a, b) in bonds.clone() {
+            degree[a] += 1;
+            degree[b] += 1;
+        }
+        let mut lists: Vec<Vec<Neighbor>> = degree.iter().map(|&d| Vec::with_capacity(d)).collect();
+        for (i, (a, b)) in bonds.enumerate() {
+            lists[a].push(Neighbor { atom: b, bond: i });
+            lists[b].push(Neighbor { atom: a, bond: i });
+        }
+        Adjacency(lists)
+    }
+}
+
+impl std::ops::Index<usize> for Adjacency {
+    type Output = [Neighbor];
+    #[inline]
+    fn index(&self, atom: usize) -> &[Neighbor] {
+        &self.0[atom]
+    }
+}
+
 /// A molecule as read and perceived: atoms, bonds, rings and components.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Molecule {
     pub(crate) input: String,
     pub(crate) atoms: Vec<Atom>,
     pub(crate) bonds: Vec<Bond>,
-    pub(crate) neighbors: Vec<Vec<Neighbor>>,
+    pub(crate) neighbors: Adjacency,
     pub(crate) rings: Vec<Vec<usize>>,
     pub(crate) components: Vec<Vec<usize>>,
 }
 
 impl Molecule {
     /// The text the molecule was read from.
+    #[inline]
     pub fn input(&self) -> &str {
         &self.input
     }
     /// All atoms, in input order.
+    #[inline]
     pub fn atoms(&self) -> &[Atom] {
         &self.atoms
     }
     /// All bonds.
+    #[inline]
     pub fn bonds(&self) -> &[Bond] {
         &self.bonds
     }
     /// The neighbours of an atom (atoms written explicitly, hydrogens in counts excluded).
+    #[inline]
     pub fn neighbors(&self, atom: usize) -> &[Neighbor] {
         &self.neighbors[atom]
     }
     /// The bond between two atoms, if any.
+    #[inline]
     pub fn bond_between(&self, a: usize, b: usize) -> Option<usize> {
         self.neighbors[a]
             .iter()
@@ -105,22 +142,27 @@ impl Molecule {
             .map(|n| n.bond)
     }
     /// The smallest set of smallest rings, each as atoms in ring order.
+    #[inline]
     pub fn rings(&self) -> &[Vec<usize>] {
         &self.rings
     }
     /// Components (`.`-separated parts) as atom lists, in input order.
+    #[inline]
     pub fn components(&self) -> &[Vec<usize>] {
         &self.components
     }
     /// Explicit connections (SMARTS `D`).
+    #[inline]
     pub fn degree(&self, atom: usize) -> usize {
         self.neighbors[atom].len()
     }
     /// Total connections including hydrogens in counts (SMARTS `X`).
+    #[inline]
     pub fn total_degree(&self, atom: usize) -> usize {
         self.neighbors[atom].len() + self.atoms[atom].hydrogens as usize
     }
     /// Total hydrogens on an atom: in counts plus explicit `[H]` neighbours (SMARTS `H`).
+    #[inline]
     pub fn total_hydrogens(&self, atom: usize) -> usize {
         self.atoms[atom].hydrogens as usize
             + self.neighbors[atom]
@@ -144,35 +186,36 @@ impl Molecule {
 
     /// Rebuilds neighbour lists and components from the bonds.
     pub(crate) fn rebuild_graph(&mut self) {
-        self.neighbors = vec![Vec::new(); self.atoms.len()];
-        for (i, b) in self.bonds.iter().enumerate() {
-            self.neighbors[b.a].push(Neighbor { atom: b.b, bond: i });
-            self.neighbors[b.b].push(Neighbor { atom: b.a, bond: i });
-        }
+        self.neighbors = Adjacency::build(self.atoms.len(), self.bonds.iter().map(|b| (b.a, b.b)));
         let n = self.atoms.len();
-        let mut seen = vec![false; n];
-        let mut out = Vec::new();
+        // Components numbered by their lowest atom; then each one's atoms, ascending, in a
+        // list of the exact size.
+        let mut label = vec![usize::MAX; n];
+        let mut sizes: Vec<usize> = Vec::new();
+        let mut stack: Vec<usize> = Vec::with_capacity(n);
         for start in 0..n {
-            if seen[start] {
+            if label[start] != usize::MAX {
                 continue;
             }
-            seen[start] = true;
-            let mut list = vec![start];
-            let mut stack = vec![start];
+            let id = sizes.len();
+            let mut size = 1;
+            label[start] = id;
+            stack.push(start);
             while let Some(a) = stack.pop() {
                 for nb in &self.neighbors[a] {
-                    if !seen[nb.atom] {
-                        seen[nb.atom] = true;
-                        list.push(nb.atom);
+                    if label[nb.atom] == usize::MAX {
+                        label[nb.atom] = id;
+                        size += 1;
                         stack.push(nb.atom);
                     }
                 }
             }
-            list.sort_unstable();
-            for &a in &list {
-                self.atoms[a].component = out.len();
-            }
-            out.push(list);
+            sizes.push(size);
+        }
+        let mut out: Vec<Vec<usize>> = sizes.iter().map(|&s| Vec::with_capacity(s)).collect();
+        for (a, &c) in label.iter().enumerate() {
+            out[c].push(a);
+            self.atoms[a].component = c;
         }
         self.components = out;
     }

@@ -48,7 +48,7 @@ pub(crate) fn submolecule(m: &Molecule, keep: &[usize]) -> Molecule {
         input: m.input.clone(),
         atoms,
         bonds,
-        neighbors: Vec::new(),
+        neighbors: Default::default(),
         rings: Vec::new(),
         components: Vec::new(),
     };

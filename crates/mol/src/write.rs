@@ -17,7 +17,7 @@ use crate::molecule::Molecule;
 /// Writes SMILES and returns, for each atom in the order written, its index in `m`.
 pub fn write_smiles_ordered(m: &Molecule) -> (String, Vec<usize>) {
     let w = SmilesWriter::new(m);
-    (w.write(&[]), w.order)
+    (w.plain, w.order)
 }
 
 /// Writes the molecule with protons moved, as [`Molecule::with_protons`] would move them:
@@ -42,6 +42,14 @@ pub struct SmilesWriter<'a> {
     m: &'a Molecule,
     ops: Vec<Op>,
     order: Vec<usize>,
+    /// The SMILES with no protons moved, written once: species of one parent differ from
+    /// it only at the atoms whose protons move (and in the case of aromatic atoms, perhaps
+    /// in how their component is written), so the rest is copied from here.
+    plain: String,
+    /// Per component: written lower case with no protons moved.
+    plain_lower: Vec<bool>,
+    /// Per atom: where its text sits in `plain`.
+    plain_atom: Vec<(usize, usize)>,
 }
 
 /// One step of the written walk.
@@ -66,7 +74,52 @@ impl<'a> SmilesWriter<'a> {
             ops.push(Op::Component(k));
             walk_component(m, component, &mut ops, &mut order, &mut scratch);
         }
-        SmilesWriter { m, ops, order }
+        let mut w = SmilesWriter {
+            m,
+            ops,
+            order,
+            plain: String::new(),
+            plain_lower: Vec::new(),
+            plain_atom: Vec::new(),
+        };
+        let (plain, plain_lower, plain_atom) = w.write_plain();
+        w.plain = plain;
+        w.plain_lower = plain_lower;
+        w.plain_atom = plain_atom;
+        w
+    }
+
+    /// The SMILES with no protons moved, each component's case and each atom's place.
+    fn write_plain(&self) -> (String, Vec<bool>, Vec<(usize, usize)>) {
+        let v = View {
+            m: self.m,
+            edits: &[],
+        };
+        let m = self.m;
+        let mut out = String::with_capacity(m.input.len() + 16);
+        let mut lowers = vec![false; m.components.len()];
+        let mut places = vec![(0, 0); m.atoms.len()];
+        let mut lower = false;
+        for &op in &self.ops {
+            match op {
+                Op::Component(k) => {
+                    if k > 0 {
+                        out.push('.');
+                    }
+                    lower = aromatic_writable(&v, &m.components[k]);
+                    lowers[k] = lower;
+                }
+                Op::Atom(i) => {
+                    let from = out.len();
+                    atom_text(&v, i, lower, &mut out);
+                    places[i] = (from, out.len());
+                }
+                Op::Bond(b) => out.push_str(bond_text(m, b, lower)),
+                Op::Text(t) => out.push_str(t),
+                Op::Digit(d) => push_digit(&mut out, d),
+            }
+        }
+        (out, lowers, places)
     }
 
     /// For each atom in the order written, its index in the molecule.
@@ -77,19 +130,40 @@ impl<'a> SmilesWriter<'a> {
     /// The SMILES with protons moved by `edits` (each `(atom, delta)` as in
     /// [`Molecule::with_protons`]; empty for the molecule itself).
     pub fn write(&self, edits: &[(usize, i8)]) -> String {
+        if edits.is_empty() {
+            return self.plain.clone();
+        }
         let v = View { m: self.m, edits };
         let m = self.m;
-        let mut out = String::with_capacity(m.input.len() + 16);
+        let mut out = String::with_capacity(self.plain.len() + 8);
         let mut lower = false;
+        // Whether the component is written in the same case as with no protons moved: then
+        // an atom whose protons do not move reads as it does there.
+        let mut same_case = true;
         for &op in &self.ops {
             match op {
                 Op::Component(k) => {
                     if k > 0 {
                         out.push('.');
                     }
-                    lower = aromatic_writable(&v, &m.components[k]);
+                    let touched = edits
+                        .iter()
+                        .any(|&(a, _)| m.atoms.get(a).is_some_and(|x| x.component == k));
+                    lower = if touched {
+                        aromatic_writable(&v, &m.components[k])
+                    } else {
+                        self.plain_lower[k]
+                    };
+                    same_case = lower == self.plain_lower[k];
                 }
-                Op::Atom(i) => atom_text(&v, i, lower, &mut out),
+                Op::Atom(i) => {
+                    if same_case && !edits.iter().any(|&(a, _)| a == i) {
+                        let (from, to) = self.plain_atom[i];
+                        out.push_str(&self.plain[from..to]);
+                    } else {
+                        atom_text(&v, i, lower, &mut out);
+                    }
+                }
                 Op::Bond(b) => out.push_str(bond_text(m, b, lower)),
                 Op::Text(t) => out.push_str(t),
                 Op::Digit(d) => push_digit(&mut out, d),

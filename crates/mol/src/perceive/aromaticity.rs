@@ -26,6 +26,8 @@ use crate::molecule::Molecule;
 /// limit also keeps large fused sheets linear in time. Measured on the NCI 5K sample: limits
 /// 2 to 5 agree with RDKit on all but one molecule (docs/rdkit-crosscheck.md).
 const MAX_COMBINATION: usize = 3;
+// The counting below enumerates combinations of one, two and three rings only.
+const _: () = assert!(MAX_COMBINATION <= 3);
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 enum Donor {
@@ -123,134 +125,135 @@ fn donor(m: &Molecule, i: usize) -> Donor {
     }
 }
 
-/// Ring bonds of a ring given in ring order.
-fn ring_bond_list(m: &Molecule, ring: &[usize]) -> Vec<usize> {
-    (0..ring.len())
-        .filter_map(|k| m.bond_between(ring[k], ring[(k + 1) % ring.len()]))
-        .collect()
-}
-
 /// Marks aromatic atoms and bonds by the model above.
+///
+/// Every connected combination of up to [`MAX_COMBINATION`] candidate rings (a ring, two
+/// rings sharing a bond, three rings of which one shares a bond with each of the others)
+/// is counted; a ring is aromatic when any combination containing it has 4n+2 electrons.
+/// The outcome does not depend on the order the combinations are counted in.
 ///
 /// # Reference
 ///
 /// E. Hückel, Z. Physik 1931, 70, 204 (the 4n+2 rule); the per-atom electron counts follow
 /// the RDKit Book, "Aromaticity", default model.
 pub(crate) fn perceive_aromaticity(m: &mut Molecule) {
+    if m.rings.is_empty() {
+        return;
+    }
     let donors: Vec<Donor> = (0..m.atoms.len()).map(|i| donor(m, i)).collect();
-    // Candidate rings as (index into `m.rings`, ring bonds).
-    let rings: Vec<(usize, Vec<usize>)> = m
-        .rings
-        .iter()
-        .enumerate()
-        .filter(|(_, r)| r.iter().all(|&a| donors[a] != Donor::No))
-        .map(|(i, r)| (i, ring_bond_list(m, r)))
-        .collect();
+    // Candidate rings (index into `m.rings`), their ring bonds back to back in `bonds`.
+    let mut rings: Vec<usize> = Vec::with_capacity(m.rings.len());
+    let mut bond_start: Vec<usize> = vec![0];
+    let mut bonds: Vec<usize> = Vec::new();
+    for (i, r) in m.rings.iter().enumerate() {
+        if r.iter().any(|&a| donors[a] == Donor::No) {
+            continue;
+        }
+        rings.push(i);
+        bonds.extend((0..r.len()).filter_map(|k| m.bond_between(r[k], r[(k + 1) % r.len()])));
+        bond_start.push(bonds.len());
+    }
     let k = rings.len();
     if k == 0 {
         return;
     }
-    // Fused: rings sharing a bond.
-    let mut rings_of_bond: Vec<Vec<usize>> = vec![Vec::new(); m.bonds.len()];
-    for (r, (_, bonds)) in rings.iter().enumerate() {
-        for &b in bonds {
-            rings_of_bond[b].push(r);
+    let ring_bonds = |r: usize| &bonds[bond_start[r]..bond_start[r + 1]];
+    // Fused: rings sharing a bond, found through the rings of each bond (counted, then
+    // filled), each ring's list sorted and without repeats.
+    let mut per_bond = vec![0usize; m.bonds.len() + 1];
+    for &b in &bonds {
+        per_bond[b + 1] += 1;
+    }
+    for b in 0..m.bonds.len() {
+        per_bond[b + 1] += per_bond[b];
+    }
+    let mut fill = per_bond.clone();
+    let mut rings_of_bond = vec![0usize; bonds.len()];
+    for r in 0..k {
+        for &b in ring_bonds(r) {
+            rings_of_bond[fill[b]] = r;
+            fill[b] += 1;
         }
     }
-    let fused: Vec<Vec<usize>> = (0..k)
-        .map(|i| {
-            let mut f: Vec<usize> = rings[i]
-                .1
-                .iter()
-                .flat_map(|&b| rings_of_bond[b].iter().copied())
-                .filter(|&j| j != i)
-                .collect();
-            f.sort_unstable();
-            f.dedup();
-            f
-        })
-        .collect();
-    let mut group = vec![usize::MAX; k];
-    let mut groups: Vec<Vec<usize>> = Vec::new();
-    for s in 0..k {
-        if group[s] != usize::MAX {
-            continue;
+    let mut fused_start: Vec<usize> = Vec::with_capacity(k + 1);
+    fused_start.push(0);
+    let mut fused: Vec<usize> = Vec::new();
+    for r in 0..k {
+        let from = fused.len();
+        for &b in ring_bonds(r) {
+            fused.extend(
+                rings_of_bond[per_bond[b]..per_bond[b + 1]]
+                    .iter()
+                    .copied()
+                    .filter(|&o| o != r),
+            );
         }
-        let id = groups.len();
-        group[s] = id;
-        let mut members = vec![s];
-        let mut stack = vec![s];
-        while let Some(r) = stack.pop() {
-            for &o in &fused[r] {
-                if group[o] == usize::MAX {
-                    group[o] = id;
-                    members.push(o);
-                    stack.push(o);
-                }
+        fused[from..].sort_unstable();
+        let mut kept = from;
+        for j in from..fused.len() {
+            if j == from || fused[j] != fused[kept - 1] {
+                fused[kept] = fused[j];
+                kept += 1;
             }
         }
-        groups.push(members);
+        fused.truncate(kept);
+        fused_start.push(fused.len());
     }
+    let fused_of = |r: usize| &fused[fused_start[r]..fused_start[r + 1]];
     let mut aromatic_rings = vec![false; k];
-    for members in &groups {
-        for subset in connected_subsets(members, &fused) {
-            if subset.iter().all(|&r| aromatic_rings[r]) {
-                continue;
+    // Atoms of the combination being counted carry its stamp, so shared atoms count once.
+    let mut stamp = vec![0u32; m.atoms.len()];
+    let mut current = 0u32;
+    let mut count = |subset: &[usize], aromatic_rings: &mut [bool]| {
+        if subset.iter().all(|&r| aromatic_rings[r]) {
+            return;
+        }
+        current += 1;
+        let mut electrons = 0usize;
+        for &r in subset {
+            for &a in &m.rings[rings[r]] {
+                if stamp[a] != current {
+                    stamp[a] = current;
+                    electrons += donors[a].electrons();
+                }
             }
-            let mut atoms: Vec<usize> = subset
-                .iter()
-                .flat_map(|&r| m.rings[rings[r].0].iter().copied())
-                .collect();
-            atoms.sort_unstable();
-            atoms.dedup();
-            let electrons: usize = atoms.iter().map(|&a| donors[a].electrons()).sum();
-            if electrons % 4 == 2 {
-                for &r in &subset {
-                    aromatic_rings[r] = true;
+        }
+        if electrons % 4 == 2 {
+            for &r in subset {
+                aromatic_rings[r] = true;
+            }
+        }
+    };
+    for r in 0..k {
+        count(&[r], &mut aromatic_rings);
+    }
+    if MAX_COMBINATION >= 2 {
+        for r in 0..k {
+            for &o in fused_of(r).iter().filter(|&&o| o > r) {
+                count(&[r, o], &mut aromatic_rings);
+            }
+        }
+    }
+    if MAX_COMBINATION >= 3 {
+        // Three connected rings: one in the middle sharing a bond with each of the others.
+        for r in 0..k {
+            let f = fused_of(r);
+            for x in 0..f.len() {
+                for y in x + 1..f.len() {
+                    count(&[r, f[x], f[y]], &mut aromatic_rings);
                 }
             }
         }
     }
-    for (r, (ring, bonds)) in rings.iter().enumerate() {
+    for r in 0..k {
         if !aromatic_rings[r] {
             continue;
         }
-        for &a in &m.rings[*ring] {
+        for &a in &m.rings[rings[r]] {
             m.atoms[a].aromatic = true;
         }
-        for &b in bonds {
+        for &b in ring_bonds(r) {
             m.bonds[b].aromatic = true;
         }
     }
-}
-
-/// Connected subsets of a fused ring group of up to [`MAX_COMBINATION`] rings.
-fn connected_subsets(members: &[usize], fused: &[Vec<usize>]) -> Vec<Vec<usize>> {
-    let limit = members.len().min(MAX_COMBINATION);
-    let mut out: Vec<Vec<usize>> = Vec::new();
-    let mut seen = std::collections::HashSet::new();
-    let mut frontier: Vec<Vec<usize>> = members.iter().map(|&r| vec![r]).collect();
-    for _ in 0..limit {
-        let mut next = Vec::new();
-        for s in frontier {
-            if !seen.insert(s.clone()) {
-                continue;
-            }
-            for &r in &s {
-                for &o in &fused[r] {
-                    if !s.contains(&o) {
-                        let mut t = s.clone();
-                        t.push(o);
-                        t.sort_unstable();
-                        next.push(t);
-                    }
-                }
-            }
-            out.push(s);
-        }
-        next.sort();
-        next.dedup();
-        frontier = next;
-    }
-    out
 }

@@ -1,6 +1,6 @@
 //! Kekulé bond orders for atoms written aromatic.
 
-use super::matching::maximum_matching;
+use super::matching::{maximum_matching, Lists};
 use crate::molecule::Molecule;
 use crate::{Error, ErrorKind};
 
@@ -18,13 +18,31 @@ pub(crate) fn kekulize(m: &mut Molecule, needs_pi: &[bool]) -> Result<(), Error>
     for (k, &a) in needy.iter().enumerate() {
         index[a] = k;
     }
-    let mut adj = vec![Vec::new(); needy.len()];
-    for b in &m.bonds {
-        if b.written_aromatic && needs_pi[b.a] && needs_pi[b.b] {
-            adj[index[b.a]].push(index[b.b]);
-            adj[index[b.b]].push(index[b.a]);
-        }
+    // The bonds between needy atoms, in bond order, as adjacency lists (counted, then
+    // filled: the same lists, in the same order, as pushing bond by bond).
+    let edges = || {
+        m.bonds
+            .iter()
+            .filter(|b| b.written_aromatic && needs_pi[b.a] && needs_pi[b.b])
+            .map(|b| (index[b.a], index[b.b]))
+    };
+    let mut start = vec![0usize; needy.len() + 1];
+    for (a, b) in edges() {
+        start[a + 1] += 1;
+        start[b + 1] += 1;
     }
+    for v in 0..needy.len() {
+        start[v + 1] += start[v];
+    }
+    let mut fill = start.clone();
+    let mut items = vec![0usize; start[needy.len()]];
+    for (a, b) in edges() {
+        items[fill[a]] = b;
+        fill[a] += 1;
+        items[fill[b]] = a;
+        fill[b] += 1;
+    }
+    let adj = Lists { start, items };
     let mate = maximum_matching(&adj);
     if let Some(k) = mate.iter().position(Option::is_none) {
         // No single atom is to blame: the carets cover the aromatic system it sits in.

@@ -5,6 +5,38 @@
 
 const NONE: usize = usize::MAX;
 
+/// Adjacency lists in one allocation: vertex `v`'s neighbours are
+/// `items[start[v]..start[v + 1]]`.
+pub(crate) struct Lists {
+    pub(crate) start: Vec<usize>,
+    pub(crate) items: Vec<usize>,
+}
+
+impl Lists {
+    fn len(&self) -> usize {
+        self.start.len() - 1
+    }
+
+    #[cfg(test)]
+    fn from_vecs(adj: &[Vec<usize>]) -> Lists {
+        let mut start = vec![0];
+        let mut items = Vec::new();
+        for l in adj {
+            items.extend_from_slice(l);
+            start.push(items.len());
+        }
+        Lists { start, items }
+    }
+}
+
+impl std::ops::Index<usize> for Lists {
+    type Output = [usize];
+    #[inline]
+    fn index(&self, v: usize) -> &[usize] {
+        &self.items[self.start[v]..self.start[v + 1]]
+    }
+}
+
 /// A maximum matching of the graph given by adjacency lists: `mate[v]` is the vertex
 /// matched to `v`, or `None`.
 ///
@@ -12,7 +44,7 @@ const NONE: usize = usize::MAX;
 ///
 /// J. Edmonds, "Paths, trees, and flowers", Canad. J. Math. 1965, 17, 449-467 (blossom
 /// algorithm), in its O(V^3) breadth-first form.
-pub(crate) fn maximum_matching(adj: &[Vec<usize>]) -> Vec<Option<usize>> {
+pub(crate) fn maximum_matching(adj: &Lists) -> Vec<Option<usize>> {
     let n = adj.len();
     let mut s = Search {
         adj,
@@ -52,7 +84,7 @@ pub(crate) fn maximum_matching(adj: &[Vec<usize>]) -> Vec<Option<usize>> {
 }
 
 struct Search<'a> {
-    adj: &'a [Vec<usize>],
+    adj: &'a Lists,
     mate: Vec<usize>,
     parent: Vec<usize>,
     base: Vec<usize>,
@@ -150,13 +182,13 @@ mod tests {
 
     #[test]
     fn even_ring_is_perfectly_matched() {
-        let m = maximum_matching(&ring(6));
+        let m = maximum_matching(&Lists::from_vecs(&ring(6)));
         assert!(m.iter().all(Option::is_some));
     }
 
     #[test]
     fn odd_ring_leaves_one_vertex() {
-        let m = maximum_matching(&ring(5));
+        let m = maximum_matching(&Lists::from_vecs(&ring(5)));
         assert_eq!(m.iter().filter(|x| x.is_none()).count(), 1);
     }
 
@@ -171,7 +203,7 @@ mod tests {
             vec![0],
             vec![1],
         ];
-        let m = maximum_matching(&adj);
+        let m = maximum_matching(&Lists::from_vecs(&adj));
         assert!(m.iter().all(Option::is_some));
     }
 }

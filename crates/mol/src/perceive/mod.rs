@@ -62,7 +62,7 @@ pub(crate) fn perceive(input: &str, written: Written) -> Result<Molecule, Error>
         input: input.to_string(),
         atoms,
         bonds,
-        neighbors: Vec::new(),
+        neighbors: Default::default(),
         rings: Vec::new(),
         components: Vec::new(),
     };

@@ -28,44 +28,71 @@ pub(crate) fn perceive_rings(m: &mut Molecule) {
     for (b, &r) in m.bonds.iter_mut().zip(&ring_bond) {
         b.in_ring = r;
     }
-    // Ring systems: components of the ring-bond subgraph.
+    if !ring_bond.iter().any(|&r| r) {
+        m.rings = Vec::new();
+        return;
+    }
+    // Ring systems: components of the ring-bond subgraph, their atoms (in discovery order)
+    // and bonds (sorted) back to back in two lists.
     let mut system = vec![usize::MAX; n];
-    let mut systems: Vec<(Vec<usize>, Vec<usize>)> = Vec::new();
+    let mut system_atoms: Vec<usize> = Vec::with_capacity(n);
+    let mut system_bonds: Vec<usize> = Vec::with_capacity(2 * m.bonds.len());
+    let mut systems: Vec<(usize, usize, usize, usize)> = Vec::new();
+    let mut stack: Vec<usize> = Vec::new();
     for start in 0..n {
         if system[start] != usize::MAX || !m.neighbors[start].iter().any(|nb| ring_bond[nb.bond]) {
             continue;
         }
         let id = systems.len();
-        let mut atoms = vec![start];
-        let mut bonds = Vec::new();
+        let (atoms_from, bonds_from) = (system_atoms.len(), system_bonds.len());
+        system_atoms.push(start);
         system[start] = id;
-        let mut stack = vec![start];
+        stack.push(start);
         while let Some(a) = stack.pop() {
             for nb in &m.neighbors[a] {
                 if !ring_bond[nb.bond] {
                     continue;
                 }
-                bonds.push(nb.bond);
+                system_bonds.push(nb.bond);
                 if system[nb.atom] == usize::MAX {
                     system[nb.atom] = id;
-                    atoms.push(nb.atom);
+                    system_atoms.push(nb.atom);
                     stack.push(nb.atom);
                 }
             }
         }
         // Each ring bond was met from both ends.
+        let bonds = &mut system_bonds[bonds_from..];
         bonds.sort_unstable();
-        bonds.dedup();
-        systems.push((atoms, bonds));
+        let mut kept = 0;
+        for k in 0..bonds.len() {
+            if k == 0 || bonds[k] != bonds[kept - 1] {
+                bonds[kept] = bonds[k];
+                kept += 1;
+            }
+        }
+        system_bonds.truncate(bonds_from + kept);
+        systems.push((
+            atoms_from,
+            system_atoms.len(),
+            bonds_from,
+            system_bonds.len(),
+        ));
     }
-    let mut rings = Vec::new();
+    // As many rings as the cyclomatic number of the ring bonds.
+    let wanted: usize = systems
+        .iter()
+        .map(|&(a0, a1, b0, b1)| (b1 - b0 + 1).saturating_sub(a1 - a0))
+        .sum();
+    let mut rings = Vec::with_capacity(wanted);
     let mut scratch = Scratch {
         prev: vec![usize::MAX; n],
         column: vec![usize::MAX; m.bonds.len()],
         queue: VecDeque::new(),
         touched: Vec::new(),
     };
-    for (atoms, bonds) in &systems {
+    for &(a0, a1, b0, b1) in &systems {
+        let (atoms, bonds) = (&system_atoms[a0..a1], &system_bonds[b0..b1]);
         rings.extend(system_rings(m, atoms, bonds, &ring_bond, &mut scratch));
     }
     for ring in &rings {
@@ -88,12 +115,13 @@ fn ring_bonds(m: &Molecule) -> Vec<bool> {
     let mut low = vec![0usize; n];
     let mut is_bridge = vec![false; m.bonds.len()];
     let mut counter = 0;
+    // (atom, bond we came by, next neighbour index)
+    let mut stack: Vec<(usize, usize, usize)> = Vec::with_capacity(n);
     for root in 0..n {
         if order[root] != usize::MAX {
             continue;
         }
-        // (atom, bond we came by, next neighbour index)
-        let mut stack: Vec<(usize, usize, usize)> = vec![(root, usize::MAX, 0)];
+        stack.push((root, usize::MAX, 0));
         order[root] = counter;
         low[root] = counter;
         counter += 1;
@@ -136,6 +164,21 @@ fn shortest_path(
     ring_bond: &[bool],
     search: &mut Search,
 ) -> Option<Vec<usize>> {
+    let mut path = Vec::new();
+    shortest_path_into(m, from, to, skip, ring_bond, search, &mut path).then_some(path)
+}
+
+/// As [`shortest_path`], appending the path to `out`; whether there is one (`out` is left
+/// as it was when there is not).
+fn shortest_path_into(
+    m: &Molecule,
+    from: usize,
+    to: usize,
+    skip: usize,
+    ring_bond: &[bool],
+    search: &mut Search,
+    out: &mut Vec<usize>,
+) -> bool {
     let Search {
         prev,
         queue,
@@ -161,20 +204,20 @@ fn shortest_path(
             queue.push_back(nb.atom);
         }
     }
-    let path = found.then(|| {
-        let mut path = vec![to];
+    if found {
+        let begin = out.len();
+        out.push(to);
         let mut v = to;
         while v != from {
             v = prev[v];
-            path.push(v);
+            out.push(v);
         }
-        path.reverse();
-        path
-    });
+        out[begin..].reverse();
+    }
     for &t in touched.iter() {
         prev[t] = usize::MAX;
     }
-    path
+    found
 }
 
 /// The breadth-first search's buffers, borrowed from [`Scratch`].
@@ -236,11 +279,125 @@ fn system_rings(
         queue: &mut scratch.queue,
         touched: &mut scratch.touched,
     };
-    let rings = system_rings_with(m, atoms, bonds, ring_bond, &mut search, &scratch.column);
+    let rings = if atoms.len() == bonds.len() {
+        Some(vec![simple_cycle(m, atoms[0], ring_bond, atoms.len())])
+    } else if bonds.len() <= 64 {
+        small_system_rings(m, atoms, bonds, ring_bond, &mut search, &scratch.column)
+    } else {
+        None
+    };
+    let rings = rings.unwrap_or_else(|| {
+        system_rings_with(m, atoms, bonds, ring_bond, &mut search, &scratch.column)
+    });
     for &b in bonds {
         scratch.column[b] = usize::MAX;
     }
     rings
+}
+
+/// The one ring of a system with as many bonds as atoms (a single ring, fused to nothing):
+/// walked from `start` and put in canonical form, as the general path would choose it (its
+/// only candidate is that cycle).
+fn simple_cycle(m: &Molecule, start: usize, ring_bond: &[bool], size: usize) -> Vec<usize> {
+    let mut cycle = Vec::with_capacity(size);
+    cycle.push(start);
+    let mut prev = usize::MAX;
+    let mut v = start;
+    loop {
+        let next = m.neighbors[v]
+            .iter()
+            .find(|nb| ring_bond[nb.bond] && nb.atom != prev)
+            .map(|nb| nb.atom);
+        match next {
+            Some(w) if w != start => {
+                cycle.push(w);
+                prev = v;
+                v = w;
+            }
+            _ => break,
+        }
+    }
+    canonical(&cycle)
+}
+
+/// The rings of a system of at most 64 bonds, each bond set one `u64`: the same candidates,
+/// order and choice as [`system_rings_with`] without a vector per candidate. `None` when
+/// the shortest cycles through each bond do not give a full basis, which the general path
+/// (with Horton's candidates) then finds.
+fn small_system_rings(
+    m: &Molecule,
+    atoms: &[usize],
+    bonds: &[usize],
+    ring_bond: &[bool],
+    search: &mut Search,
+    column: &[usize],
+) -> Option<Vec<Vec<usize>>> {
+    let wanted = bonds.len() + 1 - atoms.len();
+    // Candidate cycles back to back in `flat`, each as (start, end, bond set).
+    let mut flat: Vec<usize> = Vec::with_capacity(4 * bonds.len());
+    let mut candidates: Vec<(usize, usize, u64)> = Vec::with_capacity(bonds.len());
+    for &b in bonds {
+        let (x, y) = (m.bonds[b].a, m.bonds[b].b);
+        let begin = flat.len();
+        if shortest_path_into(m, x, y, b, ring_bond, search, &mut flat) {
+            let v = bits64(m, &flat[begin..], column);
+            if candidates.iter().any(|c| c.2 == v) {
+                flat.truncate(begin);
+            } else {
+                candidates.push((begin, flat.len(), v));
+            }
+        }
+    }
+    if candidates.len() < wanted {
+        return None;
+    }
+    // Canonical forms, in place: the same bond set, read the same way however found.
+    let mut canon: Vec<usize> = Vec::with_capacity(flat.len());
+    for c in &mut candidates {
+        let begin = canon.len();
+        canonical_into(&flat[c.0..c.1], &mut canon);
+        *c = (begin, canon.len(), c.2);
+    }
+    candidates.sort_by(|a, b| {
+        (a.1 - a.0)
+            .cmp(&(b.1 - b.0))
+            .then_with(|| canon[a.0..a.1].cmp(&canon[b.0..b.1]))
+    });
+    let mut rows: Vec<(u32, u64)> = Vec::with_capacity(wanted);
+    let mut chosen = Vec::with_capacity(wanted);
+    for &(begin, end, mut v) in &candidates {
+        if chosen.len() == wanted {
+            break;
+        }
+        for &(pivot, row) in &rows {
+            if v >> pivot & 1 == 1 {
+                v ^= row;
+            }
+        }
+        if v == 0 {
+            continue;
+        }
+        let pivot = v.trailing_zeros();
+        let at = rows.partition_point(|&(p, _)| p < pivot);
+        rows.insert(at, (pivot, v));
+        chosen.push(canon[begin..end].to_vec());
+    }
+    (chosen.len() == wanted).then_some(chosen)
+}
+
+/// The bond set of a cycle as one word (systems of at most 64 bonds).
+fn bits64(m: &Molecule, cycle: &[usize], column: &[usize]) -> u64 {
+    let mut v = 0u64;
+    for k in 0..cycle.len() {
+        let (a, b) = (cycle[k], cycle[(k + 1) % cycle.len()]);
+        if let Some(bond) = m.bond_between(a, b) {
+            let c = column[bond];
+            if c != usize::MAX {
+                v |= 1 << c;
+            }
+        }
+    }
+    v
 }
 
 fn system_rings_with(
@@ -386,6 +543,19 @@ fn first_bit(v: &[u64]) -> Option<usize> {
         .enumerate()
         .find(|(_, w)| **w != 0)
         .map(|(i, w)| i * 64 + w.trailing_zeros() as usize)
+}
+
+/// [`canonical`], appended to `out`.
+fn canonical_into(cycle: &[usize], out: &mut Vec<usize>) {
+    let n = cycle.len();
+    let Some(start) = (0..n).min_by_key(|&i| cycle[i]) else {
+        return;
+    };
+    if n > 1 && cycle[(start + n - 1) % n] < cycle[(start + 1) % n] {
+        out.extend((0..n).map(|k| cycle[(start + n - k) % n]));
+    } else {
+        out.extend((0..n).map(|k| cycle[(start + k) % n]));
+    }
 }
 
 /// The ring rotated to start at its lowest atom, going towards the lower neighbour: the same

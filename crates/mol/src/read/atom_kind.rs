@@ -5,6 +5,7 @@ use purr::feature::{Aliphatic, Aromatic, AtomKind, BracketSymbol};
 use crate::elements;
 
 /// The fields of an atom as written.
+#[derive(Clone, Debug, PartialEq)]
 pub(crate) struct WrittenAtom {
     pub element: u8,
     pub isotope: Option<u16>,

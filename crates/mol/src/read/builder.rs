@@ -7,7 +7,8 @@ use purr::read::Trace;
 use purr::walk::Follower;
 
 use super::atom_kind::{convert, WrittenAtom};
-use super::scan::{scan, Scan, MAX_INLINE_LENGTH};
+use super::fast::read_fast;
+use super::scan::{scan, Scan, MAX_INLINE_LENGTH, MAX_LENGTH};
 use crate::{Error, ErrorKind, Span};
 
 /// A bond symbol as written.
@@ -150,6 +151,25 @@ fn byte_offsets(smiles: &str) -> Vec<usize> {
 /// the rest of the reading), the atoms' spans taken from the text itself; anything that
 /// goes wrong is read again with the trace, which places the error.
 pub(crate) fn read(smiles: &str) -> Result<Written, Error> {
+    // The direct reader first; it declines everything it does not handle, and the
+    // ring-number workaround below may have to refuse a text it would read.
+    if smiles.len() <= MAX_LENGTH && !(smiles.contains("%73") && smiles.contains("%74")) {
+        if let Some(written) = read_fast(smiles) {
+            if cfg!(debug_assertions) {
+                let full = read_with_purr(smiles);
+                debug_assert!(
+                    matches!(&full, Ok(t) if t.atoms == written.atoms && t.spans == written.spans && t.bonds == written.bonds),
+                    "the direct reading differs from purr's for {smiles}"
+                );
+            }
+            return Ok(written);
+        }
+    }
+    read_with_purr(smiles)
+}
+
+/// [`read`] through `purr` only: untraced where that is safe, traced otherwise.
+pub(crate) fn read_with_purr(smiles: &str) -> Result<Written, Error> {
     let info = scan(smiles)?;
     let text = ring_number_workaround(smiles)?;
     if info.chars <= MAX_INLINE_LENGTH {
