@@ -1,172 +1,325 @@
-//! The atom pre-filter: which (element, aromatic) pairs and charges a pattern atom could
-//! possibly match, worked out once at parse time. On the anchored atom it is
-//! `could_anchor`; on the others it spares most expression walks during the search.
+//! The atom pre-filter: which element/aromatic pairs, charges, hydrogen counts,
+//! connection counts and ring values a pattern atom could possibly match, worked out once
+//! at parse time. On the anchored atom it is `could_anchor`; on the others it spares most
+//! expression walks during the search.
 //!
 //! Each projection over-approximates: a conjunction intersects, a disjunction unites, and a
 //! negation complements only when its operand depends on that projection alone (otherwise
-//! it may hold anywhere). So a `false` from the filter is certain, a `true` is a maybe.
+//! it may hold anywhere). So a `false` from the filter is certain, a `true` is a maybe. An
+//! expression built only of conjunctions of one-projection parts (`[CX4;H1,H2;+0]`) is the
+//! box the projections span, so for it the filter is the answer (`exact`).
 
 use mol::Molecule;
 
 use crate::expr::Expr;
-use crate::primitive::AtomPrim;
+use crate::features::{self, AtomFeatures, COUNT_CAP, ELEMENT_CAP};
+use crate::primitive::{AtomPrim, BondPrim};
 
-/// Sets the projections are computed in.
-trait Lattice: Copy {
-    fn full() -> Self;
-    fn empty() -> Self;
-    fn meet(self, other: Self) -> Self;
-    fn join(self, other: Self) -> Self;
-    fn complement(self) -> Self;
+/// The count projections, by index into `AtomFilter::counts`.
+const TOTAL_H: usize = 0;
+const IMPLICIT_H: usize = 1;
+const DEGREE: usize = 2;
+const CONNECTIVITY: usize = 3;
+const RING_COUNT: usize = 4;
+const SMALLEST_RING: usize = 5;
+const COUNTS: usize = 6;
+
+/// Support bits: which projections an expression depends on.
+const S_ELEMENTS: u16 = 1;
+const S_CHARGES: u16 = 2;
+const fn s_count(k: usize) -> u16 {
+    4 << k
 }
+/// Something no projection holds (an environment, a mass number, a count beyond the cap).
+const S_OTHER: u16 = 1 << 15;
 
-/// (element, aromatic) pairs, bit `element * 2 + aromatic`, elements 0 to 127.
+/// A box: one set per projection. Element/aromatic pairs at bit [`features::element_bit`],
+/// charges at bit [`features::charge_bit`], counts at bit `min(count, COUNT_CAP)`.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
-struct Elements([u64; 4]);
-
-impl Lattice for Elements {
-    fn full() -> Self {
-        Elements([u64::MAX; 4])
-    }
-    fn empty() -> Self {
-        Elements([0; 4])
-    }
-    fn meet(self, o: Self) -> Self {
-        Elements(std::array::from_fn(|i| self.0[i] & o.0[i]))
-    }
-    fn join(self, o: Self) -> Self {
-        Elements(std::array::from_fn(|i| self.0[i] | o.0[i]))
-    }
-    fn complement(self) -> Self {
-        Elements(std::array::from_fn(|i| !self.0[i]))
-    }
+struct Sets {
+    elements: [u64; 4],
+    charges: u64,
+    counts: [u32; COUNTS],
 }
 
-impl Elements {
-    fn with(mut self, element: u8, aromatic: bool) -> Self {
-        let bit = element as usize * 2 + aromatic as usize;
-        if bit < 256 {
-            self.0[bit / 64] |= 1 << (bit % 64);
+impl Sets {
+    const FULL: Sets = Sets {
+        elements: [u64::MAX; 4],
+        charges: u64::MAX,
+        counts: [u32::MAX; COUNTS],
+    };
+    fn meet(self, o: Sets) -> Sets {
+        Sets {
+            elements: std::array::from_fn(|i| self.elements[i] & o.elements[i]),
+            charges: self.charges & o.charges,
+            counts: std::array::from_fn(|i| self.counts[i] & o.counts[i]),
         }
+    }
+    fn join(self, o: Sets) -> Sets {
+        Sets {
+            elements: std::array::from_fn(|i| self.elements[i] | o.elements[i]),
+            charges: self.charges | o.charges,
+            counts: std::array::from_fn(|i| self.counts[i] | o.counts[i]),
+        }
+    }
+    /// Full everywhere but in the projection `support` names (one bit), which is
+    /// complemented.
+    fn complement_in(self, support: u16) -> Sets {
+        let mut out = Sets::FULL;
+        match support {
+            S_ELEMENTS => out.elements = self.elements.map(|w| !w),
+            S_CHARGES => out.charges = !self.charges,
+            _ => {
+                for k in 0..COUNTS {
+                    if support == s_count(k) {
+                        out.counts[k] = !self.counts[k];
+                    }
+                }
+            }
+        }
+        out
+    }
+    fn element(mut self, element: u8, aromatic: bool) -> Sets {
+        let bit = features::element_bit(element, aromatic) as usize;
+        self.elements[bit / 64] |= 1 << (bit % 64);
         self
     }
-    fn contains(&self, element: u8, aromatic: bool) -> bool {
-        let bit = element as usize * 2 + aromatic as usize;
-        bit >= 256 || self.0[bit / 64] & (1 << (bit % 64)) != 0
+    fn has_element(&self, bit: u8) -> bool {
+        self.elements[bit as usize / 64] >> (bit % 64) & 1 != 0
+    }
+    #[inline]
+    fn admits(&self, f: &AtomFeatures) -> bool {
+        self.has_element(f.element_bit)
+            && self.charges >> f.charge_bit & 1 != 0
+            && self.counts[TOTAL_H] >> f.total_h & 1 != 0
+            && self.counts[CONNECTIVITY] >> f.connectivity & 1 != 0
+            && self.counts[DEGREE] >> f.degree & 1 != 0
+            && self.counts[IMPLICIT_H] >> f.implicit_h & 1 != 0
+            && self.counts[RING_COUNT] >> f.ring_count & 1 != 0
+            && self.counts[SMALLEST_RING] >> f.smallest_ring & 1 != 0
     }
 }
 
-/// Formal charges -32 to +31, bit `charge + 32`.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-struct Charges(u64);
+/// What one projection of an expression is: its box, the projections it depends on, and
+/// whether membership in the box is the expression's answer.
+#[derive(Clone, Copy, Debug)]
+struct Projected {
+    sets: Sets,
+    support: u16,
+    exact: bool,
+}
 
-impl Lattice for Charges {
-    fn full() -> Self {
-        Charges(u64::MAX)
+/// The box of one count value, or `None` (not decided by the mask) beyond the cap.
+fn count_set(k: usize, value: u8) -> Option<Projected> {
+    if value >= COUNT_CAP {
+        return None;
     }
-    fn empty() -> Self {
-        Charges(0)
-    }
-    fn meet(self, o: Self) -> Self {
-        Charges(self.0 & o.0)
-    }
-    fn join(self, o: Self) -> Self {
-        Charges(self.0 | o.0)
-    }
-    fn complement(self) -> Self {
-        Charges(!self.0)
+    let mut sets = Sets::FULL;
+    sets.counts[k] = 1 << value;
+    Some(Projected {
+        sets,
+        support: s_count(k),
+        exact: true,
+    })
+}
+
+/// Every count from one up ("at least one"): `h`, `R` and `r` written without a number.
+fn at_least_one(k: usize) -> Projected {
+    let mut sets = Sets::FULL;
+    sets.counts[k] = !1;
+    Projected {
+        sets,
+        support: s_count(k),
+        exact: true,
     }
 }
 
-impl Charges {
-    fn bit(charge: i8) -> Option<u32> {
-        let b = charge as i32 + 32;
-        (0..64).contains(&b).then_some(b as u32)
-    }
-    fn contains(&self, charge: i8) -> bool {
-        match Charges::bit(charge) {
-            Some(b) => self.0 & (1 << b) != 0,
-            None => true,
-        }
-    }
-}
-
-/// Projects an expression: the set, and whether it is exact (depends on this projection
-/// only).
-fn project<L: Lattice>(expr: &Expr<AtomPrim>, prim: &impl Fn(&AtomPrim) -> Option<L>) -> (L, bool) {
-    match expr {
-        Expr::Prim(p) => match prim(p) {
-            Some(set) => (set, true),
-            None => (L::full(), false),
-        },
-        Expr::Not(e) => match project(e, prim) {
-            (set, true) => (set.complement(), true),
-            (_, false) => (L::full(), false),
-        },
-        Expr::And(es) => es.iter().fold((L::full(), true), |(s, x), e| {
-            let (t, y) = project(e, prim);
-            (s.meet(t), x && y)
-        }),
-        Expr::Or(es) => es.iter().fold((L::empty(), true), |(s, x), e| {
-            let (t, y) = project(e, prim);
-            (s.join(t), x && y)
-        }),
-    }
-}
-
-fn elements_of(p: &AtomPrim) -> Option<Elements> {
+fn project_prim(p: &AtomPrim) -> Projected {
+    let other = Projected {
+        sets: Sets::FULL,
+        support: S_OTHER,
+        exact: false,
+    };
+    let elements = |sets: Sets| Projected {
+        sets,
+        support: S_ELEMENTS,
+        exact: true,
+    };
+    let no_elements = Sets {
+        elements: [0; 4],
+        ..Sets::FULL
+    };
     match *p {
-        AtomPrim::Any => Some(Elements::full()),
+        AtomPrim::Any => Projected {
+            sets: Sets::FULL,
+            support: 0,
+            exact: true,
+        },
         AtomPrim::Aromatic(want) => {
-            Some((0..128u8).fold(Elements::empty(), |s, e| s.with(e, want)))
+            elements((0..=ELEMENT_CAP).fold(no_elements, |s, e| s.element(e, want)))
         }
-        AtomPrim::Element { number, aromatic } => Some(match aromatic {
-            Some(want) => Elements::empty().with(number, want),
-            None => Elements::empty().with(number, false).with(number, true),
+        // Elements from the cap up share their bits: only below it does the bit decide.
+        AtomPrim::Element { number, .. } if number >= ELEMENT_CAP => other,
+        AtomPrim::Element { number, aromatic } => elements(match aromatic {
+            Some(want) => no_elements.element(number, want),
+            None => no_elements.element(number, false).element(number, true),
         }),
-        _ => None,
+        AtomPrim::Charge(c) if features::charge_exact(c) => Projected {
+            sets: Sets {
+                charges: 1 << features::charge_bit(c),
+                ..Sets::FULL
+            },
+            support: S_CHARGES,
+            exact: true,
+        },
+        AtomPrim::TotalH(n) => count_set(TOTAL_H, n).unwrap_or(other),
+        AtomPrim::ImplicitH(Some(n)) => count_set(IMPLICIT_H, n).unwrap_or(other),
+        AtomPrim::ImplicitH(None) => at_least_one(IMPLICIT_H),
+        AtomPrim::Degree(n) => count_set(DEGREE, n).unwrap_or(other),
+        AtomPrim::Connectivity(n) => count_set(CONNECTIVITY, n).unwrap_or(other),
+        AtomPrim::RingCount(Some(n)) => count_set(RING_COUNT, n).unwrap_or(other),
+        AtomPrim::RingCount(None) => at_least_one(RING_COUNT),
+        AtomPrim::RingSize(Some(n)) => count_set(SMALLEST_RING, n).unwrap_or(other),
+        AtomPrim::RingSize(None) => at_least_one(SMALLEST_RING),
+        AtomPrim::Charge(_) | AtomPrim::Isotope(_) | AtomPrim::Recursive(_) => other,
     }
 }
 
-fn charges_of(p: &AtomPrim) -> Option<Charges> {
-    match *p {
-        AtomPrim::Any => Some(Charges::full()),
-        AtomPrim::Charge(c) => Some(Charges::bit(c).map_or(Charges::empty(), |b| Charges(1 << b))),
-        _ => None,
+fn project(expr: &Expr<AtomPrim>) -> Projected {
+    match expr {
+        Expr::Prim(p) => project_prim(p),
+        Expr::Not(e) => {
+            let inner = project(e);
+            if !inner.exact || inner.support.count_ones() > 1 {
+                return Projected {
+                    sets: Sets::FULL,
+                    support: inner.support | S_OTHER,
+                    exact: false,
+                };
+            }
+            // An exact operand with no support holds everywhere (`*`): its negation holds
+            // nowhere, which the element projection can say.
+            let support = if inner.support == 0 {
+                S_ELEMENTS
+            } else {
+                inner.support
+            };
+            Projected {
+                sets: inner.sets.complement_in(support),
+                support,
+                exact: true,
+            }
+        }
+        Expr::And(es) => es.iter().map(project).fold(
+            Projected {
+                sets: Sets::FULL,
+                support: 0,
+                exact: true,
+            },
+            |acc, p| Projected {
+                sets: acc.sets.meet(p.sets),
+                support: acc.support | p.support,
+                exact: acc.exact && p.exact,
+            },
+        ),
+        Expr::Or(es) => {
+            let parts: Vec<Projected> = es.iter().map(project).collect();
+            let support = parts.iter().fold(0, |s, p| s | p.support);
+            let sets = parts.iter().skip(1).fold(
+                parts.first().map_or(
+                    Sets {
+                        elements: [0; 4],
+                        ..Sets::FULL
+                    },
+                    |p| p.sets,
+                ),
+                |s, p| s.join(p.sets),
+            );
+            Projected {
+                sets,
+                support,
+                // A union of boxes is a box only when they differ in one projection.
+                exact: parts.iter().all(|p| p.exact) && support.count_ones() <= 1,
+            }
+        }
     }
 }
 
-/// What a pattern atom could match, by element/aromaticity and by charge.
+/// What a pattern atom could match, as one set per projection.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub(crate) struct AtomFilter {
-    elements: Elements,
-    charges: Charges,
-    /// The expression depends on one projection only (`C`, `[c,n]`, `[+]`), so passing the
-    /// filter is the answer and the expression need not be walked.
+    sets: Sets,
+    /// Passing the filter is the answer: the expression need not be walked.
     pub(crate) exact: bool,
 }
 
 impl AtomFilter {
     pub(crate) fn new(expr: &Expr<AtomPrim>) -> AtomFilter {
-        let (elements, by_element) = project(expr, &elements_of);
-        let (charges, by_charge) = project(expr, &charges_of);
-        // An expression exact in one projection has the other one full (every primitive it
-        // holds projects to "anything" there), so `admits` alone decides it.
+        let p = project(expr);
         AtomFilter {
-            elements,
-            charges,
-            exact: by_element || by_charge,
+            sets: p.sets,
+            exact: p.exact,
         }
+    }
+    /// Also requires at least `min` explicit connections (the pattern bonds at the atom):
+    /// a requirement of the search, not of the expression, so `exact` is unchanged.
+    /// Counts beyond the cap are left to the caller.
+    pub(crate) fn with_min_degree(mut self, min: usize) -> AtomFilter {
+        if min <= COUNT_CAP as usize {
+            self.sets.counts[DEGREE] &= u32::MAX << min;
+        }
+        self
     }
     /// The element/aromatic projection alone.
     pub(crate) fn admits_element(&self, element: u8, aromatic: bool) -> bool {
-        self.elements.contains(element, aromatic)
+        self.sets
+            .has_element(features::element_bit(element, aromatic))
     }
+    /// Whether an atom with these values could match.
     #[inline]
-    pub(crate) fn admits(&self, molecule: &Molecule, atom: usize) -> bool {
-        let a = &molecule.atoms()[atom];
-        self.elements.contains(a.element, a.aromatic) && self.charges.contains(a.charge)
+    pub(crate) fn admits_features(&self, f: &AtomFeatures) -> bool {
+        self.sets.admits(f)
     }
+    /// Whether atom `atom` of `molecule` (in range) could match.
+    pub(crate) fn admits(&self, molecule: &Molecule, atom: usize) -> bool {
+        self.sets.admits(&AtomFeatures::of(molecule, atom))
+    }
+}
+
+/// Bond kinds: aromatic, order (1, 2, 3, other) and ring membership, `aromatic + 2 *
+/// order class + 8 * in ring`. Every bond primitive is a function of these, so a bond
+/// expression is a 16-bit mask, exact.
+fn bond_kind_parts(kind: u32) -> (bool, u8, bool) {
+    let order = match (kind >> 1) & 3 {
+        0 => 1,
+        1 => 2,
+        2 => 3,
+        // Any order but 1, 2 and 3 answers every primitive alike.
+        _ => 0,
+    };
+    (kind & 1 != 0, order, kind & 8 != 0)
+}
+
+/// The kind of a molecule bond, as [`bond_kind_parts`] reads it.
+#[inline]
+pub(crate) fn bond_kind(bond: &mol::Bond) -> u32 {
+    let order = match bond.order {
+        1 => 0,
+        2 => 1,
+        3 => 2,
+        _ => 3,
+    };
+    bond.aromatic as u32 | order << 1 | (bond.in_ring as u32) << 3
+}
+
+/// The bond kinds a bond expression holds for, as a mask over [`bond_kind`].
+pub(crate) fn bond_mask(expr: &Expr<BondPrim>) -> u16 {
+    (0..16u32)
+        .filter(|&k| {
+            let (aromatic, order, in_ring) = bond_kind_parts(k);
+            expr.eval(&mut |p| p.holds_parts(aromatic, order, in_ring))
+        })
+        .fold(0, |m, k| m | 1 << k)
 }
 
 #[cfg(test)]
@@ -178,7 +331,10 @@ mod tests {
         graph.filters[graph.root]
     }
     fn admits_element(f: &AtomFilter, element: u8, aromatic: bool) -> bool {
-        f.elements.contains(element, aromatic)
+        f.admits_element(element, aromatic)
+    }
+    fn has_charge(f: &AtomFilter, charge: i8) -> bool {
+        f.sets.charges >> features::charge_bit(charge) & 1 != 0
     }
 
     #[test]
@@ -212,28 +368,82 @@ mod tests {
     #[test]
     fn charge_sets_follow_the_expression() {
         let f = filter("[N+,N+0]");
-        assert!(f.charges.contains(1) && f.charges.contains(0));
-        assert!(!f.charges.contains(-1));
+        assert!(has_charge(&f, 1) && has_charge(&f, 0));
+        assert!(!has_charge(&f, -1));
         let f = filter("[O-]");
-        assert!(f.charges.contains(-1) && !f.charges.contains(0));
+        assert!(has_charge(&f, -1) && !has_charge(&f, 0));
         let f = filter("[!-;O]");
-        assert!(f.charges.contains(0) && !f.charges.contains(-1));
-        // Charges outside the table are never ruled out.
-        assert!(f.charges.contains(-100));
+        assert!(has_charge(&f, 0) && !has_charge(&f, -1));
+        // Charges beyond the table share a bit no single charge rules out.
+        assert!(has_charge(&f, -100));
         let f = filter("C");
-        assert!(f.charges.contains(-1) && f.charges.contains(0));
+        assert!(has_charge(&f, -1) && has_charge(&f, 0));
     }
 
     #[test]
-    fn exact_only_when_one_projection_decides() {
+    fn count_sets_follow_the_expression() {
+        let f = filter("[CX4;H1,H2]");
+        assert_eq!(f.sets.counts[TOTAL_H], 0b110);
+        assert_eq!(f.sets.counts[CONNECTIVITY], 1 << 4);
+        assert_eq!(f.sets.counts[DEGREE], u32::MAX);
+        let f = filter("[R;!r5]");
+        assert_eq!(f.sets.counts[RING_COUNT], !1);
+        assert_eq!(f.sets.counts[SMALLEST_RING], !(1 << 5));
+        // The pattern bonds at the atom: at least two connections.
+        let f = filter("C[N:1]C");
+        assert_eq!(f.sets.counts[DEGREE], u32::MAX << 2);
+        // A count beyond the cap is not decided by the mask.
+        let f = filter("[H40]");
+        assert_eq!(f.sets.counts[TOTAL_H], u32::MAX);
+        assert!(!f.exact);
+    }
+
+    #[test]
+    fn exact_when_the_projections_span_the_expression() {
         assert!(filter("C").exact);
         assert!(filter("[c,n]").exact);
         assert!(filter("[!#6]").exact);
         assert!(filter("[+]").exact);
         assert!(filter("*").exact);
-        assert!(!filter("[O-]").exact);
-        assert!(!filter("[CH3]").exact);
+        assert!(filter("[O-]").exact);
+        assert!(filter("[CH3]").exact);
+        assert!(filter("[CX4;H1,H2,H3;+0]").exact);
+        assert!(filter("[R]").exact);
+        assert!(filter("[!R;C]").exact);
+        // A union across projections is no box.
+        assert!(!filter("[C,H1]").exact);
+        assert!(filter("[!CH3]").exact); // `!` binds to C alone
+        assert!(!filter("[!C,!H3]").exact);
         assert!(!filter("[C;$(C=O)]").exact);
-        assert!(!filter("[R]").exact);
+        assert!(!filter("[13C]").exact);
+    }
+
+    #[test]
+    fn negated_any_admits_nothing() {
+        let f = filter("[!*]");
+        assert!(f.exact);
+        assert!(!admits_element(&f, 6, false) && !admits_element(&f, 7, true));
+    }
+
+    #[test]
+    fn bond_masks_follow_the_primitives() {
+        let mask = |text: &str| {
+            let (graph, _) = crate::parse::parse(text).expect("parses");
+            graph.bond_masks[0]
+        };
+        let m = crate::parse::parse("C1CCCCC1").expect("parses").0;
+        assert_eq!(m.bond_masks.len(), 6);
+        let single_chain = bond_kind(&mol::parse("CC").expect("reads").bonds()[0]);
+        let aromatic = bond_kind(&mol::parse("c1ccccc1").expect("reads").bonds()[0]);
+        let double = bond_kind(&mol::parse("C=C").expect("reads").bonds()[0]);
+        let has = |m: u16, k: u32| m >> k & 1 != 0;
+        assert!(has(mask("CC"), single_chain) && has(mask("CC"), aromatic));
+        assert!(!has(mask("CC"), double));
+        assert!(has(mask("C-C"), single_chain) && !has(mask("C-C"), aromatic));
+        assert!(has(mask("C=C"), double) && !has(mask("C=C"), aromatic));
+        assert!(has(mask("C:C"), aromatic) && !has(mask("C:C"), single_chain));
+        assert!(has(mask("C~C"), double) && has(mask("C~C"), aromatic));
+        assert!(has(mask("C@C"), aromatic) && !has(mask("C@C"), single_chain));
+        assert!(!has(mask("C!@C"), aromatic) && has(mask("C!@C"), double));
     }
 }

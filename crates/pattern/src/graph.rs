@@ -1,7 +1,7 @@
 //! A compiled pattern graph and its search plan.
 
 use crate::expr::Expr;
-use crate::filter::AtomFilter;
+use crate::filter::{self, AtomFilter};
 use crate::primitive::{AtomPrim, BondPrim};
 
 /// One pattern atom.
@@ -47,8 +47,11 @@ pub(crate) struct Graph {
     pub(crate) root: usize,
     /// Every atom but the root, in placement order.
     pub(crate) steps: Vec<Step>,
-    /// Cheap test per pattern atom.
+    /// Cheap test per pattern atom, the pattern bonds at the atom included (a molecule atom
+    /// with fewer neighbours cannot sit there).
     pub(crate) filters: Vec<AtomFilter>,
+    /// Bond kinds (`filter::bond_kind`) each pattern bond admits.
+    pub(crate) bond_masks: Vec<u16>,
     /// Pattern bonds per atom: a molecule atom with fewer neighbours cannot sit there.
     pub(crate) min_degree: Vec<usize>,
     /// Process-wide id per atom expression (the same expression in any pattern has the same
@@ -113,14 +116,20 @@ impl Graph {
             position[atom] = k;
         }
         // Each pattern bond must lead to a distinct molecule neighbour.
-        let min_degree = adjacency.iter().map(Vec::len).collect();
-        let filters = atoms.iter().map(|a| AtomFilter::new(&a.expr)).collect();
+        let min_degree: Vec<usize> = adjacency.iter().map(Vec::len).collect();
+        let filters = atoms
+            .iter()
+            .zip(&min_degree)
+            .map(|(a, &min)| AtomFilter::new(&a.expr).with_min_degree(min))
+            .collect();
+        let bond_masks = bonds.iter().map(|b| filter::bond_mask(&b.expr)).collect();
         Graph {
             atoms,
             bonds,
             root,
             steps,
             filters,
+            bond_masks,
             min_degree,
             expr_ids: Vec::new(),
         }

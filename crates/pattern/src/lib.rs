@@ -66,6 +66,7 @@
 
 mod error;
 mod expr;
+mod features;
 mod filter;
 mod graph;
 mod matcher;
@@ -80,7 +81,7 @@ use std::collections::HashMap;
 use std::sync::{Mutex, OnceLock};
 
 use graph::Graph;
-use matcher::{Distinct, EnvMemo, Search};
+use matcher::{Distinct, EnvMemo, Least, Search};
 
 /// A compiled pattern.
 #[derive(Clone, Debug)]
@@ -455,6 +456,23 @@ impl<'m> Matcher<'m> {
             .map(|atoms| Match { atoms })
             .collect()
     }
+    /// The least (compared atom by atom) of the matches [`Pattern::matches_at`] would
+    /// list, found without building the list: what a caller wanting one match that does
+    /// not depend on search order picks.
+    pub fn least_match_at(
+        &mut self,
+        pattern: &Pattern,
+        atom: usize,
+        avoid: &[usize],
+    ) -> Option<Vec<usize>> {
+        let mut search = Search::new(self.molecule, &pattern.subs, &pattern.env_ids, self.memo());
+        let mut least = Least::default();
+        search.search(&pattern.main, atom, avoid, &mut |a| {
+            least.add(a);
+            false
+        });
+        least.best
+    }
     /// Like [`Pattern::first_match_at`].
     pub fn first_match_at(
         &mut self,
@@ -568,10 +586,14 @@ mod tests {
         let pyridine = pattern("[nX2:1]");
         assert!(pyridine.could_anchor(&m, 7));
         assert!(!pyridine.could_anchor(&m, 5)); // aromatic carbon
-                                                // A filter pass is only a maybe: H count is not part of it.
-        let hydroxyl = pattern("[OH1]");
-        assert!(hydroxyl.could_anchor(&m, 2));
-        assert!(!hydroxyl.is_match_at(&m, 2, &[]));
+                                                // Hydrogen counts and connections are part of it too.
+        assert!(!pattern("[OH1]").could_anchor(&m, 2)); // C=O
+        assert!(!pattern("[OX2]").could_anchor(&m, 2));
+        assert!(!pattern("C[O:1]C").could_anchor(&m, 3)); // one bond, pattern has two
+                                                          // A pass is only a maybe where an environment is involved.
+        let ester = pattern("[OX1;$(O=C[OX2][#6])]");
+        assert!(ester.could_anchor(&m, 2));
+        assert!(!ester.is_match_at(&m, 2, &[]));
     }
 
     #[test]
@@ -631,6 +653,8 @@ mod tests {
                         single.first().cloned()
                     );
                     assert_eq!(p.first_match_at(&m, atom, &[]), single.first().cloned());
+                    let least = single.iter().map(|m| m.atoms.clone()).min();
+                    assert_eq!(matcher.least_match_at(p, atom, &[]), least);
                 }
             }
         }

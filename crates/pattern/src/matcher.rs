@@ -13,6 +13,8 @@ use std::collections::HashSet;
 use mol::Molecule;
 
 use crate::expr::Expr;
+use crate::features::{FeatureTable, COUNT_CAP};
+use crate::filter::bond_kind;
 use crate::graph::Graph;
 use crate::primitive::AtomPrim;
 
@@ -53,6 +55,9 @@ pub(crate) struct EnvMemo {
     touched_expr: Vec<u32>,
     /// Per (row, atom): 0 not asked yet, 1 no, 2 yes.
     table: Vec<u8>,
+    /// The atoms' values the primitives test; unsized (every atom read afresh) for a
+    /// single call, sized for a matcher.
+    pub(crate) features: FeatureTable,
 }
 
 impl EnvMemo {
@@ -67,6 +72,7 @@ impl EnvMemo {
             touched_env: Vec::new(),
             touched_expr: Vec::new(),
             table: Vec::new(),
+            features: FeatureTable::default(),
         }
     }
 
@@ -83,14 +89,17 @@ impl EnvMemo {
         self.touched_env.clear();
         self.touched_expr.clear();
         self.table.clear();
+        self.features.reset(atoms);
     }
 
     /// A memo that also keeps atom-expression answers, for many patterns on one molecule.
     pub(crate) fn for_molecule(atoms: usize) -> EnvMemo {
-        EnvMemo {
+        let mut memo = EnvMemo {
             keep_atoms: true,
             ..EnvMemo::new(atoms)
-        }
+        };
+        memo.features.reset(atoms);
+        memo
     }
 
     /// Adds one row to the table, reserving room for many at the first.
@@ -197,9 +206,10 @@ impl<'a> Search<'a> {
     /// Whether molecule atom `atom` satisfies an atom expression.
     pub(crate) fn atom_matches(&mut self, expr: &Expr<AtomPrim>, atom: usize) -> bool {
         let molecule = self.molecule;
+        let f = self.memo.features.get(molecule, atom);
         expr.eval(&mut |p| match p {
             AtomPrim::Recursive(id) => self.environment(*id as usize, atom),
-            _ => p.holds(molecule, atom),
+            _ => p.holds_with(&f, molecule, atom),
         })
     }
 
@@ -208,8 +218,12 @@ impl<'a> Search<'a> {
     #[inline]
     fn atom_ok(&mut self, graph: &Graph, at: usize, atom: usize) -> bool {
         let filter = &graph.filters[at];
-        if self.molecule.degree(atom) < graph.min_degree[at] || !filter.admits(self.molecule, atom)
-        {
+        if !filter.admits_features(&self.memo.features.get(self.molecule, atom)) {
+            return false;
+        }
+        // The filter holds the pattern bonds at the atom up to the cap only.
+        let min = graph.min_degree[at];
+        if min > COUNT_CAP as usize && self.molecule.degree(atom) < min {
             return false;
         }
         if filter.exact {
@@ -298,13 +312,13 @@ impl<'a> Search<'a> {
         let molecule = self.molecule;
         let bonds = molecule.bonds();
         let from = assign[s.parent];
-        let bond_expr = &graph.bonds[s.bond].expr;
+        let mask = graph.bond_masks[s.bond];
         for nb in molecule.neighbors(from) {
             let candidate = nb.atom;
-            if assign.contains(&candidate) || avoid.contains(&candidate) {
+            if mask >> bond_kind(&bonds[nb.bond]) & 1 == 0 {
                 continue;
             }
-            if !bond_expr.eval(&mut |b| b.holds(&bonds[nb.bond])) {
+            if assign.contains(&candidate) || avoid.contains(&candidate) {
                 continue;
             }
             if !self.atom_ok(graph, s.atom, candidate) {
@@ -313,7 +327,7 @@ impl<'a> Search<'a> {
             let closed = s.closures.iter().all(|&(other, bond)| {
                 molecule
                     .bond_between(candidate, assign[other])
-                    .is_some_and(|mb| graph.bonds[bond].expr.eval(&mut |b| b.holds(&bonds[mb])))
+                    .is_some_and(|mb| graph.bond_masks[bond] >> bond_kind(&bonds[mb]) & 1 != 0)
             });
             if !closed {
                 continue;
@@ -361,5 +375,65 @@ impl Distinct {
             }
         }
         self.matches.push(atoms.to_vec());
+    }
+}
+
+/// Keeps the least (atom by atom) of the matches a [`Distinct`] would keep, without
+/// storing them: a match counts only when its atom set was not seen before, as there.
+#[derive(Default)]
+pub(crate) struct Least {
+    /// Sorted atom sets seen, back to back, while there are few.
+    keys: Vec<usize>,
+    /// How many sets `keys` holds.
+    count: usize,
+    /// All sorted atom sets, once there are many.
+    seen: Option<HashSet<Vec<usize>>>,
+    /// The least match kept so far.
+    pub(crate) best: Option<Vec<usize>>,
+}
+
+impl Least {
+    pub(crate) fn add(&mut self, atoms: &[usize]) {
+        let n = atoms.len();
+        let mut inline = [0usize; INLINE];
+        let mut heap = Vec::new();
+        let key: &mut [usize] = if n <= INLINE {
+            &mut inline[..n]
+        } else {
+            heap.extend_from_slice(atoms);
+            &mut heap
+        };
+        key.copy_from_slice(atoms);
+        key.sort_unstable();
+        if self.count < DISTINCT_LINEAR {
+            if n > 0 && self.keys.chunks_exact(n).any(|k| k == key) {
+                return;
+            }
+            if n == 0 && self.count > 0 {
+                return;
+            }
+            self.keys.extend_from_slice(key);
+            self.count += 1;
+        } else {
+            let seen = self.seen.get_or_insert_with(|| {
+                if n == 0 {
+                    std::iter::once(Vec::new()).collect()
+                } else {
+                    self.keys.chunks_exact(n).map(<[usize]>::to_vec).collect()
+                }
+            });
+            if !seen.insert(key.to_vec()) {
+                return;
+            }
+            self.count += 1;
+        }
+        match &mut self.best {
+            Some(best) if best.as_slice() <= atoms => {}
+            Some(best) => {
+                best.clear();
+                best.extend_from_slice(atoms);
+            }
+            None => self.best = Some(atoms.to_vec()),
+        }
     }
 }
