@@ -38,54 +38,83 @@ pub struct FoundSite {
 pub fn find_sites(library: &Library, molecule: &Molecule) -> Vec<FoundSite> {
     let index = site_index(library);
     let atoms = molecule.atoms();
-    let symmetry = mol::symmetry_classes(molecule);
-    let mut groups: HashMap<u32, usize> = HashMap::new();
     let mut sites = Vec::new();
     // Shared by every class tried on this molecule: an environment (`!$(NC=O)`) written in
     // many classes is worked out once per atom.
-    let mut matcher = pattern::Matcher::new(molecule);
+    let mut matcher = pattern::Matcher::with_all_atoms(molecule);
     for (atom, a) in atoms.iter().enumerate() {
         // Explicit hydrogens never carry a site themselves: their heavy atom does.
         if a.element == 1 {
             continue;
         }
-        for &class in index.candidates(a.element) {
+        for &class in index.candidates(a.element, a.aromatic) {
             let Some(pattern) = index.patterns[class] else {
                 continue;
             };
-            // One search: an empty list is a non-match, and `is_match_at` first would only
-            // repeat the search for the classes that match.
+            // Most classes are ruled out here, from the matcher's table, before any search
+            // is set up.
             if !matcher.could_anchor(pattern, atom) {
                 continue;
             }
-            let Some(best) = matcher
-                .matches_at(pattern, atom, &[])
-                .into_iter()
-                .map(|m| m.atoms)
-                .min()
-            else {
+            let Some(best) = matcher.least_match_at(pattern, atom, &[]) else {
                 continue;
             };
             let mapped = index.maps[class]
                 .iter()
                 .filter_map(|&(map, p)| best.get(p).map(|&at| (map, at)))
                 .collect();
-            // An atom without a symmetry class (never expected) is its own group.
-            let key = symmetry
-                .get(atom)
-                .copied()
-                .map_or(u32::MAX - atom as u32, |k| k);
-            let next = groups.len();
-            let group = *groups.entry(key).or_insert(next);
             sites.push(FoundSite {
                 class,
                 atom,
                 matched: best,
                 mapped,
-                group,
+                group: 0,
             });
             break;
         }
     }
+    number_groups(molecule, &mut sites);
     sites
+}
+
+/// Numbers the symmetry groups of `sites` (in molecule order) from 0 in order of first
+/// appearance.
+///
+/// Symmetry classes only split the classes of their starting invariant
+/// (`mol::symmetry_classes`: element, isotope, charge, degree, hydrogens, aromaticity, ring
+/// membership), so sites whose atoms all differ in it are all apart, each its own group,
+/// and the classes are worked out only when two site atoms share it.
+fn number_groups(molecule: &Molecule, sites: &mut [FoundSite]) {
+    let invariant = |atom: usize| {
+        let a = &molecule.atoms()[atom];
+        (
+            a.element,
+            a.isotope.unwrap_or(0),
+            a.charge,
+            molecule.degree(atom),
+            molecule.total_hydrogens(atom),
+            a.aromatic,
+            a.ring_count > 0,
+        )
+    };
+    let mut invariants: Vec<_> = sites.iter().map(|s| invariant(s.atom)).collect();
+    invariants.sort_unstable();
+    let shared = invariants.windows(2).any(|w| w[0] == w[1]);
+    if !shared {
+        for (i, s) in sites.iter_mut().enumerate() {
+            s.group = i;
+        }
+        return;
+    }
+    let symmetry = mol::symmetry_classes(molecule);
+    let mut groups: HashMap<u32, usize> = HashMap::new();
+    for s in sites.iter_mut() {
+        // An atom without a symmetry class (never expected) is its own group.
+        let key = symmetry
+            .get(s.atom)
+            .copied()
+            .map_or(u32::MAX - s.atom as u32, |k| k);
+        let next = groups.len();
+        s.group = *groups.entry(key).or_insert(next);
+    }
 }

@@ -93,9 +93,7 @@ pub fn recognize<'a>(
                 continue;
             }
         }
-        if !p.could_anchor(molecule, atom) {
-            continue;
-        }
+        // The search tries the anchor's pre-filter first: no `could_anchor` needed.
         let Some(m) = matcher.first_match_at(p, atom, &fence) else {
             continue;
         };

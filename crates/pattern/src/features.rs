@@ -33,6 +33,54 @@ pub(crate) fn charge_exact(charge: i8) -> bool {
     (-CHARGE_CAP..CHARGE_CAP).contains(&charge)
 }
 
+/// Element classes of the neighbour signature: C, c, N, n, O, o, S, s, P (either), the
+/// halogens, H, anything else.
+pub(crate) const ELEMENT_CLASSES: u32 = 12;
+
+/// The neighbour-signature element class of an element/aromatic bit.
+pub(crate) fn element_class(element_bit: u8) -> u32 {
+    let (element, aromatic) = (element_bit / 2, element_bit % 2 == 1);
+    match element {
+        6 | 7 | 8 | 16 => {
+            let base = match element {
+                6 => 0,
+                7 => 2,
+                8 => 4,
+                _ => 6,
+            };
+            base + aromatic as u32
+        }
+        15 => 8,
+        9 | 17 | 35 | 53 => 9,
+        1 => 10,
+        _ => 11,
+    }
+}
+
+/// Bond groups of the neighbour signature, by bond kind (`filter::bond_kind`): single,
+/// double, triple, aromatic, any other order.
+pub(crate) fn bond_group(kind: u32) -> u32 {
+    if kind & 1 != 0 {
+        3
+    } else {
+        match (kind >> 1) & 3 {
+            0 => 0,
+            1 => 1,
+            2 => 2,
+            _ => 4,
+        }
+    }
+}
+
+/// The signature bit of a neighbour of this class through a bond of this group.
+pub(crate) fn signature_bit(class: u32, group: u32) -> u64 {
+    1 << (group * ELEMENT_CLASSES + class)
+}
+
+/// Set in every signature, never in a requirement from a neighbour: an unused requirement
+/// slot holds only it, so it always passes.
+pub(crate) const SIGNATURE_ALWAYS: u64 = 1 << 63;
+
 /// The count bit of the filter masks.
 #[inline]
 fn count(value: usize) -> u8 {
@@ -59,53 +107,91 @@ pub(crate) struct AtomFeatures {
     pub(crate) ring_count: u8,
     /// `r`: smallest SSSR ring size, capped (0: not in a ring).
     pub(crate) smallest_ring: u8,
-    /// Whether the fields were worked out (for the lazy table).
-    pub(crate) known: bool,
+    /// The neighbours by element class and bond group ([`signature_bit`]), with
+    /// [`SIGNATURE_ALWAYS`].
+    pub(crate) neighbors: u64,
 }
 
 impl AtomFeatures {
     /// Reads atom `atom` of `molecule` (which must be in range).
     pub(crate) fn of(molecule: &Molecule, atom: usize) -> AtomFeatures {
-        let a = &molecule.atoms()[atom];
-        let degree = molecule.degree(atom);
+        let atoms = molecule.atoms();
+        let bonds = molecule.bonds();
+        let a = &atoms[atom];
+        let neighbors = molecule.neighbors(atom);
+        let degree = neighbors.len();
+        // One walk over the neighbours for the signature and the hydrogens written as atoms.
+        let mut signature = SIGNATURE_ALWAYS;
+        let mut explicit_h = 0usize;
+        for nb in neighbors {
+            let t = &atoms[nb.atom];
+            explicit_h += (t.element == 1) as usize;
+            let class = element_class(element_bit(t.element, t.aromatic));
+            let group = bond_group(crate::filter::bond_kind(&bonds[nb.bond]));
+            signature |= signature_bit(class, group);
+        }
         AtomFeatures {
             element_bit: element_bit(a.element, a.aromatic),
             charge_bit: charge_bit(a.charge),
-            total_h: count(molecule.total_hydrogens(atom)),
+            total_h: count(a.hydrogens as usize + explicit_h),
             implicit_h: count(a.hydrogens as usize),
             degree: count(degree),
             connectivity: count(degree + a.hydrogens as usize),
             ring_count: count(a.ring_count as usize),
             smallest_ring: count(a.smallest_ring as usize),
-            known: true,
+            neighbors: signature,
         }
+    }
+
+    /// Whether the values were worked out (a signature always has a bit set).
+    #[inline]
+    fn known(&self) -> bool {
+        self.neighbors != 0
     }
 }
 
-/// The values of a molecule's atoms, worked out on first use: a matcher made for one
-/// substituent touches a few atoms only.
+/// The values of the atoms of one molecule, worked out on first use (a matcher made for
+/// one substituent touches a few atoms only); empty for a single call, which reads each
+/// atom afresh.
 #[derive(Clone, Debug, Default)]
 pub(crate) struct FeatureTable {
     atoms: Vec<AtomFeatures>,
 }
 
 impl FeatureTable {
-    /// Forgets every atom, for a molecule of `atoms` atoms, keeping the buffer.
-    pub(crate) fn reset(&mut self, atoms: usize) {
+    /// Forgets every atom, for `molecule`, keeping the buffer.
+    pub(crate) fn reset(&mut self, molecule: &Molecule) {
         self.atoms.clear();
-        self.atoms.resize(atoms, AtomFeatures::default());
+        self.atoms
+            .resize(molecule.atoms().len(), AtomFeatures::default());
     }
 
-    /// The values of `atom` (in range of the molecule the table was reset for).
+    /// Works out every atom of `molecule` at once, keeping the buffer.
+    pub(crate) fn fill(&mut self, molecule: &Molecule) {
+        self.atoms.clear();
+        self.atoms
+            .extend((0..molecule.atoms().len()).map(|i| AtomFeatures::of(molecule, i)));
+    }
+
+    /// The values of `atom`, from the table when they were worked out, else afresh (not
+    /// kept).
     #[inline]
+    pub(crate) fn peek(&self, molecule: &Molecule, atom: usize) -> AtomFeatures {
+        match self.atoms.get(atom) {
+            Some(f) if f.known() => *f,
+            _ => AtomFeatures::of(molecule, atom),
+        }
+    }
+
+    /// The values of `atom` (in range of the molecule).
+    #[inline(always)]
     pub(crate) fn get(&mut self, molecule: &Molecule, atom: usize) -> AtomFeatures {
         match self.atoms.get_mut(atom) {
-            Some(f) if f.known => *f,
+            Some(f) if f.known() => *f,
             Some(f) => {
                 *f = AtomFeatures::of(molecule, atom);
                 *f
             }
-            // Never expected (the table is sized for the molecule); still correct.
             None => AtomFeatures::of(molecule, atom),
         }
     }

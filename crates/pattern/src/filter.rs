@@ -134,7 +134,7 @@ fn at_least_one(k: usize) -> Projected {
     }
 }
 
-fn project_prim(p: &AtomPrim) -> Projected {
+fn project_prim(p: &AtomPrim, envs: &[AtomFilter]) -> Projected {
     let other = Projected {
         sets: Sets::FULL,
         support: S_OTHER,
@@ -181,13 +181,20 @@ fn project_prim(p: &AtomPrim) -> Projected {
         AtomPrim::RingCount(None) => at_least_one(RING_COUNT),
         AtomPrim::RingSize(Some(n)) => count_set(SMALLEST_RING, n).unwrap_or(other),
         AtomPrim::RingSize(None) => at_least_one(SMALLEST_RING),
-        AtomPrim::Charge(_) | AtomPrim::Isotope(_) | AtomPrim::Recursive(_) => other,
+        // An environment holds only where its first atom can sit.
+        AtomPrim::Recursive(id) => envs.get(id as usize).map_or(other, |env| Projected {
+            sets: env.sets,
+            support: S_OTHER,
+            exact: false,
+        }),
+        AtomPrim::Charge(_) | AtomPrim::Isotope(_) => other,
     }
 }
 
-fn project(expr: &Expr<AtomPrim>) -> Projected {
+fn project(expr: &Expr<AtomPrim>, envs: &[AtomFilter]) -> Projected {
+    let project = |e| project(e, envs);
     match expr {
-        Expr::Prim(p) => project_prim(p),
+        Expr::Prim(p) => project_prim(p, envs),
         Expr::Not(e) => {
             let inner = project(e);
             if !inner.exact || inner.support.count_ones() > 1 {
@@ -245,19 +252,35 @@ fn project(expr: &Expr<AtomPrim>) -> Projected {
     }
 }
 
+/// Neighbour requirements kept per pattern atom (more are dropped, which only weakens the
+/// filter).
+const NEEDS: usize = 4;
+
 /// What a pattern atom could match, as one set per projection.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub(crate) struct AtomFilter {
     sets: Sets,
+    /// Per pattern neighbour, the neighbour signature bits (`features::signature_bit`) one
+    /// of which the molecule atom must have; [`features::SIGNATURE_ALWAYS`] when unused.
+    needs: [u64; NEEDS],
     /// Passing the filter is the answer: the expression need not be walked.
     pub(crate) exact: bool,
 }
 
 impl AtomFilter {
+    /// The filter of an expression whose environments are not known yet (each may hold
+    /// anywhere).
     pub(crate) fn new(expr: &Expr<AtomPrim>) -> AtomFilter {
-        let p = project(expr);
+        AtomFilter::with_environments(expr, &[])
+    }
+    /// The filter of an expression, given the filter of each environment's first atom
+    /// (`envs[id]` for `$()` number `id`): an environment narrows the filter to where its
+    /// first atom can sit.
+    pub(crate) fn with_environments(expr: &Expr<AtomPrim>, envs: &[AtomFilter]) -> AtomFilter {
+        let p = project(expr, envs);
         AtomFilter {
             sets: p.sets,
+            needs: [features::SIGNATURE_ALWAYS; NEEDS],
             exact: p.exact,
         }
     }
@@ -270,6 +293,40 @@ impl AtomFilter {
         }
         self
     }
+    /// Also requires, for each pattern neighbour (its filter, the bond kinds between), a
+    /// molecule neighbour of an element class and bond group it admits: a requirement of
+    /// the search, not of the expression, so `exact` is unchanged.
+    pub(crate) fn with_neighbors(mut self, neighbors: &[(AtomFilter, u16)]) -> AtomFilter {
+        let mut slot = 0;
+        for (filter, mask) in neighbors {
+            if slot == NEEDS {
+                break;
+            }
+            let classes = (0..=255u8)
+                .filter(|&bit| filter.sets.has_element(bit))
+                .fold(0u32, |c, bit| c | 1 << features::element_class(bit));
+            let groups = (0..16u32)
+                .filter(|&k| mask >> k & 1 != 0)
+                .fold(0u32, |g, k| g | 1 << features::bond_group(k));
+            let mut need = 0u64;
+            for class in 0..features::ELEMENT_CLASSES {
+                for group in 0..5 {
+                    if classes >> class & 1 != 0 && groups >> group & 1 != 0 {
+                        need |= features::signature_bit(class, group);
+                    }
+                }
+            }
+            let all = (0..features::ELEMENT_CLASSES)
+                .flat_map(|c| (0..5).map(move |g| features::signature_bit(c, g)))
+                .fold(0, |a, b| a | b);
+            // One that any neighbour meets says nothing.
+            if need != all {
+                self.needs[slot] = need;
+                slot += 1;
+            }
+        }
+        self
+    }
     /// The element/aromatic projection alone.
     pub(crate) fn admits_element(&self, element: u8, aromatic: bool) -> bool {
         self.sets
@@ -278,11 +335,11 @@ impl AtomFilter {
     /// Whether an atom with these values could match.
     #[inline]
     pub(crate) fn admits_features(&self, f: &AtomFeatures) -> bool {
-        self.sets.admits(f)
+        self.sets.admits(f) && self.needs.iter().all(|&n| f.neighbors & n != 0)
     }
     /// Whether atom `atom` of `molecule` (in range) could match.
     pub(crate) fn admits(&self, molecule: &Molecule, atom: usize) -> bool {
-        self.sets.admits(&AtomFeatures::of(molecule, atom))
+        self.admits_features(&AtomFeatures::of(molecule, atom))
     }
 }
 

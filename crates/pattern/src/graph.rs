@@ -52,6 +52,9 @@ pub(crate) struct Graph {
     pub(crate) filters: Vec<AtomFilter>,
     /// Bond kinds (`filter::bond_kind`) each pattern bond admits.
     pub(crate) bond_masks: Vec<u16>,
+    /// Per pattern atom, its neighbours placed after it, with the bond kinds between:
+    /// where the search looks ahead.
+    pub(crate) ahead: Vec<Vec<(usize, u16)>>,
     /// Pattern bonds per atom: a molecule atom with fewer neighbours cannot sit there.
     pub(crate) min_degree: Vec<usize>,
     /// Process-wide id per atom expression (the same expression in any pattern has the same
@@ -61,6 +64,18 @@ pub(crate) struct Graph {
 }
 
 impl Graph {
+    /// Works the filters out again, now that the filter of each environment's first atom is
+    /// known (see [`AtomFilter::with_environments`]).
+    pub(crate) fn refilter(&mut self, envs: &[AtomFilter]) {
+        self.filters = filters(
+            &self.atoms,
+            &self.bonds,
+            &self.bond_masks,
+            &self.min_degree,
+            envs,
+        );
+    }
+
     /// Builds the search plan rooted at `root`. The graph must be connected (the parser
     /// refuses `.`).
     pub(crate) fn new(mut atoms: Vec<PatternAtom>, bonds: Vec<PatternBond>, root: usize) -> Graph {
@@ -117,12 +132,19 @@ impl Graph {
         }
         // Each pattern bond must lead to a distinct molecule neighbour.
         let min_degree: Vec<usize> = adjacency.iter().map(Vec::len).collect();
-        let filters = atoms
+        let bond_masks: Vec<u16> = bonds.iter().map(|b| filter::bond_mask(&b.expr)).collect();
+        let filters = filters(&atoms, &bonds, &bond_masks, &min_degree, &[]);
+        let ahead = adjacency
             .iter()
-            .zip(&min_degree)
-            .map(|(a, &min)| AtomFilter::new(&a.expr).with_min_degree(min))
+            .enumerate()
+            .map(|(atom, links)| {
+                links
+                    .iter()
+                    .filter(|&&(nb, _)| position[nb] > position[atom])
+                    .map(|&(nb, bond)| (nb, bond_masks[bond]))
+                    .collect()
+            })
             .collect();
-        let bond_masks = bonds.iter().map(|b| filter::bond_mask(&b.expr)).collect();
         Graph {
             atoms,
             bonds,
@@ -130,8 +152,40 @@ impl Graph {
             steps,
             filters,
             bond_masks,
+            ahead,
             min_degree,
             expr_ids: Vec::new(),
         }
     }
+}
+
+/// The filter of each pattern atom: its expression (environments narrowed by `envs`, the
+/// filters of their first atoms), the pattern bonds at it, and what its pattern neighbours
+/// need of its molecule neighbours.
+fn filters(
+    atoms: &[PatternAtom],
+    bonds: &[PatternBond],
+    bond_masks: &[u16],
+    min_degree: &[usize],
+    envs: &[AtomFilter],
+) -> Vec<AtomFilter> {
+    let own: Vec<AtomFilter> = atoms
+        .iter()
+        .zip(min_degree)
+        .map(|(a, &min)| AtomFilter::with_environments(&a.expr, envs).with_min_degree(min))
+        .collect();
+    (0..atoms.len())
+        .map(|i| {
+            let neighbors: Vec<(AtomFilter, u16)> = bonds
+                .iter()
+                .zip(bond_masks)
+                .filter_map(|(b, &mask)| match (b.a == i, b.b == i) {
+                    (true, false) => Some((own[b.b], mask)),
+                    (false, true) => Some((own[b.a], mask)),
+                    _ => None,
+                })
+                .collect();
+            own[i].with_neighbors(&neighbors)
+        })
+        .collect()
 }

@@ -124,6 +124,15 @@ impl Pattern {
     pub fn parse(text: &str) -> Result<Pattern, PatternError> {
         let (main, subs) = parse::parse(text)?;
         let (mut main, mut subs) = (main, subs);
+        // An environment's own environments are numbered after it, so working from the last
+        // one back, each graph's environments have their filters when it is refiltered.
+        let mut env_filters =
+            vec![filter::AtomFilter::new(&expr::Expr::Prim(primitive::AtomPrim::Any)); subs.len()];
+        for id in (0..subs.len()).rev() {
+            subs[id].refilter(&env_filters);
+            env_filters[id] = subs[id].filters[subs[id].root];
+        }
+        main.refilter(&env_filters);
         let anchor_filter = main.filters[main.root];
         let env_ids = environment_ids(text, subs.len());
         for graph in std::iter::once(&mut main).chain(subs.iter_mut()) {
@@ -409,33 +418,49 @@ impl Drop for Matcher<'_> {
 impl<'m> Matcher<'m> {
     /// A matcher for `molecule`, with nothing remembered yet.
     pub fn new(molecule: &'m Molecule) -> Matcher<'m> {
-        let atoms = molecule.atoms().len();
         // The buffers of the thread's last matcher, when there is one: site finding makes
         // a matcher per molecule, and recognition one per substituent.
         let memo = SPARE_MEMO
             .with(|spare| spare.borrow_mut().take())
             .map(|mut memo| {
-                memo.reuse(atoms);
+                memo.reuse(molecule);
                 memo
             })
-            .unwrap_or_else(|| Box::new(EnvMemo::for_molecule(atoms)));
+            .unwrap_or_else(|| Box::new(EnvMemo::for_molecule(molecule)));
         Matcher {
             molecule,
             memo: Some(memo),
         }
     }
     fn memo(&mut self) -> &mut EnvMemo {
+        let molecule = self.molecule;
         self.memo
-            .get_or_insert_with(|| Box::new(EnvMemo::for_molecule(self.molecule.atoms().len())))
+            .get_or_insert_with(|| Box::new(EnvMemo::for_molecule(molecule)))
     }
     /// The molecule it matches against.
     pub fn molecule(&self) -> &'m Molecule {
         self.molecule
     }
-    /// Like [`Pattern::could_anchor`].
+    /// A matcher for `molecule` that works out what the primitives test on every atom at
+    /// once, instead of on first use: for trying many patterns on every atom (site
+    /// finding), where [`Matcher::could_anchor`] then reads a table.
+    pub fn with_all_atoms(molecule: &'m Molecule) -> Matcher<'m> {
+        let mut matcher = Matcher::new(molecule);
+        matcher.memo().features.fill(molecule);
+        matcher
+    }
+    /// Like [`Pattern::could_anchor`], from the matcher's table of atom values where the
+    /// atom is in it.
     #[inline]
     pub fn could_anchor(&self, pattern: &Pattern, atom: usize) -> bool {
-        pattern.could_anchor(self.molecule, atom)
+        let molecule = self.molecule;
+        atom < molecule.atoms().len()
+            && match &self.memo {
+                Some(memo) => pattern
+                    .anchor_filter
+                    .admits_features(&memo.features.peek(molecule, atom)),
+                None => pattern.anchor_filter.admits(molecule, atom),
+            }
     }
     /// Like [`Pattern::is_match_at`].
     pub fn is_match_at(&mut self, pattern: &Pattern, atom: usize, avoid: &[usize]) -> bool {

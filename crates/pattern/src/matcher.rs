@@ -55,8 +55,8 @@ pub(crate) struct EnvMemo {
     touched_expr: Vec<u32>,
     /// Per (row, atom): 0 not asked yet, 1 no, 2 yes.
     table: Vec<u8>,
-    /// The atoms' values the primitives test; unsized (every atom read afresh) for a
-    /// single call, sized for a matcher.
+    /// The atoms' values the primitives test; empty (every atom read afresh) for a single
+    /// call, kept for a matcher.
     pub(crate) features: FeatureTable,
 }
 
@@ -76,8 +76,9 @@ impl EnvMemo {
         }
     }
 
-    /// Forgets every answer, keeping the buffers, for a molecule of `atoms` atoms.
-    pub(crate) fn reuse(&mut self, atoms: usize) {
+    /// Forgets every answer, keeping the buffers, for `molecule`.
+    pub(crate) fn reuse(&mut self, molecule: &Molecule) {
+        let atoms = molecule.atoms().len();
         self.atoms = atoms;
         self.recent_len = 0;
         for &e in &self.touched_env {
@@ -89,16 +90,16 @@ impl EnvMemo {
         self.touched_env.clear();
         self.touched_expr.clear();
         self.table.clear();
-        self.features.reset(atoms);
+        self.features.reset(molecule);
     }
 
     /// A memo that also keeps atom-expression answers, for many patterns on one molecule.
-    pub(crate) fn for_molecule(atoms: usize) -> EnvMemo {
+    pub(crate) fn for_molecule(molecule: &Molecule) -> EnvMemo {
         let mut memo = EnvMemo {
             keep_atoms: true,
-            ..EnvMemo::new(atoms)
+            ..EnvMemo::new(molecule.atoms().len())
         };
-        memo.features.reset(atoms);
+        memo.features.reset(molecule);
         memo
     }
 
@@ -293,8 +294,39 @@ impl<'a> Search<'a> {
             heap.resize(n, UNPLACED);
             &mut heap
         };
+        if !self.ahead_ok(graph, graph.root, anchor, assign, avoid) {
+            return false;
+        }
         assign[graph.root] = anchor;
         self.extend(graph, 0, assign, avoid, sink)
+    }
+
+    /// Whether every pattern neighbour placed after `at` still has somewhere to go once
+    /// `atom` sits on `at`: a free molecule neighbour through an admitted bond, passing its
+    /// filter. A necessary condition, so it only cuts branches that hold no match, and
+    /// matches are found in the same order; it spares walking a ring or chain around an
+    /// anchor that lacks a neighbour the pattern needs further on.
+    #[inline]
+    fn ahead_ok(
+        &mut self,
+        graph: &Graph,
+        at: usize,
+        atom: usize,
+        assign: &[usize],
+        avoid: &[usize],
+    ) -> bool {
+        let molecule = self.molecule;
+        let bonds = molecule.bonds();
+        let features = &mut self.memo.features;
+        graph.ahead[at].iter().all(|&(next, mask)| {
+            let filter = &graph.filters[next];
+            molecule.neighbors(atom).iter().any(|nb| {
+                mask >> bond_kind(&bonds[nb.bond]) & 1 != 0
+                    && filter.admits_features(&features.get(molecule, nb.atom))
+                    && !assign.contains(&nb.atom)
+                    && !avoid.contains(&nb.atom)
+            })
+        })
     }
 
     /// Places step `step` and the ones after it.
@@ -330,6 +362,9 @@ impl<'a> Search<'a> {
                     .is_some_and(|mb| graph.bond_masks[bond] >> bond_kind(&bonds[mb]) & 1 != 0)
             });
             if !closed {
+                continue;
+            }
+            if !self.ahead_ok(graph, s.atom, candidate, assign, avoid) {
                 continue;
             }
             assign[s.atom] = candidate;
