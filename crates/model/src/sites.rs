@@ -77,36 +77,109 @@ pub fn find_sites(library: &Library, molecule: &Molecule) -> Vec<FoundSite> {
     sites
 }
 
+/// Rounds of neighbour refinement tried on the site atoms before the full symmetry
+/// classes are asked for.
+const QUICK_ROUNDS: usize = 3;
+
 /// Numbers the symmetry groups of `sites` (in molecule order) from 0 in order of first
 /// appearance.
 ///
-/// Symmetry classes only split the classes of their starting invariant
-/// (`mol::symmetry_classes`: element, isotope, charge, degree, hydrogens, aromaticity, ring
-/// membership), so sites whose atoms all differ in it are all apart, each its own group,
-/// and the classes are worked out only when two site atoms share it.
+/// `mol::symmetry_classes` refines a starting invariant (element, isotope, charge, degree,
+/// hydrogens, aromaticity, ring membership) by the classes of the neighbours and the bonds
+/// to them, round after round, and classes only ever split. So two atoms apart after some
+/// rounds of the same refinement are apart in the end: when every pair of site atoms is
+/// apart within [`QUICK_ROUNDS`] rounds (almost always: truly equivalent sites are rare),
+/// each site is its own group and the classes are never worked out. Otherwise they are,
+/// and sites share a group by them. `quick_groups_agree_with_symmetry_classes` checks the
+/// two ways against each other.
 fn number_groups(molecule: &Molecule, sites: &mut [FoundSite]) {
-    let invariant = |atom: usize| {
-        let a = &molecule.atoms()[atom];
-        (
-            a.element,
-            a.isotope.unwrap_or(0),
-            a.charge,
-            molecule.degree(atom),
-            molecule.total_hydrogens(atom),
-            a.aromatic,
-            a.ring_count > 0,
-        )
-    };
-    let mut invariants: Vec<_> = sites.iter().map(|s| invariant(s.atom)).collect();
-    invariants.sort_unstable();
-    let shared = invariants.windows(2).any(|w| w[0] == w[1]);
-    if !shared {
-        for (i, s) in sites.iter_mut().enumerate() {
-            s.group = i;
-        }
+    if !quick_groups_apart(molecule, sites) {
+        let symmetry = mol::symmetry_classes(molecule);
+        groups_by_classes(&symmetry, sites);
         return;
     }
-    let symmetry = mol::symmetry_classes(molecule);
+    for (i, s) in sites.iter_mut().enumerate() {
+        s.group = i;
+    }
+}
+
+/// Neighbours per atom the quick rounds handle (keys of fixed size); a molecule with more
+/// on some atom goes to the full symmetry classes.
+const QUICK_DEGREE: usize = 4;
+
+/// Whether the site atoms are pairwise apart within [`QUICK_ROUNDS`] refinement rounds (of
+/// the refinement `mol::symmetry_classes` runs). `false` when they are not, or when the
+/// molecule is beyond what the quick rounds handle.
+fn quick_groups_apart(molecule: &Molecule, sites: &[FoundSite]) -> bool {
+    let atoms = molecule.atoms();
+    let n = atoms.len();
+    if (0..n).any(|i| molecule.degree(i) > QUICK_DEGREE) {
+        return false;
+    }
+    // The starting invariant, packed so that integer order is tuple order: element,
+    // isotope, charge, degree, hydrogens (at most 255 in counts plus one per neighbour),
+    // aromaticity, ring membership.
+    let invariant = |atom: usize| -> u64 {
+        let a = &atoms[atom];
+        (a.element as u64) << 50
+            | (a.isotope.unwrap_or(0) as u64) << 34
+            | ((a.charge as i16 + 128) as u64) << 26
+            | (molecule.degree(atom) as u64) << 18
+            | (molecule.total_hydrogens(atom) as u64) << 2
+            | (a.aromatic as u64) << 1
+            | (a.ring_count > 0) as u64
+    };
+    if apart(sites.iter().map(|s| invariant(s.atom)).collect()) {
+        return true;
+    }
+    let mut classes = ranks((0..n).map(|i| (invariant(i), i)).collect());
+    for _ in 0..QUICK_ROUNDS {
+        let keyed = (0..n)
+            .map(|i| {
+                // Each neighbour as (class, bond order with 4 for aromatic, aromatic),
+                // packed; an atom's class fixes its degree, so the padding never meets
+                // an entry in a comparison that matters.
+                let mut entries = [0u64; QUICK_DEGREE];
+                for (e, nb) in entries.iter_mut().zip(molecule.neighbors(i)) {
+                    let b = &molecule.bonds()[nb.bond];
+                    let order = if b.aromatic { 4 } else { b.order };
+                    *e = (classes[nb.atom] as u64) << 16 | (order as u64) << 8 | b.aromatic as u64;
+                }
+                entries.sort_unstable();
+                ((classes[i], entries), i)
+            })
+            .collect();
+        classes = ranks(keyed);
+        if apart(sites.iter().map(|s| classes[s.atom]).collect()) {
+            return true;
+        }
+    }
+    false
+}
+
+/// Whether no two keys are equal.
+fn apart<T: Ord>(mut keys: Vec<T>) -> bool {
+    keys.sort_unstable();
+    keys.windows(2).all(|w| w[0] != w[1])
+}
+
+/// Class numbers by rank of key: atoms with equal keys share one.
+fn ranks<K: Ord>(mut keyed: Vec<(K, usize)>) -> Vec<u32> {
+    keyed.sort_unstable();
+    let mut out = vec![0u32; keyed.len()];
+    let mut class = 0u32;
+    for k in 0..keyed.len() {
+        if k > 0 && keyed[k].0 != keyed[k - 1].0 {
+            class += 1;
+        }
+        out[keyed[k].1] = class;
+    }
+    out
+}
+
+/// Groups numbered from 0 in order of first appearance, sites on atoms of one symmetry
+/// class sharing one.
+fn groups_by_classes(symmetry: &[u32], sites: &mut [FoundSite]) {
     let mut groups: HashMap<u32, usize> = HashMap::new();
     for s in sites.iter_mut() {
         // An atom without a symmetry class (never expected) is its own group.
@@ -116,5 +189,82 @@ fn number_groups(molecule: &Molecule, sites: &mut [FoundSite]) {
             .map_or(u32::MAX - s.atom as u32, |k| k);
         let next = groups.len();
         s.group = *groups.entry(key).or_insert(next);
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The groups the full symmetry classes give, for comparison.
+    fn by_classes(molecule: &Molecule, sites: &[FoundSite]) -> Vec<usize> {
+        let mut sites = sites.to_vec();
+        groups_by_classes(&mol::symmetry_classes(molecule), &mut sites);
+        sites.iter().map(|s| s.group).collect()
+    }
+
+    fn check(smiles: &str) -> Vec<usize> {
+        let molecule = mol::parse(smiles).unwrap_or_else(|e| panic!("{smiles}: {e}"));
+        let parent = mol::standardize(&molecule)
+            .unwrap_or_else(|e| panic!("{smiles}: {e}"))
+            .parent;
+        let sites = find_sites(Library::builtin(), &parent);
+        let groups: Vec<usize> = sites.iter().map(|s| s.group).collect();
+        assert_eq!(groups, by_classes(&parent, &sites), "{smiles}");
+        groups
+    }
+
+    #[test]
+    fn quick_groups_agree_with_symmetry_classes() {
+        // Symmetric diacids, diamines and rings (groups shared), near-symmetric ones
+        // (apart only after some rounds) and the far ends of long chains (apart only
+        // beyond the quick rounds).
+        let shared = |g: Vec<usize>| g.iter().enumerate().any(|(i, x)| g[..i].contains(x));
+        assert!(shared(check("OC(=O)CCC(=O)O")));
+        assert!(shared(check("NCCCCN")));
+        assert!(!shared(check("NCCCCNC")));
+        check("OC(=O)CCCC(=O)OC");
+        assert!(!shared(check("NCCCCC(C)CCCCCCCN")));
+        check("OC(=O)CCCCCCCCCCC(=O)OCC");
+        check("C1CNCCN1");
+        check("Oc1ccc(O)cc1");
+        check("Oc1cccc(O)c1C");
+        check("c1cc(N)ccc1Cc1ccc(N)cc1");
+        check("c1cc(N)ccc1Cc1ccc(N)cc1C");
+        check("OC(=O)c1cc(C(=O)O)cc(C(=O)O)c1");
+    }
+
+    #[test]
+    fn quick_groups_agree_with_symmetry_classes_over_the_moses_sample() {
+        // Reference data beside the repository; skipped when absent.
+        let path = concat!(
+            env!("CARGO_MANIFEST_DIR"),
+            "/../../../shared/data/moses-sample.smi"
+        );
+        let Ok(text) = std::fs::read_to_string(path) else {
+            eprintln!("note: {path} not found; skipped");
+            return;
+        };
+        let mut merged = 0;
+        for line in text.lines() {
+            let Some(smiles) = line.split_whitespace().next() else {
+                continue;
+            };
+            let Ok(molecule) = mol::parse(smiles) else {
+                continue;
+            };
+            let Ok(std) = mol::standardize(&molecule) else {
+                continue;
+            };
+            let sites = find_sites(Library::builtin(), &std.parent);
+            let groups: Vec<usize> = sites.iter().map(|s| s.group).collect();
+            assert_eq!(groups, by_classes(&std.parent, &sites), "{smiles}");
+            merged += groups
+                .iter()
+                .enumerate()
+                .any(|(i, g)| groups[..i].contains(g)) as usize;
+        }
+        // Some molecules of the sample do have equivalent sites, so both ways were taken.
+        assert!(merged > 0);
     }
 }
