@@ -105,8 +105,36 @@ impl Sets {
 #[derive(Clone, Copy, Debug)]
 struct Projected {
     sets: Sets,
+    /// Neighbour requirements (see `AtomFilter::needs`), from environments.
+    needs: Needs,
     support: u16,
     exact: bool,
+}
+
+/// Neighbour requirements: each slot a set of neighbour-signature bits one of which the
+/// atom must have; [`features::SIGNATURE_ALWAYS`] (set in every signature) when unused.
+type Needs = [u64; NEEDS];
+
+/// No requirement.
+const NO_NEEDS: Needs = [features::SIGNATURE_ALWAYS; NEEDS];
+
+/// Both sets of requirements, as many as there are slots for (dropping one only weakens
+/// the filter).
+fn needs_meet(a: Needs, b: Needs) -> Needs {
+    let mut out = NO_NEEDS;
+    let real = a
+        .into_iter()
+        .chain(b)
+        .filter(|&n| n != features::SIGNATURE_ALWAYS);
+    for (slot, need) in out.iter_mut().zip(real) {
+        *slot = need;
+    }
+    out
+}
+
+/// What either set of requirements implies: slot by slot, one or the other.
+fn needs_join(a: Needs, b: Needs) -> Needs {
+    std::array::from_fn(|i| a[i] | b[i])
 }
 
 /// The box of one count value, or `None` (not decided by the mask) beyond the cap.
@@ -118,6 +146,7 @@ fn count_set(k: usize, value: u8) -> Option<Projected> {
     sets.counts[k] = 1 << value;
     Some(Projected {
         sets,
+        needs: NO_NEEDS,
         support: s_count(k),
         exact: true,
     })
@@ -129,6 +158,7 @@ fn at_least_one(k: usize) -> Projected {
     sets.counts[k] = !1;
     Projected {
         sets,
+        needs: NO_NEEDS,
         support: s_count(k),
         exact: true,
     }
@@ -137,11 +167,13 @@ fn at_least_one(k: usize) -> Projected {
 fn project_prim(p: &AtomPrim, envs: &[AtomFilter]) -> Projected {
     let other = Projected {
         sets: Sets::FULL,
+        needs: NO_NEEDS,
         support: S_OTHER,
         exact: false,
     };
     let elements = |sets: Sets| Projected {
         sets,
+        needs: NO_NEEDS,
         support: S_ELEMENTS,
         exact: true,
     };
@@ -152,6 +184,7 @@ fn project_prim(p: &AtomPrim, envs: &[AtomFilter]) -> Projected {
     match *p {
         AtomPrim::Any => Projected {
             sets: Sets::FULL,
+            needs: NO_NEEDS,
             support: 0,
             exact: true,
         },
@@ -169,6 +202,7 @@ fn project_prim(p: &AtomPrim, envs: &[AtomFilter]) -> Projected {
                 charges: 1 << features::charge_bit(c),
                 ..Sets::FULL
             },
+            needs: NO_NEEDS,
             support: S_CHARGES,
             exact: true,
         },
@@ -184,6 +218,7 @@ fn project_prim(p: &AtomPrim, envs: &[AtomFilter]) -> Projected {
         // An environment holds only where its first atom can sit.
         AtomPrim::Recursive(id) => envs.get(id as usize).map_or(other, |env| Projected {
             sets: env.sets,
+            needs: env.needs,
             support: S_OTHER,
             exact: false,
         }),
@@ -200,6 +235,7 @@ fn project(expr: &Expr<AtomPrim>, envs: &[AtomFilter]) -> Projected {
             if !inner.exact || inner.support.count_ones() > 1 {
                 return Projected {
                     sets: Sets::FULL,
+                    needs: NO_NEEDS,
                     support: inner.support | S_OTHER,
                     exact: false,
                 };
@@ -213,6 +249,7 @@ fn project(expr: &Expr<AtomPrim>, envs: &[AtomFilter]) -> Projected {
             };
             Projected {
                 sets: inner.sets.complement_in(support),
+                needs: NO_NEEDS,
                 support,
                 exact: true,
             }
@@ -220,11 +257,13 @@ fn project(expr: &Expr<AtomPrim>, envs: &[AtomFilter]) -> Projected {
         Expr::And(es) => es.iter().map(project).fold(
             Projected {
                 sets: Sets::FULL,
+                needs: NO_NEEDS,
                 support: 0,
                 exact: true,
             },
             |acc, p| Projected {
                 sets: acc.sets.meet(p.sets),
+                needs: needs_meet(acc.needs, p.needs),
                 support: acc.support | p.support,
                 exact: acc.exact && p.exact,
             },
@@ -242,8 +281,15 @@ fn project(expr: &Expr<AtomPrim>, envs: &[AtomFilter]) -> Projected {
                 ),
                 |s, p| s.join(p.sets),
             );
+            let needs = parts
+                .iter()
+                .skip(1)
+                .fold(parts.first().map_or(NO_NEEDS, |p| p.needs), |n, p| {
+                    needs_join(n, p.needs)
+                });
             Projected {
                 sets,
+                needs,
                 support,
                 // A union of boxes is a box only when they differ in one projection.
                 exact: parts.iter().all(|p| p.exact) && support.count_ones() <= 1,
@@ -280,7 +326,7 @@ impl AtomFilter {
         let p = project(expr, envs);
         AtomFilter {
             sets: p.sets,
-            needs: [features::SIGNATURE_ALWAYS; NEEDS],
+            needs: p.needs,
             exact: p.exact,
         }
     }
@@ -297,6 +343,10 @@ impl AtomFilter {
     /// molecule neighbour of an element class and bond group it admits: a requirement of
     /// the search, not of the expression, so `exact` is unchanged.
     pub(crate) fn with_neighbors(mut self, neighbors: &[(AtomFilter, u16)]) -> AtomFilter {
+        let all = (0..features::ELEMENT_CLASSES)
+            .flat_map(|c| (0..5).map(move |g| features::signature_bit(c, g)))
+            .fold(0, |a, b| a | b);
+        let mut own = NO_NEEDS;
         let mut slot = 0;
         for (filter, mask) in neighbors {
             if slot == NEEDS {
@@ -316,15 +366,14 @@ impl AtomFilter {
                     }
                 }
             }
-            let all = (0..features::ELEMENT_CLASSES)
-                .flat_map(|c| (0..5).map(move |g| features::signature_bit(c, g)))
-                .fold(0, |a, b| a | b);
             // One that any neighbour meets says nothing.
             if need != all {
-                self.needs[slot] = need;
+                own[slot] = need;
                 slot += 1;
             }
         }
+        // The pattern's own neighbours first, then what its environments ask.
+        self.needs = needs_meet(own, self.needs);
         self
     }
     /// The element/aromatic projection alone.
