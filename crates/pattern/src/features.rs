@@ -110,26 +110,47 @@ pub(crate) struct AtomFeatures {
     /// The neighbours by element class and bond group ([`signature_bit`]), with
     /// [`SIGNATURE_ALWAYS`].
     pub(crate) neighbors: u64,
+    /// The union of the neighbours' signatures, with [`SIGNATURE_ALWAYS`].
+    pub(crate) far: u64,
+}
+
+/// The neighbour signature of `atom`: its neighbours by element class and bond group.
+fn signature(molecule: &Molecule, atom: usize) -> u64 {
+    let atoms = molecule.atoms();
+    let bonds = molecule.bonds();
+    molecule
+        .neighbors(atom)
+        .iter()
+        .fold(SIGNATURE_ALWAYS, |sig, nb| {
+            let t = &atoms[nb.atom];
+            let class = element_class(element_bit(t.element, t.aromatic));
+            let group = bond_group(crate::filter::bond_kind(&bonds[nb.bond]));
+            sig | signature_bit(class, group)
+        })
 }
 
 impl AtomFeatures {
     /// Reads atom `atom` of `molecule` (which must be in range).
     pub(crate) fn of(molecule: &Molecule, atom: usize) -> AtomFeatures {
+        let far = molecule
+            .neighbors(atom)
+            .iter()
+            .fold(SIGNATURE_ALWAYS, |far, nb| {
+                far | signature(molecule, nb.atom)
+            });
+        AtomFeatures::with_signatures(molecule, atom, signature(molecule, atom), far)
+    }
+
+    /// Reads atom `atom`, its signature and its neighbours' worked out already.
+    fn with_signatures(molecule: &Molecule, atom: usize, signature: u64, far: u64) -> AtomFeatures {
         let atoms = molecule.atoms();
-        let bonds = molecule.bonds();
         let a = &atoms[atom];
         let neighbors = molecule.neighbors(atom);
         let degree = neighbors.len();
-        // One walk over the neighbours for the signature and the hydrogens written as atoms.
-        let mut signature = SIGNATURE_ALWAYS;
-        let mut explicit_h = 0usize;
-        for nb in neighbors {
-            let t = &atoms[nb.atom];
-            explicit_h += (t.element == 1) as usize;
-            let class = element_class(element_bit(t.element, t.aromatic));
-            let group = bond_group(crate::filter::bond_kind(&bonds[nb.bond]));
-            signature |= signature_bit(class, group);
-        }
+        let explicit_h = neighbors
+            .iter()
+            .filter(|nb| atoms[nb.atom].element == 1)
+            .count();
         AtomFeatures {
             element_bit: element_bit(a.element, a.aromatic),
             charge_bit: charge_bit(a.charge),
@@ -140,6 +161,7 @@ impl AtomFeatures {
             ring_count: count(a.ring_count as usize),
             smallest_ring: count(a.smallest_ring as usize),
             neighbors: signature,
+            far,
         }
     }
 
@@ -168,9 +190,16 @@ impl FeatureTable {
 
     /// Works out every atom of `molecule` at once, keeping the buffer.
     pub(crate) fn fill(&mut self, molecule: &Molecule) {
+        let n = molecule.atoms().len();
+        let signatures: Vec<u64> = (0..n).map(|i| signature(molecule, i)).collect();
         self.atoms.clear();
-        self.atoms
-            .extend((0..molecule.atoms().len()).map(|i| AtomFeatures::of(molecule, i)));
+        self.atoms.extend((0..n).map(|i| {
+            let far = molecule
+                .neighbors(i)
+                .iter()
+                .fold(SIGNATURE_ALWAYS, |far, nb| far | signatures[nb.atom]);
+            AtomFeatures::with_signatures(molecule, i, signatures[i], far)
+        }));
     }
 
     /// The values of `atom`, from the table when they were worked out, else afresh (not

@@ -111,21 +111,24 @@ struct Projected {
     exact: bool,
 }
 
-/// Neighbour requirements: each slot a set of neighbour-signature bits one of which the
-/// atom must have; [`features::SIGNATURE_ALWAYS`] (set in every signature) when unused.
-type Needs = [u64; NEEDS];
+/// One level of neighbour requirements: each slot a set of neighbour-signature bits one
+/// of which the atom's signature must have; [`features::SIGNATURE_ALWAYS`] (set in every
+/// signature) when unused.
+type Slots = [u64; NEEDS];
 
-/// No requirement.
-const NO_NEEDS: Needs = [features::SIGNATURE_ALWAYS; NEEDS];
+const NO_SLOTS: Slots = [features::SIGNATURE_ALWAYS; NEEDS];
 
-/// Both sets of requirements, as many as there are slots for (dropping one only weakens
-/// the filter).
-fn needs_meet(a: Needs, b: Needs) -> Needs {
-    let mut out = NO_NEEDS;
-    let real = a
+/// Both sets of requirements, the most selective (fewest bits) first, as many as there are
+/// slots for (dropping one only weakens the filter).
+fn slots_meet(a: Slots, b: Slots) -> Slots {
+    let mut real: Vec<u64> = a
         .into_iter()
         .chain(b)
-        .filter(|&n| n != features::SIGNATURE_ALWAYS);
+        .filter(|&n| n != features::SIGNATURE_ALWAYS)
+        .collect();
+    real.sort_by_key(|n| (n.count_ones(), *n));
+    real.dedup();
+    let mut out = NO_SLOTS;
     for (slot, need) in out.iter_mut().zip(real) {
         *slot = need;
     }
@@ -133,8 +136,39 @@ fn needs_meet(a: Needs, b: Needs) -> Needs {
 }
 
 /// What either set of requirements implies: slot by slot, one or the other.
-fn needs_join(a: Needs, b: Needs) -> Needs {
+fn slots_join(a: Slots, b: Slots) -> Slots {
     std::array::from_fn(|i| a[i] | b[i])
+}
+
+/// Neighbour requirements: on the atom's neighbours (`near`, against its signature) and on
+/// their neighbours (`far`, against the union of its neighbours' signatures).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(crate) struct Needs {
+    near: Slots,
+    far: Slots,
+}
+
+impl Needs {
+    const NONE: Needs = Needs {
+        near: NO_SLOTS,
+        far: NO_SLOTS,
+    };
+    fn meet(self, o: Needs) -> Needs {
+        Needs {
+            near: slots_meet(self.near, o.near),
+            far: slots_meet(self.far, o.far),
+        }
+    }
+    fn join(self, o: Needs) -> Needs {
+        Needs {
+            near: slots_join(self.near, o.near),
+            far: slots_join(self.far, o.far),
+        }
+    }
+    #[inline]
+    fn admits(&self, f: &AtomFeatures) -> bool {
+        self.near.iter().all(|&n| f.neighbors & n != 0) && self.far.iter().all(|&n| f.far & n != 0)
+    }
 }
 
 /// The box of one count value, or `None` (not decided by the mask) beyond the cap.
@@ -146,7 +180,7 @@ fn count_set(k: usize, value: u8) -> Option<Projected> {
     sets.counts[k] = 1 << value;
     Some(Projected {
         sets,
-        needs: NO_NEEDS,
+        needs: Needs::NONE,
         support: s_count(k),
         exact: true,
     })
@@ -158,7 +192,7 @@ fn at_least_one(k: usize) -> Projected {
     sets.counts[k] = !1;
     Projected {
         sets,
-        needs: NO_NEEDS,
+        needs: Needs::NONE,
         support: s_count(k),
         exact: true,
     }
@@ -167,13 +201,13 @@ fn at_least_one(k: usize) -> Projected {
 fn project_prim(p: &AtomPrim, envs: &[AtomFilter]) -> Projected {
     let other = Projected {
         sets: Sets::FULL,
-        needs: NO_NEEDS,
+        needs: Needs::NONE,
         support: S_OTHER,
         exact: false,
     };
     let elements = |sets: Sets| Projected {
         sets,
-        needs: NO_NEEDS,
+        needs: Needs::NONE,
         support: S_ELEMENTS,
         exact: true,
     };
@@ -184,7 +218,7 @@ fn project_prim(p: &AtomPrim, envs: &[AtomFilter]) -> Projected {
     match *p {
         AtomPrim::Any => Projected {
             sets: Sets::FULL,
-            needs: NO_NEEDS,
+            needs: Needs::NONE,
             support: 0,
             exact: true,
         },
@@ -202,7 +236,7 @@ fn project_prim(p: &AtomPrim, envs: &[AtomFilter]) -> Projected {
                 charges: 1 << features::charge_bit(c),
                 ..Sets::FULL
             },
-            needs: NO_NEEDS,
+            needs: Needs::NONE,
             support: S_CHARGES,
             exact: true,
         },
@@ -235,7 +269,7 @@ fn project(expr: &Expr<AtomPrim>, envs: &[AtomFilter]) -> Projected {
             if !inner.exact || inner.support.count_ones() > 1 {
                 return Projected {
                     sets: Sets::FULL,
-                    needs: NO_NEEDS,
+                    needs: Needs::NONE,
                     support: inner.support | S_OTHER,
                     exact: false,
                 };
@@ -249,7 +283,7 @@ fn project(expr: &Expr<AtomPrim>, envs: &[AtomFilter]) -> Projected {
             };
             Projected {
                 sets: inner.sets.complement_in(support),
-                needs: NO_NEEDS,
+                needs: Needs::NONE,
                 support,
                 exact: true,
             }
@@ -257,13 +291,13 @@ fn project(expr: &Expr<AtomPrim>, envs: &[AtomFilter]) -> Projected {
         Expr::And(es) => es.iter().map(project).fold(
             Projected {
                 sets: Sets::FULL,
-                needs: NO_NEEDS,
+                needs: Needs::NONE,
                 support: 0,
                 exact: true,
             },
             |acc, p| Projected {
                 sets: acc.sets.meet(p.sets),
-                needs: needs_meet(acc.needs, p.needs),
+                needs: acc.needs.meet(p.needs),
                 support: acc.support | p.support,
                 exact: acc.exact && p.exact,
             },
@@ -284,8 +318,8 @@ fn project(expr: &Expr<AtomPrim>, envs: &[AtomFilter]) -> Projected {
             let needs = parts
                 .iter()
                 .skip(1)
-                .fold(parts.first().map_or(NO_NEEDS, |p| p.needs), |n, p| {
-                    needs_join(n, p.needs)
+                .fold(parts.first().map_or(Needs::NONE, |p| p.needs), |n, p| {
+                    n.join(p.needs)
                 });
             Projected {
                 sets,
@@ -306,9 +340,8 @@ const NEEDS: usize = 4;
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub(crate) struct AtomFilter {
     sets: Sets,
-    /// Per pattern neighbour, the neighbour signature bits (`features::signature_bit`) one
-    /// of which the molecule atom must have; [`features::SIGNATURE_ALWAYS`] when unused.
-    needs: [u64; NEEDS],
+    /// What the molecule atom's neighbours and theirs must offer (`features::signature_bit`).
+    needs: Needs,
     /// Passing the filter is the answer: the expression need not be walked.
     pub(crate) exact: bool,
 }
@@ -346,7 +379,7 @@ impl AtomFilter {
         let all = (0..features::ELEMENT_CLASSES)
             .flat_map(|c| (0..5).map(move |g| features::signature_bit(c, g)))
             .fold(0, |a, b| a | b);
-        let mut own = NO_NEEDS;
+        let mut own = NO_SLOTS;
         let mut slot = 0;
         for (filter, mask) in neighbors {
             if slot == NEEDS {
@@ -372,8 +405,17 @@ impl AtomFilter {
                 slot += 1;
             }
         }
-        // The pattern's own neighbours first, then what its environments ask.
-        self.needs = needs_meet(own, self.needs);
+        self.needs.near = slots_meet(own, self.needs.near);
+        self
+    }
+    /// Also requires what each pattern neighbour (its filter, with its own neighbour
+    /// requirements) needs of its neighbours, of this atom's neighbours' neighbours: the
+    /// molecule atom on the pattern neighbour is one of this atom's neighbours, so its
+    /// signature is part of the union.
+    pub(crate) fn with_far_neighbors(mut self, neighbors: &[AtomFilter]) -> AtomFilter {
+        for filter in neighbors {
+            self.needs.far = slots_meet(self.needs.far, filter.needs.near);
+        }
         self
     }
     /// The element/aromatic projection alone.
@@ -384,7 +426,7 @@ impl AtomFilter {
     /// Whether an atom with these values could match.
     #[inline]
     pub(crate) fn admits_features(&self, f: &AtomFeatures) -> bool {
-        self.sets.admits(f) && self.needs.iter().all(|&n| f.neighbors & n != 0)
+        self.sets.admits(f) && self.needs.admits(f)
     }
     /// Whether atom `atom` of `molecule` (in range) could match.
     pub(crate) fn admits(&self, molecule: &Molecule, atom: usize) -> bool {

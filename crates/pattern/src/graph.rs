@@ -174,18 +174,27 @@ fn filters(
         .zip(min_degree)
         .map(|(a, &min)| AtomFilter::with_environments(&a.expr, envs).with_min_degree(min))
         .collect();
+    let neighbors = |i: usize| {
+        bonds
+            .iter()
+            .zip(bond_masks)
+            .filter_map(move |(b, &mask)| match (b.a == i, b.b == i) {
+                (true, false) => Some((b.b, mask)),
+                (false, true) => Some((b.a, mask)),
+                _ => None,
+            })
+    };
+    let near: Vec<AtomFilter> = (0..atoms.len())
+        .map(|i| {
+            let around: Vec<(AtomFilter, u16)> =
+                neighbors(i).map(|(j, mask)| (own[j], mask)).collect();
+            own[i].with_neighbors(&around)
+        })
+        .collect();
     (0..atoms.len())
         .map(|i| {
-            let neighbors: Vec<(AtomFilter, u16)> = bonds
-                .iter()
-                .zip(bond_masks)
-                .filter_map(|(b, &mask)| match (b.a == i, b.b == i) {
-                    (true, false) => Some((own[b.b], mask)),
-                    (false, true) => Some((own[b.a], mask)),
-                    _ => None,
-                })
-                .collect();
-            own[i].with_neighbors(&neighbors)
+            let around: Vec<AtomFilter> = neighbors(i).map(|(j, _)| near[j]).collect();
+            near[i].with_far_neighbors(&around)
         })
         .collect()
 }
