@@ -20,6 +20,10 @@ use crate::primitive::AtomPrim;
 
 /// Marks a pattern atom not placed yet.
 const UNPLACED: usize = usize::MAX;
+/// Pattern neighbours ahead of an atom up to this many are checked for distinct
+/// candidates; beyond, each only for one.
+const HALL_AHEAD: usize = 4;
+
 /// Patterns up to this size search in a stack buffer.
 const INLINE: usize = 32;
 
@@ -303,9 +307,11 @@ impl<'a> Search<'a> {
 
     /// Whether every pattern neighbour placed after `at` still has somewhere to go once
     /// `atom` sits on `at`: a free molecule neighbour through an admitted bond, passing its
-    /// filter. A necessary condition, so it only cuts branches that hold no match, and
-    /// matches are found in the same order; it spares walking a ring or chain around an
-    /// anchor that lacks a neighbour the pattern needs further on.
+    /// filter, and, for up to [`HALL_AHEAD`] of them, a different one each (Hall's
+    /// condition: every group of them has as many candidates between them). A necessary
+    /// condition, so it only cuts branches that hold no match, and matches are found in the
+    /// same order; it spares walking a ring or chain around an anchor that lacks what the
+    /// pattern needs further on.
     #[inline]
     fn ahead_ok(
         &mut self,
@@ -318,15 +324,39 @@ impl<'a> Search<'a> {
         let molecule = self.molecule;
         let bonds = molecule.bonds();
         let features = &mut self.memo.features;
-        graph.ahead[at].iter().all(|&(next, mask)| {
-            let filter = &graph.filters[next];
-            molecule.neighbors(atom).iter().any(|nb| {
-                mask >> bond_kind(&bonds[nb.bond]) & 1 != 0
-                    && filter.admits_features(&features.get(molecule, nb.atom))
-                    && !assign.contains(&nb.atom)
-                    && !avoid.contains(&nb.atom)
+        let ahead = &graph.ahead[at];
+        let neighbors = molecule.neighbors(atom);
+        let fits = |features: &mut FeatureTable, next: usize, mask: u16, nb: &mol::Neighbor| {
+            mask >> bond_kind(&bonds[nb.bond]) & 1 != 0
+                && graph.filters[next].admits_features(&features.get(molecule, nb.atom))
+                && !assign.contains(&nb.atom)
+                && !avoid.contains(&nb.atom)
+        };
+        if ahead.len() < 2 || ahead.len() > HALL_AHEAD || neighbors.len() > 32 {
+            return ahead
+                .iter()
+                .all(|&(next, mask)| neighbors.iter().any(|nb| fits(features, next, mask, nb)));
+        }
+        // Candidates per pattern neighbour, as bits over the molecule neighbours.
+        let mut candidates = [0u32; HALL_AHEAD];
+        for (k, &(next, mask)) in ahead.iter().enumerate() {
+            for (i, nb) in neighbors.iter().enumerate() {
+                if fits(features, next, mask, nb) {
+                    candidates[k] |= 1 << i;
+                }
+            }
+            if candidates[k] == 0 {
+                return false;
+            }
+        }
+        (3u32..1 << ahead.len())
+            .filter(|group| group.count_ones() > 1)
+            .all(|group| {
+                let union = (0..ahead.len())
+                    .filter(|k| group >> k & 1 != 0)
+                    .fold(0u32, |u, k| u | candidates[k]);
+                union.count_ones() >= group.count_ones()
             })
-        })
     }
 
     /// Places step `step` and the ones after it.
