@@ -462,13 +462,29 @@ impl<'m> Matcher<'m> {
                 None => pattern.anchor_filter.admits(molecule, atom),
             }
     }
+    /// The anchor's pre-filter, from the table (filling it): a search set up only to fail
+    /// there costs more than the test.
+    #[inline]
+    fn anchor_ok(&mut self, pattern: &Pattern, atom: usize) -> bool {
+        let molecule = self.molecule;
+        atom < molecule.atoms().len()
+            && pattern
+                .anchor_filter
+                .admits_features(&self.memo().features.get(molecule, atom))
+    }
     /// Like [`Pattern::is_match_at`].
     pub fn is_match_at(&mut self, pattern: &Pattern, atom: usize, avoid: &[usize]) -> bool {
+        if !self.anchor_ok(pattern, atom) {
+            return false;
+        }
         let mut search = Search::new(self.molecule, &pattern.subs, &pattern.env_ids, self.memo());
         search.search(&pattern.main, atom, avoid, &mut |_| true)
     }
     /// Like [`Pattern::matches_at`].
     pub fn matches_at(&mut self, pattern: &Pattern, atom: usize, avoid: &[usize]) -> Vec<Match> {
+        if !self.anchor_ok(pattern, atom) {
+            return Vec::new();
+        }
         let mut search = Search::new(self.molecule, &pattern.subs, &pattern.env_ids, self.memo());
         let mut distinct = Distinct::default();
         search.search(&pattern.main, atom, avoid, &mut |a| {
@@ -490,6 +506,8 @@ impl<'m> Matcher<'m> {
         atom: usize,
         avoid: &[usize],
     ) -> Option<Vec<usize>> {
+        // Callers trying many patterns ask `could_anchor` first; the search repeats the
+        // test anyway.
         let mut search = Search::new(self.molecule, &pattern.subs, &pattern.env_ids, self.memo());
         let mut least = Least::default();
         search.search(&pattern.main, atom, avoid, &mut |a| {
@@ -505,6 +523,9 @@ impl<'m> Matcher<'m> {
         atom: usize,
         avoid: &[usize],
     ) -> Option<Match> {
+        if !self.anchor_ok(pattern, atom) {
+            return None;
+        }
         let mut search = Search::new(self.molecule, &pattern.subs, &pattern.env_ids, self.memo());
         let mut first = None;
         search.search(&pattern.main, atom, avoid, &mut |a| {
