@@ -57,17 +57,17 @@ pub(crate) fn element_class(element_bit: u8) -> u32 {
     }
 }
 
-/// Bond groups of the neighbour signature, by bond kind (`filter::bond_kind`): single,
-/// double, triple, aromatic, any other order.
+/// Bond groups of the neighbour signature, by bond kind (`filter::bond_kind`): single not
+/// in a ring, double, triple or any other order, aromatic, single in a ring.
 pub(crate) fn bond_group(kind: u32) -> u32 {
     if kind & 1 != 0 {
         3
     } else {
         match (kind >> 1) & 3 {
+            0 if kind & 8 != 0 => 4,
             0 => 0,
             1 => 1,
-            2 => 2,
-            _ => 4,
+            _ => 2,
         }
     }
 }

@@ -448,6 +448,9 @@ fn bond_kind_parts(kind: u32) -> (bool, u8, bool) {
     (kind & 1 != 0, order, kind & 8 != 0)
 }
 
+/// The bond kinds of ring bonds.
+pub(crate) const RING_KINDS: u16 = 0xff00;
+
 /// The kind of a molecule bond, as [`bond_kind_parts`] reads it.
 #[inline]
 pub(crate) fn bond_kind(bond: &mol::Bond) -> u32 {

@@ -132,7 +132,21 @@ impl Graph {
         }
         // Each pattern bond must lead to a distinct molecule neighbour.
         let min_degree: Vec<usize> = adjacency.iter().map(Vec::len).collect();
-        let bond_masks: Vec<u16> = bonds.iter().map(|b| filter::bond_mask(&b.expr)).collect();
+        // A pattern bond on a cycle of the pattern can only sit on a bond on a cycle of
+        // the molecule, a ring bond: saying so in its mask cuts the search and sharpens
+        // the neighbour requirements, without changing any match.
+        let bond_masks: Vec<u16> = bonds
+            .iter()
+            .enumerate()
+            .map(|(i, b)| {
+                let mask = filter::bond_mask(&b.expr);
+                if on_cycle(n, &bonds, i) {
+                    mask & filter::RING_KINDS
+                } else {
+                    mask
+                }
+            })
+            .collect();
         let filters = filters(&atoms, &bonds, &bond_masks, &min_degree, &[]);
         let ahead = adjacency
             .iter()
@@ -197,4 +211,39 @@ fn filters(
             near[i].with_far_neighbors(&around)
         })
         .collect()
+}
+
+/// Whether pattern bond `bond` lies on a cycle: its ends stay connected without it. Other
+/// bonds between the same two atoms do not count, since they sit on the same molecule bond.
+fn on_cycle(atoms: usize, bonds: &[PatternBond], bond: usize) -> bool {
+    let (from, to) = (bonds[bond].a, bonds[bond].b);
+    if from == to {
+        return false;
+    }
+    let parallel = |b: &PatternBond| (b.a == from && b.b == to) || (b.a == to && b.b == from);
+    let mut seen = vec![false; atoms];
+    let mut stack = vec![from];
+    seen[from] = true;
+    while let Some(a) = stack.pop() {
+        for b in bonds {
+            if parallel(b) {
+                continue;
+            }
+            let next = if b.a == a {
+                b.b
+            } else if b.b == a {
+                b.a
+            } else {
+                continue;
+            };
+            if next == to {
+                return true;
+            }
+            if !seen[next] {
+                seen[next] = true;
+                stack.push(next);
+            }
+        }
+    }
+    false
 }
