@@ -774,9 +774,17 @@ pub(crate) fn site_index(library: &Library) -> IndexRef {
 }
 
 /// A site index, shared across threads or local to one.
+#[derive(Clone)]
 pub(crate) enum IndexRef {
     Shared(Arc<SiteIndex>),
     Local(Rc<SiteIndex>),
+}
+
+impl IndexRef {
+    /// Whether both refer to the same index.
+    pub(crate) fn same(&self, other: &IndexRef) -> bool {
+        std::ptr::eq::<SiteIndex>(&**self, &**other)
+    }
 }
 
 impl std::ops::Deref for IndexRef {

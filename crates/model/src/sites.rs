@@ -1,10 +1,11 @@
 //! Finding ionizable sites: every class pattern tried on the atoms it can anchor on, one
 //! site per atom, overlaps resolved by class priority.
+use std::cell::RefCell;
 use std::collections::HashMap;
 
 use mol::Molecule;
 
-use crate::library::site_index;
+use crate::library::{site_index, IndexRef};
 use crate::Library;
 
 /// A site found by a class pattern.
@@ -42,39 +43,121 @@ pub fn find_sites(library: &Library, molecule: &Molecule) -> Vec<FoundSite> {
     // Shared by every class tried on this molecule: an environment (`!$(NC=O)`) written in
     // many classes is worked out once per atom.
     let mut matcher = pattern::Matcher::with_all_atoms(molecule);
-    for (atom, a) in atoms.iter().enumerate() {
-        // Explicit hydrogens never carry a site themselves: their heavy atom does.
-        if a.element == 1 {
-            continue;
-        }
-        for &class in index.candidates(a.element, a.aromatic) {
-            let Some(pattern) = index.patterns[class] else {
-                continue;
-            };
-            // Most classes are ruled out here, from the matcher's table, before any search
-            // is set up.
-            if !matcher.could_anchor(pattern, atom) {
+    CANDIDATES.with(|cache| {
+        let mut cache = cache.borrow_mut();
+        let cache = cache.for_index(&index);
+        for (atom, a) in atoms.iter().enumerate() {
+            // Explicit hydrogens never carry a site themselves: their heavy atom does.
+            if a.element == 1 {
                 continue;
             }
-            let Some(best) = matcher.least_match_at(pattern, atom, &[]) else {
+            let Some(key) = matcher.atom_key(atom) else {
                 continue;
             };
-            let mapped = index.maps[class]
-                .iter()
-                .filter_map(|&(map, p)| best.get(p).map(|&at| (map, at)))
-                .collect();
-            sites.push(FoundSite {
-                class,
-                atom,
-                matched: best,
-                mapped,
-                group: 0,
+            // The classes whose anchor can sit on an atom like this one, in precedence
+            // order: the same for every atom with the key, so worked out once.
+            let classes = cache.entry(key).or_insert_with(|| {
+                index
+                    .candidates(a.element, a.aromatic)
+                    .iter()
+                    .copied()
+                    .filter(|&class| {
+                        index.patterns[class]
+                            .is_some_and(|p| pattern::Matcher::could_anchor_key(p, &key))
+                    })
+                    .collect()
             });
-            break;
+            for &class in classes.iter() {
+                let Some(pattern) = index.patterns[class] else {
+                    continue;
+                };
+                let Some(best) = matcher.least_match_at(pattern, atom, &[]) else {
+                    continue;
+                };
+                let mapped = index.maps[class]
+                    .iter()
+                    .filter_map(|&(map, p)| best.get(p).map(|&at| (map, at)))
+                    .collect();
+                sites.push(FoundSite {
+                    class,
+                    atom,
+                    matched: best,
+                    mapped,
+                    group: 0,
+                });
+                break;
+            }
         }
-    }
+    });
     number_groups(molecule, &mut sites);
     sites
+}
+
+/// Keys kept before the cache starts afresh: enough for the atom kinds of a large
+/// screening set, a bound on memory whatever the input.
+const CANDIDATE_KEYS: usize = 1 << 14;
+
+/// Per thread, the candidate classes by atom key for the index last used. The index is
+/// held, so it cannot be freed and another built at its address while it is kept.
+#[derive(Default)]
+struct CandidateCache {
+    index: Option<IndexRef>,
+    classes: HashMap<pattern::AtomKey, Vec<usize>, BuildFx>,
+}
+
+impl CandidateCache {
+    /// The map for `index`, emptied if it was kept for another one or grew too large.
+    fn for_index(
+        &mut self,
+        index: &IndexRef,
+    ) -> &mut HashMap<pattern::AtomKey, Vec<usize>, BuildFx> {
+        if !self.index.as_ref().is_some_and(|i| i.same(index))
+            || self.classes.len() >= CANDIDATE_KEYS
+        {
+            self.index = Some(index.clone());
+            self.classes.clear();
+        }
+        &mut self.classes
+    }
+}
+
+thread_local! {
+    static CANDIDATES: RefCell<CandidateCache> = RefCell::new(CandidateCache::default());
+}
+
+/// A quick hash for small keys (multiply and rotate per word, after the one in rustc's
+/// own hash maps; common practice): the standard one is made for keys an attacker
+/// chooses, and a cache lookup per atom is no place for it.
+#[derive(Clone, Copy, Default)]
+struct BuildFx;
+
+#[derive(Default)]
+struct Fx(u64);
+
+impl std::hash::BuildHasher for BuildFx {
+    type Hasher = Fx;
+    fn build_hasher(&self) -> Fx {
+        Fx(0)
+    }
+}
+
+impl std::hash::Hasher for Fx {
+    fn finish(&self) -> u64 {
+        self.0
+    }
+    fn write(&mut self, bytes: &[u8]) {
+        for chunk in bytes.chunks(8) {
+            let mut word = [0u8; 8];
+            word[..chunk.len()].copy_from_slice(chunk);
+            self.write_u64(u64::from_le_bytes(word));
+        }
+    }
+    fn write_u8(&mut self, n: u8) {
+        self.write_u64(n as u64);
+    }
+    fn write_u64(&mut self, n: u64) {
+        self.0 = (self.0.rotate_left(5) ^ n).wrapping_mul(0x51_7c_c1_b7_27_22_0a_95);
+    }
 }
 
 /// Rounds of neighbour refinement tried on the site atoms before the full symmetry

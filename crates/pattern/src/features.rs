@@ -89,7 +89,7 @@ fn count(value: usize) -> u8 {
 
 /// One atom's values, each as the bit it sets in the filter masks. The exact values that
 /// matter beyond the caps are read from the molecule.
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash)]
 pub(crate) struct AtomFeatures {
     /// [`element_bit`].
     pub(crate) element_bit: u8,

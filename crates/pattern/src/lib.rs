@@ -112,6 +112,13 @@ impl std::fmt::Display for Pattern {
     }
 }
 
+/// What the anchor pre-filter of every pattern sees of one molecule atom (element,
+/// aromaticity, charge, hydrogens, connections, rings, neighbours): atoms with equal keys,
+/// in any molecules, get the same answer from [`Matcher::could_anchor`] for any pattern,
+/// so a caller may keep that answer by key.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub struct AtomKey(features::AtomFeatures);
+
 /// One match: for each pattern atom (in pattern order), the molecule atom it matched.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Match {
@@ -448,6 +455,17 @@ impl<'m> Matcher<'m> {
         let mut matcher = Matcher::new(molecule);
         matcher.memo().features.fill(molecule);
         matcher
+    }
+    /// The key of `atom` (see [`AtomKey`]); `None` out of range.
+    pub fn atom_key(&mut self, atom: usize) -> Option<AtomKey> {
+        let molecule = self.molecule;
+        (atom < molecule.atoms().len()).then(|| AtomKey(self.memo().features.get(molecule, atom)))
+    }
+    /// Whether the anchored pattern atom could match an atom with this key: what
+    /// [`Matcher::could_anchor`] answers for every atom with it.
+    #[inline]
+    pub fn could_anchor_key(pattern: &Pattern, key: &AtomKey) -> bool {
+        pattern.anchor_filter.admits_features(&key.0)
     }
     /// Like [`Pattern::could_anchor`], from the matcher's table of atom values where the
     /// atom is in it.
