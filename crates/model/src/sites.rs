@@ -196,43 +196,57 @@ const QUICK_DEGREE: usize = 4;
 fn quick_groups_apart(molecule: &Molecule, sites: &[FoundSite]) -> bool {
     let atoms = molecule.atoms();
     let n = atoms.len();
-    if (0..n).any(|i| molecule.degree(i) > QUICK_DEGREE) {
+    // Class numbers and bond kinds packed into one integer per atom below.
+    if n >= 1 << 16 || (0..n).any(|i| molecule.degree(i) > QUICK_DEGREE) {
         return false;
     }
     // The starting invariant, packed so that integer order is tuple order: element,
     // isotope, charge, degree, hydrogens (at most 255 in counts plus one per neighbour),
     // aromaticity, ring membership.
+    let explicit_h = atoms.iter().any(|a| a.element == 1);
     let invariant = |atom: usize| -> u64 {
         let a = &atoms[atom];
+        let hydrogens = if explicit_h {
+            molecule.total_hydrogens(atom)
+        } else {
+            a.hydrogens as usize
+        };
         (a.element as u64) << 50
             | (a.isotope.unwrap_or(0) as u64) << 34
             | ((a.charge as i16 + 128) as u64) << 26
             | (molecule.degree(atom) as u64) << 18
-            | (molecule.total_hydrogens(atom) as u64) << 2
+            | (hydrogens as u64) << 2
             | (a.aromatic as u64) << 1
             | (a.ring_count > 0) as u64
     };
     if apart(sites.iter().map(|s| invariant(s.atom)).collect()) {
         return true;
     }
-    let mut classes = ranks((0..n).map(|i| (invariant(i), i)).collect());
+    let mut keyed: Vec<(u128, u32)> = (0..n).map(|i| (invariant(i) as u128, i as u32)).collect();
+    let mut classes = vec![0u32; n];
+    ranks(&mut keyed, &mut classes);
+    // Bond label per neighbour: order (4 for aromatic) and aromaticity, as the refinement
+    // compares them.
+    let label = |b: &mol::Bond| -> u32 {
+        let order = if b.aromatic { 4 } else { b.order as u32 };
+        order << 1 | b.aromatic as u32
+    };
     for _ in 0..QUICK_ROUNDS {
-        let keyed = (0..n)
-            .map(|i| {
-                // Each neighbour as (class, bond order with 4 for aromatic, aromatic),
-                // packed; an atom's class fixes its degree, so the padding never meets
-                // an entry in a comparison that matters.
-                let mut entries = [0u64; QUICK_DEGREE];
-                for (e, nb) in entries.iter_mut().zip(molecule.neighbors(i)) {
-                    let b = &molecule.bonds()[nb.bond];
-                    let order = if b.aromatic { 4 } else { b.order };
-                    *e = (classes[nb.atom] as u64) << 16 | (order as u64) << 8 | b.aromatic as u64;
-                }
-                entries.sort_unstable();
-                ((classes[i], entries), i)
-            })
-            .collect();
-        classes = ranks(keyed);
+        for (i, slot) in keyed.iter_mut().enumerate() {
+            // Each neighbour as (class, bond label), 16 + 9 bits, sorted; the atom's own
+            // class leads. An atom's class fixes its degree, so the empty entries of
+            // atoms with fewer neighbours never meet an entry that decides anything.
+            let mut entries = [0u32; QUICK_DEGREE];
+            for (e, nb) in entries.iter_mut().zip(molecule.neighbors(i)) {
+                *e = classes[nb.atom] << 9 | label(&molecule.bonds()[nb.bond]);
+            }
+            entries.sort_unstable();
+            let packed = entries
+                .iter()
+                .fold(classes[i] as u128, |k, &e| k << 25 | e as u128);
+            *slot = (packed, i as u32);
+        }
+        ranks(&mut keyed, &mut classes);
         if apart(sites.iter().map(|s| classes[s.atom]).collect()) {
             return true;
         }
@@ -246,18 +260,16 @@ fn apart<T: Ord>(mut keys: Vec<T>) -> bool {
     keys.windows(2).all(|w| w[0] != w[1])
 }
 
-/// Class numbers by rank of key: atoms with equal keys share one.
-fn ranks<K: Ord>(mut keyed: Vec<(K, usize)>) -> Vec<u32> {
+/// Class numbers by rank of key into `classes`: atoms with equal keys share one.
+fn ranks(keyed: &mut [(u128, u32)], classes: &mut [u32]) {
     keyed.sort_unstable();
-    let mut out = vec![0u32; keyed.len()];
     let mut class = 0u32;
     for k in 0..keyed.len() {
         if k > 0 && keyed[k].0 != keyed[k - 1].0 {
             class += 1;
         }
-        out[keyed[k].1] = class;
+        classes[keyed[k].1 as usize] = class;
     }
-    out
 }
 
 /// Groups numbered from 0 in order of first appearance, sites on atoms of one symmetry

@@ -178,6 +178,10 @@ impl AtomFeatures {
 #[derive(Clone, Debug, Default)]
 pub(crate) struct FeatureTable {
     atoms: Vec<AtomFeatures>,
+    /// Scratch for `fill`: signatures, their unions, hydrogens written as atoms.
+    signatures: Vec<u64>,
+    far: Vec<u64>,
+    h: Vec<usize>,
 }
 
 impl FeatureTable {
@@ -188,17 +192,45 @@ impl FeatureTable {
             .resize(molecule.atoms().len(), AtomFeatures::default());
     }
 
-    /// Works out every atom of `molecule` at once, keeping the buffer.
+    /// Works out every atom of `molecule` at once, keeping the buffers: one pass over the
+    /// bonds for the signatures and the hydrogens written as atoms, one for the unions.
     pub(crate) fn fill(&mut self, molecule: &Molecule) {
-        let n = molecule.atoms().len();
-        let signatures: Vec<u64> = (0..n).map(|i| signature(molecule, i)).collect();
+        let atoms = molecule.atoms();
+        let n = atoms.len();
+        let (signatures, far, explicit_h) = (&mut self.signatures, &mut self.far, &mut self.h);
+        signatures.clear();
+        signatures.resize(n, SIGNATURE_ALWAYS);
+        far.clear();
+        far.resize(n, SIGNATURE_ALWAYS);
+        explicit_h.clear();
+        explicit_h.resize(n, 0);
+        let class = |i: usize| element_class(element_bit(atoms[i].element, atoms[i].aromatic));
+        for b in molecule.bonds() {
+            let group = bond_group(crate::filter::bond_kind(b));
+            signatures[b.a] |= signature_bit(class(b.b), group);
+            signatures[b.b] |= signature_bit(class(b.a), group);
+            explicit_h[b.a] += (atoms[b.b].element == 1) as usize;
+            explicit_h[b.b] += (atoms[b.a].element == 1) as usize;
+        }
+        for b in molecule.bonds() {
+            far[b.a] |= signatures[b.b];
+            far[b.b] |= signatures[b.a];
+        }
         self.atoms.clear();
-        self.atoms.extend((0..n).map(|i| {
-            let far = molecule
-                .neighbors(i)
-                .iter()
-                .fold(SIGNATURE_ALWAYS, |far, nb| far | signatures[nb.atom]);
-            AtomFeatures::with_signatures(molecule, i, signatures[i], far)
+        self.atoms.extend(atoms.iter().enumerate().map(|(i, a)| {
+            let degree = molecule.degree(i);
+            AtomFeatures {
+                element_bit: element_bit(a.element, a.aromatic),
+                charge_bit: charge_bit(a.charge),
+                total_h: count(a.hydrogens as usize + explicit_h[i]),
+                implicit_h: count(a.hydrogens as usize),
+                degree: count(degree),
+                connectivity: count(degree + a.hydrogens as usize),
+                ring_count: count(a.ring_count as usize),
+                smallest_ring: count(a.smallest_ring as usize),
+                neighbors: signatures[i],
+                far: far[i],
+            }
         }));
     }
 
@@ -222,6 +254,34 @@ impl FeatureTable {
                 *f
             }
             None => AtomFeatures::of(molecule, atom),
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_table_reads_every_atom_as_a_single_read_does() {
+        for smiles in [
+            "CC(=O)[O-].c1ccncc1[NH3+]",
+            "[H]OC([H])([H])C#N",
+            "C1CC2CCC1CC2",
+            "O=S(=O)(N)c1ccc(Cl)cc1",
+            "[13CH3][Na]",
+        ] {
+            let m = mol::parse(smiles).unwrap_or_else(|e| panic!("{smiles}: {e}"));
+            let mut filled = FeatureTable::default();
+            filled.fill(&m);
+            let mut lazy = FeatureTable::default();
+            lazy.reset(&m);
+            for atom in 0..m.atoms().len() {
+                let single = AtomFeatures::of(&m, atom);
+                assert_eq!(filled.get(&m, atom), single, "{smiles} {atom}");
+                assert_eq!(lazy.get(&m, atom), single, "{smiles} {atom}");
+                assert_eq!(lazy.peek(&m, atom), single, "{smiles} {atom}");
+            }
         }
     }
 }
