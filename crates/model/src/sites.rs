@@ -129,10 +129,10 @@ thread_local! {
 /// own hash maps; common practice): the standard one is made for keys an attacker
 /// chooses, and a cache lookup per atom is no place for it.
 #[derive(Clone, Copy, Default)]
-struct BuildFx;
+pub(crate) struct BuildFx;
 
 #[derive(Default)]
-struct Fx(u64);
+pub(crate) struct Fx(u64);
 
 impl std::hash::BuildHasher for BuildFx {
     type Hasher = Fx;

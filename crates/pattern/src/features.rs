@@ -17,8 +17,13 @@ pub(crate) const CHARGE_CAP: i8 = 31;
 
 /// The element/aromatic bit of the filter masks.
 #[inline]
-pub(crate) fn element_bit(element: u8, aromatic: bool) -> u8 {
-    element.min(ELEMENT_CAP) * 2 + aromatic as u8
+pub(crate) const fn element_bit(element: u8, aromatic: bool) -> u8 {
+    let element = if element < ELEMENT_CAP {
+        element
+    } else {
+        ELEMENT_CAP
+    };
+    element * 2 + aromatic as u8
 }
 
 /// The charge bit of the filter masks: 1 to 62 for charges -31 to 30, 0 and 63 for the
@@ -37,8 +42,38 @@ pub(crate) fn charge_exact(charge: i8) -> bool {
 /// halogens, H, anything else.
 pub(crate) const ELEMENT_CLASSES: u32 = 12;
 
+/// [`element_class`] of every element/aromatic bit, worked out at compile time.
+const ELEMENT_CLASS: [u8; 256] = {
+    let mut table = [0u8; 256];
+    let mut bit = 0;
+    while bit < 256 {
+        table[bit] = element_class(bit as u8) as u8;
+        bit += 1;
+    }
+    table
+};
+
+/// [`bond_group`] of every bond kind.
+const BOND_GROUP: [u8; 16] = {
+    let mut table = [0u8; 16];
+    let mut kind = 0;
+    while kind < 16 {
+        table[kind] = bond_group(kind as u32) as u8;
+        kind += 1;
+    }
+    table
+};
+
+/// The signature bit of a neighbour `t` through `bond`.
+#[inline]
+fn neighbor_bit(t: &mol::Atom, bond: &mol::Bond) -> u64 {
+    let class = ELEMENT_CLASS[element_bit(t.element, t.aromatic) as usize] as u32;
+    let group = BOND_GROUP[crate::filter::bond_kind(bond) as usize] as u32;
+    signature_bit(class, group)
+}
+
 /// The neighbour-signature element class of an element/aromatic bit.
-pub(crate) fn element_class(element_bit: u8) -> u32 {
+pub(crate) const fn element_class(element_bit: u8) -> u32 {
     let (element, aromatic) = (element_bit / 2, element_bit % 2 == 1);
     match element {
         6 | 7 | 8 | 16 => {
@@ -59,7 +94,7 @@ pub(crate) fn element_class(element_bit: u8) -> u32 {
 
 /// Bond groups of the neighbour signature, by bond kind (`filter::bond_kind`): single not
 /// in a ring, double, triple or any other order, aromatic, single in a ring.
-pub(crate) fn bond_group(kind: u32) -> u32 {
+pub(crate) const fn bond_group(kind: u32) -> u32 {
     if kind & 1 != 0 {
         3
     } else {
@@ -73,7 +108,7 @@ pub(crate) fn bond_group(kind: u32) -> u32 {
 }
 
 /// The signature bit of a neighbour of this class through a bond of this group.
-pub(crate) fn signature_bit(class: u32, group: u32) -> u64 {
+pub(crate) const fn signature_bit(class: u32, group: u32) -> u64 {
     1 << (group * ELEMENT_CLASSES + class)
 }
 
@@ -122,10 +157,7 @@ fn signature(molecule: &Molecule, atom: usize) -> u64 {
         .neighbors(atom)
         .iter()
         .fold(SIGNATURE_ALWAYS, |sig, nb| {
-            let t = &atoms[nb.atom];
-            let class = element_class(element_bit(t.element, t.aromatic));
-            let group = bond_group(crate::filter::bond_kind(&bonds[nb.bond]));
-            sig | signature_bit(class, group)
+            sig | neighbor_bit(&atoms[nb.atom], &bonds[nb.bond])
         })
 }
 
@@ -185,11 +217,39 @@ pub(crate) struct FeatureTable {
 }
 
 impl FeatureTable {
-    /// Forgets every atom, for `molecule`, keeping the buffer.
+    /// Forgets every atom, for `molecule`, keeping the buffers.
     pub(crate) fn reset(&mut self, molecule: &Molecule) {
+        let n = molecule.atoms().len();
         self.atoms.clear();
-        self.atoms
-            .resize(molecule.atoms().len(), AtomFeatures::default());
+        self.atoms.resize(n, AtomFeatures::default());
+        // 0: not worked out (a signature always has a bit set).
+        self.signatures.clear();
+        self.signatures.resize(n, 0);
+    }
+
+    /// The signature of `atom`, kept once worked out.
+    #[inline]
+    fn signature(&mut self, molecule: &Molecule, atom: usize) -> u64 {
+        match self.signatures.get_mut(atom) {
+            Some(s) if *s != 0 => *s,
+            Some(s) => {
+                *s = signature(molecule, atom);
+                *s
+            }
+            None => signature(molecule, atom),
+        }
+    }
+
+    /// Works `atom` out, reusing the signatures already known.
+    fn work_out(&mut self, molecule: &Molecule, atom: usize) -> AtomFeatures {
+        let own = self.signature(molecule, atom);
+        let far = molecule
+            .neighbors(atom)
+            .iter()
+            .fold(SIGNATURE_ALWAYS, |far, nb| {
+                far | self.signature(molecule, nb.atom)
+            });
+        AtomFeatures::with_signatures(molecule, atom, own, far)
     }
 
     /// Works out every atom of `molecule` at once, keeping the buffers: one pass over the
@@ -204,11 +264,9 @@ impl FeatureTable {
         far.resize(n, SIGNATURE_ALWAYS);
         explicit_h.clear();
         explicit_h.resize(n, 0);
-        let class = |i: usize| element_class(element_bit(atoms[i].element, atoms[i].aromatic));
         for b in molecule.bonds() {
-            let group = bond_group(crate::filter::bond_kind(b));
-            signatures[b.a] |= signature_bit(class(b.b), group);
-            signatures[b.b] |= signature_bit(class(b.a), group);
+            signatures[b.a] |= neighbor_bit(&atoms[b.b], b);
+            signatures[b.b] |= neighbor_bit(&atoms[b.a], b);
             explicit_h[b.a] += (atoms[b.b].element == 1) as usize;
             explicit_h[b.b] += (atoms[b.a].element == 1) as usize;
         }
@@ -247,11 +305,12 @@ impl FeatureTable {
     /// The values of `atom` (in range of the molecule).
     #[inline(always)]
     pub(crate) fn get(&mut self, molecule: &Molecule, atom: usize) -> AtomFeatures {
-        match self.atoms.get_mut(atom) {
+        match self.atoms.get(atom) {
             Some(f) if f.known() => *f,
-            Some(f) => {
-                *f = AtomFeatures::of(molecule, atom);
-                *f
+            Some(_) => {
+                let f = self.work_out(molecule, atom);
+                self.atoms[atom] = f;
+                f
             }
             None => AtomFeatures::of(molecule, atom),
         }
