@@ -72,6 +72,8 @@ mod graph;
 mod matcher;
 mod parse;
 mod primitive;
+#[cfg(test)]
+mod reference;
 
 pub use error::PatternError;
 
