@@ -210,6 +210,9 @@ impl AtomFeatures {
 #[derive(Clone, Debug, Default)]
 pub(crate) struct FeatureTable {
     atoms: Vec<AtomFeatures>,
+    /// Atoms per element/aromatic bit, saturating, when `census_taken`.
+    census: Option<Box<[u16; 256]>>,
+    census_taken: bool,
     /// Scratch for `fill`: signatures, their unions, hydrogens written as atoms.
     signatures: Vec<u64>,
     far: Vec<u64>,
@@ -220,11 +223,36 @@ impl FeatureTable {
     /// Forgets every atom, for `molecule`, keeping the buffers.
     pub(crate) fn reset(&mut self, molecule: &Molecule) {
         let n = molecule.atoms().len();
+        // A matcher made for a few searches does without the census.
+        self.census_taken = false;
         self.atoms.clear();
         self.atoms.resize(n, AtomFeatures::default());
         // 0: not worked out (a signature always has a bit set).
         self.signatures.clear();
         self.signatures.resize(n, 0);
+    }
+
+    /// Counts the atoms of `molecule` per element/aromatic bit.
+    fn take_census(&mut self, molecule: &Molecule) {
+        let census = self.census.get_or_insert_with(|| Box::new([0; 256]));
+        census.fill(0);
+        self.census_taken = true;
+        for a in molecule.atoms() {
+            let c = &mut census[element_bit(a.element, a.aromatic) as usize];
+            *c = c.saturating_add(1);
+        }
+    }
+
+    /// Whether the molecule has at least `count` atoms of each element/aromatic bit listed
+    /// (always, when no census was taken).
+    #[inline]
+    pub(crate) fn has(&self, wanted: &[(u8, u16)]) -> bool {
+        match &self.census {
+            Some(census) if self.census_taken => wanted
+                .iter()
+                .all(|&(bit, count)| census[bit as usize] >= count),
+            _ => true,
+        }
     }
 
     /// The signature of `atom`, kept once worked out.
@@ -255,6 +283,7 @@ impl FeatureTable {
     /// Works out every atom of `molecule` at once, keeping the buffers: one pass over the
     /// bonds for the signatures and the hydrogens written as atoms, one for the unions.
     pub(crate) fn fill(&mut self, molecule: &Molecule) {
+        self.take_census(molecule);
         let atoms = molecule.atoms();
         let n = atoms.len();
         let (signatures, far, explicit_h) = (&mut self.signatures, &mut self.far, &mut self.h);

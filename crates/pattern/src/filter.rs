@@ -418,6 +418,16 @@ impl AtomFilter {
         }
         self
     }
+    /// The one element/aromatic bit the filter admits, if it admits only one.
+    pub(crate) fn single_element(&self) -> Option<u8> {
+        let words = &self.sets.elements;
+        let ones: u32 = words.iter().map(|w| w.count_ones()).sum();
+        if ones != 1 {
+            return None;
+        }
+        let (i, w) = words.iter().enumerate().find(|(_, w)| **w != 0)?;
+        Some((i * 64) as u8 + w.trailing_zeros() as u8)
+    }
     /// The element/aromatic projection alone.
     pub(crate) fn admits_element(&self, element: u8, aromatic: bool) -> bool {
         self.sets

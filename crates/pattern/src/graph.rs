@@ -52,6 +52,9 @@ pub(crate) struct Graph {
     pub(crate) filters: Vec<AtomFilter>,
     /// Bond kinds (`filter::bond_kind`) each pattern bond admits.
     pub(crate) bond_masks: Vec<u16>,
+    /// Atoms the molecule must hold: per element/aromatic bit that some pattern atoms
+    /// admit alone, how many of them (each needs an atom of its own).
+    pub(crate) census: Vec<(u8, u16)>,
     /// Per pattern atom, its neighbours placed after it, with the bond kinds between:
     /// where the search looks ahead.
     pub(crate) ahead: Vec<Vec<(usize, u16)>>,
@@ -74,6 +77,7 @@ impl Graph {
             &self.min_degree,
             envs,
         );
+        self.census = census(&self.filters);
     }
 
     /// Builds the search plan rooted at `root`. The graph must be connected (the parser
@@ -148,6 +152,7 @@ impl Graph {
             })
             .collect();
         let filters = filters(&atoms, &bonds, &bond_masks, &min_degree, &[]);
+        let census = census(&filters);
         let ahead = adjacency
             .iter()
             .enumerate()
@@ -166,6 +171,7 @@ impl Graph {
             steps,
             filters,
             bond_masks,
+            census,
             ahead,
             min_degree,
             expr_ids: Vec::new(),
@@ -246,4 +252,16 @@ fn on_cycle(atoms: usize, bonds: &[PatternBond], bond: usize) -> bool {
         }
     }
     false
+}
+
+/// What the pattern asks of the molecule's atom counts: see `Graph::census`.
+fn census(filters: &[AtomFilter]) -> Vec<(u8, u16)> {
+    let mut out: Vec<(u8, u16)> = Vec::new();
+    for bit in filters.iter().filter_map(AtomFilter::single_element) {
+        match out.iter_mut().find(|(b, _)| *b == bit) {
+            Some((_, count)) => *count = count.saturating_add(1),
+            None => out.push((bit, 1)),
+        }
+    }
+    out
 }

@@ -286,6 +286,8 @@ impl<'a> Search<'a> {
         if n == 0
             || anchor >= self.molecule.atoms().len()
             || avoid.contains(&anchor)
+            // A molecule short of the atoms the pattern names cannot hold it anywhere.
+            || !self.memo.features.has(&graph.census)
             || !self.atom_ok(graph, graph.root, anchor)
         {
             return false;
