@@ -36,17 +36,29 @@
 //! # Performance
 //!
 //! Everything that depends only on the pattern is worked out at parse time: expression
-//! trees with precedence applied, the placement order from the anchor, and the anchor
-//! pre-filter (a bit set of element/aromatic pairs and one of charges, per pattern atom; an
-//! atom like `C` or `[c,n]` is decided by it alone). A search allocates nothing for patterns
-//! up to 32 atoms besides the matches it returns; `$()` environments are memoized per
-//! (environment, atom) within one call, the first 16 answers without allocating.
-//! [`Matcher`] runs many patterns on one molecule: every environment and every atom
-//! expression gets a process-wide id from its text at parse time, so answers are kept per
-//! molecule and shared between patterns (`!$(NC=O)` written in ten site classes is
-//! searched once per atom), in buffers reused from one matcher to the next on a thread.
-//! [`Pattern::first_match_at`] stops at the first match.
-//! `benches/match.rs` measures anchored site matching over a drug-like sample.
+//! trees with precedence applied, the placement order from the anchor, bond expressions as
+//! masks over sixteen bond kinds, and a pre-filter per pattern atom. The pre-filter is one
+//! bit set per projection (element/aromatic pair, charge, `H`, `h`, `D`, `X`, `R`, `r`),
+//! which decides an atom like `[CX4;H1,H2;+0]` alone, plus what the atom's pattern
+//! neighbours and their neighbours need of the molecule (element class and bond kind, held
+//! against a per-atom signature of its neighbours), the pattern bonds at it, and the first
+//! atom of each `$()` environment it names. A molecule atom's values are read once into a
+//! table, so a filter test is a handful of bit tests. The search looks one step ahead
+//! (every pattern neighbour still to place needs a free molecule neighbour of its own
+//! passing its filter) and first checks that the molecule holds as many atoms of each
+//! element as the pattern names. All of these only rule out what cannot match: matches and
+//! their order are those of a plain search (`reference.rs` checks it).
+//!
+//! A search allocates nothing for patterns up to 32 atoms besides the matches it returns;
+//! `$()` environments are memoized per (environment, atom) within one call, the first 16
+//! answers without allocating. [`Matcher`] runs many patterns on one molecule: every
+//! environment and every atom expression gets a process-wide id from its text at parse
+//! time, so answers are kept per molecule and shared between patterns (`!$(NC=O)` written
+//! in ten site classes is searched once per atom), in buffers reused from one matcher to
+//! the next on a thread. [`AtomKey`] lets a caller keep, per kind of atom, which patterns
+//! can anchor there. [`Pattern::first_match_at`] stops at the first match and
+//! [`Matcher::least_match_at`] keeps only the least. `benches/match.rs` measures anchored
+//! site matching over a drug-like sample.
 //!
 //! # Checked against
 //!
@@ -254,8 +266,9 @@ impl Pattern {
             .collect()
     }
     /// A quick pre-filter: whether the anchored pattern atom could match `atom` at all
-    /// (element, aromaticity, charge). Lets callers skip most atoms without a search.
-    /// `false` is certain; `true` means a search is needed.
+    /// (element, aromaticity, charge, hydrogens, connections, rings, and what the pattern
+    /// needs of its neighbours). Lets callers skip most atoms without a search. `false` is
+    /// certain; `true` means a search is needed.
     pub fn could_anchor(&self, molecule: &Molecule, atom: usize) -> bool {
         atom < molecule.atoms().len() && self.anchor_filter.admits(molecule, atom)
     }
