@@ -328,28 +328,40 @@ impl<'a> Search<'a> {
         let features = &mut self.memo.features;
         let ahead = &graph.ahead[at];
         let neighbors = molecule.neighbors(atom);
-        let fits = |features: &mut FeatureTable, next: usize, mask: u16, nb: &mol::Neighbor| {
-            mask >> bond_kind(&bonds[nb.bond]) & 1 != 0
-                && graph.filters[next].admits_features(&features.get(molecule, nb.atom))
-                && !assign.contains(&nb.atom)
-                && !avoid.contains(&nb.atom)
-        };
+        let free = |nb: &mol::Neighbor| !assign.contains(&nb.atom) && !avoid.contains(&nb.atom);
         if ahead.len() < 2 || ahead.len() > HALL_AHEAD || neighbors.len() > 32 {
-            return ahead
-                .iter()
-                .all(|&(next, mask)| neighbors.iter().any(|nb| fits(features, next, mask, nb)));
+            return ahead.iter().all(|&(next, mask)| {
+                neighbors.iter().any(|nb| {
+                    mask >> bond_kind(&bonds[nb.bond]) & 1 != 0
+                        && graph.filters[next].admits_features(&features.get(molecule, nb.atom))
+                        && free(nb)
+                })
+            });
         }
-        // Candidates per pattern neighbour, as bits over the molecule neighbours.
+        // Candidates per pattern neighbour, as bits over the molecule neighbours; each
+        // molecule neighbour read once.
         let mut candidates = [0u32; HALL_AHEAD];
-        for (k, &(next, mask)) in ahead.iter().enumerate() {
-            for (i, nb) in neighbors.iter().enumerate() {
-                if fits(features, next, mask, nb) {
+        for (i, nb) in neighbors.iter().enumerate() {
+            let kind = bond_kind(&bonds[nb.bond]);
+            let mut f = None;
+            for (k, &(next, mask)) in ahead.iter().enumerate() {
+                if mask >> kind & 1 == 0 {
+                    continue;
+                }
+                let f = *f.get_or_insert_with(|| features.get(molecule, nb.atom));
+                if graph.filters[next].admits_features(&f) {
                     candidates[k] |= 1 << i;
                 }
             }
-            if candidates[k] == 0 {
-                return false;
+            // A neighbour already placed or fenced off is no candidate after all.
+            if candidates[..ahead.len()].iter().any(|c| c >> i & 1 != 0) && !free(nb) {
+                for c in &mut candidates {
+                    *c &= !(1 << i);
+                }
             }
+        }
+        if candidates[..ahead.len()].contains(&0) {
+            return false;
         }
         (3u32..1 << ahead.len())
             .filter(|group| group.count_ones() > 1)
