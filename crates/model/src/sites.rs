@@ -36,6 +36,14 @@ pub struct FoundSite {
 /// Sites on symmetry-equivalent atoms (`mol::symmetry_classes`) share a group; groups are
 /// numbered from 0 in order of first appearance. Several protons on one atom (NH2, CH2) are
 /// one site. Atoms of any component are searched; callers pass the standardized parent.
+///
+/// # Performance
+///
+/// Each thread keeps, for the library it used last, which classes can anchor on each kind
+/// of atom ([`pattern::AtomKey`], at most 16,384 kinds before it starts afresh), so most
+/// atoms go straight to the few searches that can succeed; the symmetry classes are worked
+/// out only for the rare molecules whose site atoms three refinement rounds do not tell
+/// apart. `benches/stages.rs` (`find-sites`) measures it.
 pub fn find_sites(library: &Library, molecule: &Molecule) -> Vec<FoundSite> {
     let index = site_index(library);
     let atoms = molecule.atoms();
