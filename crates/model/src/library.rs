@@ -722,7 +722,8 @@ pub(crate) struct SiteIndex {
     pub(crate) patterns: Vec<Option<&'static Pattern>>,
     /// `(map, pattern atom)` per class.
     pub(crate) maps: Vec<Vec<(u16, usize)>>,
-    /// Candidate classes per element (index = atomic number, 0..=118).
+    /// Candidate classes per element and aromaticity (index = atomic number * 2 +
+    /// aromatic, atomic numbers 0..=118).
     by_element: Vec<Vec<usize>>,
     /// Key the index was built for: pattern text and priority per class.
     key: Vec<(String, i32)>,
@@ -746,13 +747,14 @@ impl SiteIndex {
             .iter()
             .map(|c| anchor_elements(&c.pattern))
             .collect();
-        let by_element = (0..ELEMENTS)
-            .map(|e| {
+        let by_element = (0..ELEMENTS * 2)
+            .map(|key| {
+                let (e, aromatic) = ((key / 2) as u8, key % 2 == 1);
                 order
                     .iter()
                     .copied()
-                    .filter(|&i| patterns[i].is_some())
-                    .filter(|&i| filters[i].as_ref().is_none_or(|f| f.contains(&(e as u8))))
+                    .filter(|&i| patterns[i].is_some_and(|p| p.could_anchor_element(e, aromatic)))
+                    .filter(|&i| filters[i].as_ref().is_none_or(|f| f.contains(&e)))
                     .collect()
             })
             .collect();
@@ -769,10 +771,11 @@ impl SiteIndex {
         }
     }
 
-    /// Classes whose site atom can be `element`, in precedence order.
-    pub(crate) fn candidates(&self, element: u8) -> &[usize] {
+    /// Classes whose site atom can be `element` with this aromaticity, in precedence order
+    /// (the others cannot anchor there, so leaving them out changes no answer).
+    pub(crate) fn candidates(&self, element: u8, aromatic: bool) -> &[usize] {
         self.by_element
-            .get(element as usize)
+            .get(element as usize * 2 + aromatic as usize)
             .map_or(&[], |v| v.as_slice())
     }
 
@@ -817,9 +820,17 @@ pub(crate) fn site_index(library: &Library) -> IndexRef {
 }
 
 /// A site index, shared across threads or local to one.
+#[derive(Clone)]
 pub(crate) enum IndexRef {
     Shared(Arc<SiteIndex>),
     Local(Rc<SiteIndex>),
+}
+
+impl IndexRef {
+    /// Whether both refer to the same index.
+    pub(crate) fn same(&self, other: &IndexRef) -> bool {
+        std::ptr::eq::<SiteIndex>(&**self, &**other)
+    }
 }
 
 impl std::ops::Deref for IndexRef {

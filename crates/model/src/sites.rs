@@ -1,10 +1,11 @@
 //! Finding ionizable sites: every class pattern tried on the atoms it can anchor on, one
 //! site per atom, overlaps resolved by class priority.
+use std::cell::RefCell;
 use std::collections::HashMap;
 
 use mol::Molecule;
 
-use crate::library::site_index;
+use crate::library::{site_index, IndexRef};
 use crate::Library;
 
 /// A site found by a class pattern.
@@ -35,57 +36,338 @@ pub struct FoundSite {
 /// Sites on symmetry-equivalent atoms (`mol::symmetry_classes`) share a group; groups are
 /// numbered from 0 in order of first appearance. Several protons on one atom (NH2, CH2) are
 /// one site. Atoms of any component are searched; callers pass the standardized parent.
+///
+/// # Performance
+///
+/// Each thread keeps, for the library it used last, which classes can anchor on each kind
+/// of atom ([`pattern::AtomKey`], at most 16,384 kinds before it starts afresh), so most
+/// atoms go straight to the few searches that can succeed; the symmetry classes are worked
+/// out only for the rare molecules whose site atoms three refinement rounds do not tell
+/// apart. `benches/stages.rs` (`find-sites`) measures it.
 pub fn find_sites(library: &Library, molecule: &Molecule) -> Vec<FoundSite> {
     let index = site_index(library);
     let atoms = molecule.atoms();
-    let symmetry = mol::symmetry_classes(molecule);
-    let mut groups: HashMap<u32, usize> = HashMap::new();
     let mut sites = Vec::new();
     // Shared by every class tried on this molecule: an environment (`!$(NC=O)`) written in
     // many classes is worked out once per atom.
-    let mut matcher = pattern::Matcher::new(molecule);
-    for (atom, a) in atoms.iter().enumerate() {
-        // Explicit hydrogens never carry a site themselves: their heavy atom does.
-        if a.element == 1 {
-            continue;
-        }
-        for &class in index.candidates(a.element) {
-            let Some(pattern) = index.patterns[class] else {
-                continue;
-            };
-            // One search: an empty list is a non-match, and `is_match_at` first would only
-            // repeat the search for the classes that match.
-            if !matcher.could_anchor(pattern, atom) {
+    let mut matcher = pattern::Matcher::with_all_atoms(molecule);
+    CANDIDATES.with(|cache| {
+        let mut cache = cache.borrow_mut();
+        let cache = cache.for_index(&index);
+        for (atom, a) in atoms.iter().enumerate() {
+            // Explicit hydrogens never carry a site themselves: their heavy atom does.
+            if a.element == 1 {
                 continue;
             }
-            let Some(best) = matcher
-                .matches_at(pattern, atom, &[])
-                .into_iter()
-                .map(|m| m.atoms)
-                .min()
-            else {
+            let Some(key) = matcher.atom_key(atom) else {
                 continue;
             };
-            let mapped = index.maps[class]
-                .iter()
-                .filter_map(|&(map, p)| best.get(p).map(|&at| (map, at)))
-                .collect();
-            // An atom without a symmetry class (never expected) is its own group.
-            let key = symmetry
-                .get(atom)
-                .copied()
-                .map_or(u32::MAX - atom as u32, |k| k);
-            let next = groups.len();
-            let group = *groups.entry(key).or_insert(next);
-            sites.push(FoundSite {
-                class,
-                atom,
-                matched: best,
-                mapped,
-                group,
+            // The classes whose anchor can sit on an atom like this one, in precedence
+            // order: the same for every atom with the key, so worked out once.
+            let classes = cache.entry(key).or_insert_with(|| {
+                index
+                    .candidates(a.element, a.aromatic)
+                    .iter()
+                    .copied()
+                    .filter(|&class| {
+                        index.patterns[class]
+                            .is_some_and(|p| pattern::Matcher::could_anchor_key(p, &key))
+                    })
+                    .collect()
             });
-            break;
+            for &class in classes.iter() {
+                let Some(pattern) = index.patterns[class] else {
+                    continue;
+                };
+                let Some(best) = matcher.least_match_at(pattern, atom, &[]) else {
+                    continue;
+                };
+                let mapped = index.maps[class]
+                    .iter()
+                    .filter_map(|&(map, p)| best.get(p).map(|&at| (map, at)))
+                    .collect();
+                sites.push(FoundSite {
+                    class,
+                    atom,
+                    matched: best,
+                    mapped,
+                    group: 0,
+                });
+                break;
+            }
+        }
+    });
+    number_groups(molecule, &mut sites);
+    sites
+}
+
+/// Keys kept before the cache starts afresh: enough for the atom kinds of a large
+/// screening set, a bound on memory whatever the input.
+const CANDIDATE_KEYS: usize = 1 << 14;
+
+/// Per thread, the candidate classes by atom key for the index last used. The index is
+/// held, so it cannot be freed and another built at its address while it is kept.
+#[derive(Default)]
+struct CandidateCache {
+    index: Option<IndexRef>,
+    classes: HashMap<pattern::AtomKey, Vec<usize>, BuildFx>,
+}
+
+impl CandidateCache {
+    /// The map for `index`, emptied if it was kept for another one or grew too large.
+    fn for_index(
+        &mut self,
+        index: &IndexRef,
+    ) -> &mut HashMap<pattern::AtomKey, Vec<usize>, BuildFx> {
+        if !self.index.as_ref().is_some_and(|i| i.same(index))
+            || self.classes.len() >= CANDIDATE_KEYS
+        {
+            self.index = Some(index.clone());
+            self.classes.clear();
+        }
+        &mut self.classes
+    }
+}
+
+thread_local! {
+    static CANDIDATES: RefCell<CandidateCache> = RefCell::new(CandidateCache::default());
+}
+
+/// A quick hash for small keys (multiply and rotate per word, after the one in rustc's
+/// own hash maps; common practice): the standard one is made for keys an attacker
+/// chooses, and a cache lookup per atom is no place for it.
+#[derive(Clone, Copy, Default)]
+pub(crate) struct BuildFx;
+
+#[derive(Default)]
+pub(crate) struct Fx(u64);
+
+impl std::hash::BuildHasher for BuildFx {
+    type Hasher = Fx;
+    fn build_hasher(&self) -> Fx {
+        Fx(0)
+    }
+}
+
+impl std::hash::Hasher for Fx {
+    fn finish(&self) -> u64 {
+        self.0
+    }
+    fn write(&mut self, bytes: &[u8]) {
+        for chunk in bytes.chunks(8) {
+            let mut word = [0u8; 8];
+            word[..chunk.len()].copy_from_slice(chunk);
+            self.write_u64(u64::from_le_bytes(word));
         }
     }
-    sites
+    fn write_u8(&mut self, n: u8) {
+        self.write_u64(n as u64);
+    }
+    fn write_u64(&mut self, n: u64) {
+        self.0 = (self.0.rotate_left(5) ^ n).wrapping_mul(0x51_7c_c1_b7_27_22_0a_95);
+    }
+}
+
+/// Rounds of neighbour refinement tried on the site atoms before the full symmetry
+/// classes are asked for.
+const QUICK_ROUNDS: usize = 3;
+
+/// Numbers the symmetry groups of `sites` (in molecule order) from 0 in order of first
+/// appearance.
+///
+/// `mol::symmetry_classes` refines a starting invariant (element, isotope, charge, degree,
+/// hydrogens, aromaticity, ring membership) by the classes of the neighbours and the bonds
+/// to them, round after round, and classes only ever split. So two atoms apart after some
+/// rounds of the same refinement are apart in the end: when every pair of site atoms is
+/// apart within [`QUICK_ROUNDS`] rounds (almost always: truly equivalent sites are rare),
+/// each site is its own group and the classes are never worked out. Otherwise they are,
+/// and sites share a group by them. `quick_groups_agree_with_symmetry_classes` checks the
+/// two ways against each other.
+fn number_groups(molecule: &Molecule, sites: &mut [FoundSite]) {
+    if !quick_groups_apart(molecule, sites) {
+        let symmetry = mol::symmetry_classes(molecule);
+        groups_by_classes(&symmetry, sites);
+        return;
+    }
+    for (i, s) in sites.iter_mut().enumerate() {
+        s.group = i;
+    }
+}
+
+/// Neighbours per atom the quick rounds handle (keys of fixed size); a molecule with more
+/// on some atom goes to the full symmetry classes.
+const QUICK_DEGREE: usize = 4;
+
+/// Whether the site atoms are pairwise apart within [`QUICK_ROUNDS`] refinement rounds (of
+/// the refinement `mol::symmetry_classes` runs). `false` when they are not, or when the
+/// molecule is beyond what the quick rounds handle.
+fn quick_groups_apart(molecule: &Molecule, sites: &[FoundSite]) -> bool {
+    let atoms = molecule.atoms();
+    let n = atoms.len();
+    // Class numbers and bond kinds packed into one integer per atom below.
+    if n >= 1 << 16 || (0..n).any(|i| molecule.degree(i) > QUICK_DEGREE) {
+        return false;
+    }
+    // The starting invariant, packed so that integer order is tuple order: element,
+    // isotope, charge, degree, hydrogens (at most 255 in counts plus one per neighbour),
+    // aromaticity, ring membership.
+    let explicit_h = atoms.iter().any(|a| a.element == 1);
+    let invariant = |atom: usize| -> u64 {
+        let a = &atoms[atom];
+        let hydrogens = if explicit_h {
+            molecule.total_hydrogens(atom)
+        } else {
+            a.hydrogens as usize
+        };
+        (a.element as u64) << 50
+            | (a.isotope.unwrap_or(0) as u64) << 34
+            | ((a.charge as i16 + 128) as u64) << 26
+            | (molecule.degree(atom) as u64) << 18
+            | (hydrogens as u64) << 2
+            | (a.aromatic as u64) << 1
+            | (a.ring_count > 0) as u64
+    };
+    if apart(sites.iter().map(|s| invariant(s.atom)).collect()) {
+        return true;
+    }
+    let mut keyed: Vec<(u128, u32)> = (0..n).map(|i| (invariant(i) as u128, i as u32)).collect();
+    let mut classes = vec![0u32; n];
+    ranks(&mut keyed, &mut classes);
+    // Bond label per neighbour: order (4 for aromatic) and aromaticity, as the refinement
+    // compares them.
+    let label = |b: &mol::Bond| -> u32 {
+        let order = if b.aromatic { 4 } else { b.order as u32 };
+        order << 1 | b.aromatic as u32
+    };
+    for _ in 0..QUICK_ROUNDS {
+        for (i, slot) in keyed.iter_mut().enumerate() {
+            // Each neighbour as (class, bond label), 16 + 9 bits, sorted; the atom's own
+            // class leads. An atom's class fixes its degree, so the empty entries of
+            // atoms with fewer neighbours never meet an entry that decides anything.
+            let mut entries = [0u32; QUICK_DEGREE];
+            for (e, nb) in entries.iter_mut().zip(molecule.neighbors(i)) {
+                *e = classes[nb.atom] << 9 | label(&molecule.bonds()[nb.bond]);
+            }
+            entries.sort_unstable();
+            let packed = entries
+                .iter()
+                .fold(classes[i] as u128, |k, &e| k << 25 | e as u128);
+            *slot = (packed, i as u32);
+        }
+        ranks(&mut keyed, &mut classes);
+        if apart(sites.iter().map(|s| classes[s.atom]).collect()) {
+            return true;
+        }
+    }
+    false
+}
+
+/// Whether no two keys are equal.
+fn apart<T: Ord>(mut keys: Vec<T>) -> bool {
+    keys.sort_unstable();
+    keys.windows(2).all(|w| w[0] != w[1])
+}
+
+/// Class numbers by rank of key into `classes`: atoms with equal keys share one.
+fn ranks(keyed: &mut [(u128, u32)], classes: &mut [u32]) {
+    keyed.sort_unstable();
+    let mut class = 0u32;
+    for k in 0..keyed.len() {
+        if k > 0 && keyed[k].0 != keyed[k - 1].0 {
+            class += 1;
+        }
+        classes[keyed[k].1 as usize] = class;
+    }
+}
+
+/// Groups numbered from 0 in order of first appearance, sites on atoms of one symmetry
+/// class sharing one.
+fn groups_by_classes(symmetry: &[u32], sites: &mut [FoundSite]) {
+    let mut groups: HashMap<u32, usize> = HashMap::new();
+    for s in sites.iter_mut() {
+        // An atom without a symmetry class (never expected) is its own group.
+        let key = symmetry
+            .get(s.atom)
+            .copied()
+            .map_or(u32::MAX - s.atom as u32, |k| k);
+        let next = groups.len();
+        s.group = *groups.entry(key).or_insert(next);
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The groups the full symmetry classes give, for comparison.
+    fn by_classes(molecule: &Molecule, sites: &[FoundSite]) -> Vec<usize> {
+        let mut sites = sites.to_vec();
+        groups_by_classes(&mol::symmetry_classes(molecule), &mut sites);
+        sites.iter().map(|s| s.group).collect()
+    }
+
+    fn check(smiles: &str) -> Vec<usize> {
+        let molecule = mol::parse(smiles).unwrap_or_else(|e| panic!("{smiles}: {e}"));
+        let parent = mol::standardize(&molecule)
+            .unwrap_or_else(|e| panic!("{smiles}: {e}"))
+            .parent;
+        let sites = find_sites(Library::builtin(), &parent);
+        let groups: Vec<usize> = sites.iter().map(|s| s.group).collect();
+        assert_eq!(groups, by_classes(&parent, &sites), "{smiles}");
+        groups
+    }
+
+    #[test]
+    fn quick_groups_agree_with_symmetry_classes() {
+        // Symmetric diacids, diamines and rings (groups shared), near-symmetric ones
+        // (apart only after some rounds) and the far ends of long chains (apart only
+        // beyond the quick rounds).
+        let shared = |g: Vec<usize>| g.iter().enumerate().any(|(i, x)| g[..i].contains(x));
+        assert!(shared(check("OC(=O)CCC(=O)O")));
+        assert!(shared(check("NCCCCN")));
+        assert!(!shared(check("NCCCCNC")));
+        check("OC(=O)CCCC(=O)OC");
+        assert!(!shared(check("NCCCCC(C)CCCCCCCN")));
+        check("OC(=O)CCCCCCCCCCC(=O)OCC");
+        check("C1CNCCN1");
+        check("Oc1ccc(O)cc1");
+        check("Oc1cccc(O)c1C");
+        check("c1cc(N)ccc1Cc1ccc(N)cc1");
+        check("c1cc(N)ccc1Cc1ccc(N)cc1C");
+        check("OC(=O)c1cc(C(=O)O)cc(C(=O)O)c1");
+    }
+
+    #[test]
+    fn quick_groups_agree_with_symmetry_classes_over_the_moses_sample() {
+        // Reference data beside the repository; skipped when absent.
+        let path = concat!(
+            env!("CARGO_MANIFEST_DIR"),
+            "/../../../shared/data/moses-sample.smi"
+        );
+        let Ok(text) = std::fs::read_to_string(path) else {
+            eprintln!("note: {path} not found; skipped");
+            return;
+        };
+        let mut merged = 0;
+        for line in text.lines() {
+            let Some(smiles) = line.split_whitespace().next() else {
+                continue;
+            };
+            let Ok(molecule) = mol::parse(smiles) else {
+                continue;
+            };
+            let Ok(std) = mol::standardize(&molecule) else {
+                continue;
+            };
+            let sites = find_sites(Library::builtin(), &std.parent);
+            let groups: Vec<usize> = sites.iter().map(|s| s.group).collect();
+            assert_eq!(groups, by_classes(&std.parent, &sites), "{smiles}");
+            merged += groups
+                .iter()
+                .enumerate()
+                .any(|(i, g)| groups[..i].contains(g)) as usize;
+        }
+        // Some molecules of the sample do have equivalent sites, so both ways were taken.
+        assert!(merged > 0);
+    }
 }

@@ -5,6 +5,7 @@
 //! anchored on that atom, keeps out of the ring or chain, and picks the best match; when
 //! nothing matches it falls back to the nearest type by the first atom alone and says so.
 use std::cell::RefCell;
+use std::collections::HashMap;
 use std::rc::Rc;
 use std::sync::Arc;
 
@@ -13,6 +14,7 @@ use once_cell::sync::Lazy;
 use mol::{Hybridization, Molecule};
 use pattern::Pattern;
 
+use crate::sites::BuildFx;
 use crate::{Library, SubstituentEntry};
 
 /// A substituent recognized at an attachment point.
@@ -79,9 +81,32 @@ pub fn recognize<'a>(
     let mut best: Option<(i32, usize, usize, Vec<usize>)> = None;
     // Environments shared by several entries are worked out once per call.
     let mut matcher = pattern::Matcher::new(molecule);
-    // Only entries whose first atom can be this element and aromaticity, in entry order:
-    // the others could not anchor here, so leaving them out changes nothing.
-    for &i in index.candidates(a.element, a.aromatic) {
+    let key = matcher.atom_key(atom)?;
+    // Only entries whose first atom can sit on an atom like this one, in entry order: the
+    // others could not anchor here, so leaving them out changes nothing. The same for
+    // every atom with the key, so kept by it.
+    let candidates = CANDIDATES.with(|cache| {
+        let mut cache = cache.borrow_mut();
+        if !cache.index.as_ref().is_some_and(|i| i.same(&index))
+            || cache.entries.len() >= CANDIDATE_KEYS
+        {
+            cache.index = Some(index.clone());
+            cache.entries.clear();
+        }
+        Rc::clone(cache.entries.entry(key).or_insert_with(|| {
+            index
+                .candidates(a.element, a.aromatic)
+                .iter()
+                .copied()
+                .filter(|&i| {
+                    index.compiled[i]
+                        .as_ref()
+                        .is_some_and(|p| pattern::Matcher::could_anchor_key(p, &key))
+                })
+                .collect()
+        }))
+    });
+    for &i in candidates.iter() {
         let entry = &library.substituents[i];
         let Some(p) = &index.compiled[i] else {
             continue;
@@ -93,9 +118,7 @@ pub fn recognize<'a>(
                 continue;
             }
         }
-        if !p.could_anchor(molecule, atom) {
-            continue;
-        }
+        // The search tries the anchor's pre-filter first: no `could_anchor` needed.
         let Some(m) = matcher.first_match_at(p, atom, &fence) else {
             continue;
         };
@@ -297,6 +320,22 @@ impl SubstituentIndex {
     }
 }
 
+/// Keys kept before the candidate cache starts afresh: a bound on memory whatever the
+/// input.
+const CANDIDATE_KEYS: usize = 1 << 14;
+
+/// Per thread, the candidate entries by atom key for the index last used (held, so that
+/// no other index can be built at its address while it is kept).
+#[derive(Default)]
+struct CandidateCache {
+    index: Option<IndexRef>,
+    entries: HashMap<pattern::AtomKey, Rc<[usize]>, BuildFx>,
+}
+
+thread_local! {
+    static CANDIDATES: RefCell<CandidateCache> = RefCell::new(CandidateCache::default());
+}
+
 /// One cached index, keyed by the pattern texts and ids themselves so that a library
 /// edited in place or rebuilt at the same address is never served stale patterns.
 struct Slot {
@@ -319,9 +358,17 @@ static BUILTIN_INDEX: Lazy<Arc<SubstituentIndex>> =
     Lazy::new(|| Arc::new(SubstituentIndex::build(&Library::builtin().substituents)));
 
 /// An index shared across threads or local to one.
+#[derive(Clone)]
 enum IndexRef {
     Shared(Arc<SubstituentIndex>),
     Local(Rc<SubstituentIndex>),
+}
+
+impl IndexRef {
+    /// Whether both refer to the same index.
+    fn same(&self, other: &IndexRef) -> bool {
+        std::ptr::eq::<SubstituentIndex>(&**self, &**other)
+    }
 }
 
 impl std::ops::Deref for IndexRef {

@@ -37,8 +37,12 @@ impl<P> Expr<P> {
 
     /// Moves operands holding a costly primitive after the others, at every level. The
     /// operators are side-effect free, so the answer is unchanged while short-circuiting
-    /// skips more of the costly ones (`[$(...);CX4]` tests the element first).
+    /// skips more of the costly ones (`[$(...);CX4]` tests the element first). In a
+    /// conjunction a costly primitive also comes before a negated one: an environment
+    /// written plainly usually fails where the atom is not the one wanted, a negated one
+    /// usually holds, so the plain one more often ends the walk.
     pub(crate) fn cheap_first(&mut self, costly: &impl Fn(&P) -> bool) {
+        let conjunction = matches!(self, Expr::And(_));
         match self {
             Expr::Prim(_) => {}
             Expr::Not(e) => e.cheap_first(costly),
@@ -48,7 +52,9 @@ impl<P> Expr<P> {
                 // on its own ranks last; a compound holding one may still end early.
                 es.sort_by_key(|e| match e {
                     Expr::Prim(p) if costly(p) => 2,
-                    Expr::Not(inner) if matches!(**inner, Expr::Prim(ref p) if costly(p)) => 2,
+                    Expr::Not(inner) if matches!(**inner, Expr::Prim(ref p) if costly(p)) => {
+                        2 + conjunction as u8
+                    }
                     e if e.any_prim(costly) => 1,
                     _ => 0,
                 });

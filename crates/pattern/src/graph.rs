@@ -1,7 +1,7 @@
 //! A compiled pattern graph and its search plan.
 
 use crate::expr::Expr;
-use crate::filter::AtomFilter;
+use crate::filter::{self, AtomFilter};
 use crate::primitive::{AtomPrim, BondPrim};
 
 /// One pattern atom.
@@ -47,8 +47,17 @@ pub(crate) struct Graph {
     pub(crate) root: usize,
     /// Every atom but the root, in placement order.
     pub(crate) steps: Vec<Step>,
-    /// Cheap test per pattern atom.
+    /// Cheap test per pattern atom, the pattern bonds at the atom included (a molecule atom
+    /// with fewer neighbours cannot sit there).
     pub(crate) filters: Vec<AtomFilter>,
+    /// Bond kinds (`filter::bond_kind`) each pattern bond admits.
+    pub(crate) bond_masks: Vec<u16>,
+    /// Atoms the molecule must hold: per element/aromatic bit that some pattern atoms
+    /// admit alone, how many of them (each needs an atom of its own).
+    pub(crate) census: Vec<(u8, u16)>,
+    /// Per pattern atom, its neighbours placed after it, with the bond kinds between:
+    /// where the search looks ahead.
+    pub(crate) ahead: Vec<Vec<(usize, u16)>>,
     /// Pattern bonds per atom: a molecule atom with fewer neighbours cannot sit there.
     pub(crate) min_degree: Vec<usize>,
     /// Process-wide id per atom expression (the same expression in any pattern has the same
@@ -58,6 +67,19 @@ pub(crate) struct Graph {
 }
 
 impl Graph {
+    /// Works the filters out again, now that the filter of each environment's first atom is
+    /// known (see [`AtomFilter::with_environments`]).
+    pub(crate) fn refilter(&mut self, envs: &[AtomFilter]) {
+        self.filters = filters(
+            &self.atoms,
+            &self.bonds,
+            &self.bond_masks,
+            &self.min_degree,
+            envs,
+        );
+        self.census = census(&self.filters);
+    }
+
     /// Builds the search plan rooted at `root`. The graph must be connected (the parser
     /// refuses `.`).
     pub(crate) fn new(mut atoms: Vec<PatternAtom>, bonds: Vec<PatternBond>, root: usize) -> Graph {
@@ -113,16 +135,133 @@ impl Graph {
             position[atom] = k;
         }
         // Each pattern bond must lead to a distinct molecule neighbour.
-        let min_degree = adjacency.iter().map(Vec::len).collect();
-        let filters = atoms.iter().map(|a| AtomFilter::new(&a.expr)).collect();
+        let min_degree: Vec<usize> = adjacency.iter().map(Vec::len).collect();
+        // A pattern bond on a cycle of the pattern can only sit on a bond on a cycle of
+        // the molecule, a ring bond: saying so in its mask cuts the search and sharpens
+        // the neighbour requirements, without changing any match.
+        let bond_masks: Vec<u16> = bonds
+            .iter()
+            .enumerate()
+            .map(|(i, b)| {
+                let mask = filter::bond_mask(&b.expr);
+                if on_cycle(n, &bonds, i) {
+                    mask & filter::RING_KINDS
+                } else {
+                    mask
+                }
+            })
+            .collect();
+        let filters = filters(&atoms, &bonds, &bond_masks, &min_degree, &[]);
+        let census = census(&filters);
+        let ahead = adjacency
+            .iter()
+            .enumerate()
+            .map(|(atom, links)| {
+                links
+                    .iter()
+                    .filter(|&&(nb, _)| position[nb] > position[atom])
+                    .map(|&(nb, bond)| (nb, bond_masks[bond]))
+                    .collect()
+            })
+            .collect();
         Graph {
             atoms,
             bonds,
             root,
             steps,
             filters,
+            bond_masks,
+            census,
+            ahead,
             min_degree,
             expr_ids: Vec::new(),
         }
     }
+}
+
+/// The filter of each pattern atom: its expression (environments narrowed by `envs`, the
+/// filters of their first atoms), the pattern bonds at it, and what its pattern neighbours
+/// need of its molecule neighbours.
+fn filters(
+    atoms: &[PatternAtom],
+    bonds: &[PatternBond],
+    bond_masks: &[u16],
+    min_degree: &[usize],
+    envs: &[AtomFilter],
+) -> Vec<AtomFilter> {
+    let own: Vec<AtomFilter> = atoms
+        .iter()
+        .zip(min_degree)
+        .map(|(a, &min)| AtomFilter::with_environments(&a.expr, envs).with_min_degree(min))
+        .collect();
+    let neighbors = |i: usize| {
+        bonds
+            .iter()
+            .zip(bond_masks)
+            .filter_map(move |(b, &mask)| match (b.a == i, b.b == i) {
+                (true, false) => Some((b.b, mask)),
+                (false, true) => Some((b.a, mask)),
+                _ => None,
+            })
+    };
+    let near: Vec<AtomFilter> = (0..atoms.len())
+        .map(|i| {
+            let around: Vec<(AtomFilter, u16)> =
+                neighbors(i).map(|(j, mask)| (own[j], mask)).collect();
+            own[i].with_neighbors(&around)
+        })
+        .collect();
+    (0..atoms.len())
+        .map(|i| {
+            let around: Vec<AtomFilter> = neighbors(i).map(|(j, _)| near[j]).collect();
+            near[i].with_far_neighbors(&around)
+        })
+        .collect()
+}
+
+/// Whether pattern bond `bond` lies on a cycle: its ends stay connected without it. Other
+/// bonds between the same two atoms do not count, since they sit on the same molecule bond.
+fn on_cycle(atoms: usize, bonds: &[PatternBond], bond: usize) -> bool {
+    let (from, to) = (bonds[bond].a, bonds[bond].b);
+    if from == to {
+        return false;
+    }
+    let parallel = |b: &PatternBond| (b.a == from && b.b == to) || (b.a == to && b.b == from);
+    let mut seen = vec![false; atoms];
+    let mut stack = vec![from];
+    seen[from] = true;
+    while let Some(a) = stack.pop() {
+        for b in bonds {
+            if parallel(b) {
+                continue;
+            }
+            let next = if b.a == a {
+                b.b
+            } else if b.b == a {
+                b.a
+            } else {
+                continue;
+            };
+            if next == to {
+                return true;
+            }
+            if !seen[next] {
+                seen[next] = true;
+                stack.push(next);
+            }
+        }
+    }
+    false
+}
+
+/// What the pattern asks of the molecule's atom counts: see `Graph::census`.
+fn census(filters: &[AtomFilter]) -> Vec<(u8, u16)> {
+    let mut out: Vec<(u8, u16)> = Vec::new();
+    for bit in filters.iter().filter_map(AtomFilter::single_element) {
+        match out.iter_mut().find(|(b, _)| *b == bit) {
+            Some((_, count)) => *count = count.saturating_add(1),
+            None => out.push((bit, 1)),
+        }
+    }
+    out
 }

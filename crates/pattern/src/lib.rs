@@ -36,17 +36,29 @@
 //! # Performance
 //!
 //! Everything that depends only on the pattern is worked out at parse time: expression
-//! trees with precedence applied, the placement order from the anchor, and the anchor
-//! pre-filter (a bit set of element/aromatic pairs and one of charges, per pattern atom; an
-//! atom like `C` or `[c,n]` is decided by it alone). A search allocates nothing for patterns
-//! up to 32 atoms besides the matches it returns; `$()` environments are memoized per
-//! (environment, atom) within one call, the first 16 answers without allocating.
-//! [`Matcher`] runs many patterns on one molecule: every environment and every atom
-//! expression gets a process-wide id from its text at parse time, so answers are kept per
-//! molecule and shared between patterns (`!$(NC=O)` written in ten site classes is
-//! searched once per atom), in buffers reused from one matcher to the next on a thread.
-//! [`Pattern::first_match_at`] stops at the first match.
-//! `benches/match.rs` measures anchored site matching over a drug-like sample.
+//! trees with precedence applied, the placement order from the anchor, bond expressions as
+//! masks over sixteen bond kinds, and a pre-filter per pattern atom. The pre-filter is one
+//! bit set per projection (element/aromatic pair, charge, `H`, `h`, `D`, `X`, `R`, `r`),
+//! which decides an atom like `[CX4;H1,H2;+0]` alone, plus what the atom's pattern
+//! neighbours and their neighbours need of the molecule (element class and bond kind, held
+//! against a per-atom signature of its neighbours), the pattern bonds at it, and the first
+//! atom of each `$()` environment it names. A molecule atom's values are read once into a
+//! table, so a filter test is a handful of bit tests. The search looks one step ahead
+//! (every pattern neighbour still to place needs a free molecule neighbour of its own
+//! passing its filter) and first checks that the molecule holds as many atoms of each
+//! element as the pattern names. All of these only rule out what cannot match: matches and
+//! their order are those of a plain search (`reference.rs` checks it).
+//!
+//! A search allocates nothing for patterns up to 32 atoms besides the matches it returns;
+//! `$()` environments are memoized per (environment, atom) within one call, the first 16
+//! answers without allocating. [`Matcher`] runs many patterns on one molecule: every
+//! environment and every atom expression gets a process-wide id from its text at parse
+//! time, so answers are kept per molecule and shared between patterns (`!$(NC=O)` written
+//! in ten site classes is searched once per atom), in buffers reused from one matcher to
+//! the next on a thread. [`AtomKey`] lets a caller keep, per kind of atom, which patterns
+//! can anchor there. [`Pattern::first_match_at`] stops at the first match and
+//! [`Matcher::least_match_at`] keeps only the least. `benches/match.rs` measures anchored
+//! site matching over a drug-like sample.
 //!
 //! # Checked against
 //!
@@ -66,11 +78,14 @@
 
 mod error;
 mod expr;
+mod features;
 mod filter;
 mod graph;
 mod matcher;
 mod parse;
 mod primitive;
+#[cfg(test)]
+mod reference;
 
 pub use error::PatternError;
 
@@ -80,7 +95,7 @@ use std::collections::HashMap;
 use std::sync::{Mutex, OnceLock};
 
 use graph::Graph;
-use matcher::{Distinct, EnvMemo, Search};
+use matcher::{Distinct, EnvMemo, Least, Search};
 
 /// A compiled pattern.
 #[derive(Clone, Debug)]
@@ -111,6 +126,13 @@ impl std::fmt::Display for Pattern {
     }
 }
 
+/// What the anchor pre-filter of every pattern sees of one molecule atom (element,
+/// aromaticity, charge, hydrogens, connections, rings, neighbours): atoms with equal keys,
+/// in any molecules, get the same answer from [`Matcher::could_anchor`] for any pattern,
+/// so a caller may keep that answer by key.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub struct AtomKey(features::AtomFeatures);
+
 /// One match: for each pattern atom (in pattern order), the molecule atom it matched.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Match {
@@ -123,6 +145,15 @@ impl Pattern {
     pub fn parse(text: &str) -> Result<Pattern, PatternError> {
         let (main, subs) = parse::parse(text)?;
         let (mut main, mut subs) = (main, subs);
+        // An environment's own environments are numbered after it, so working from the last
+        // one back, each graph's environments have their filters when it is refiltered.
+        let mut env_filters =
+            vec![filter::AtomFilter::new(&expr::Expr::Prim(primitive::AtomPrim::Any)); subs.len()];
+        for id in (0..subs.len()).rev() {
+            subs[id].refilter(&env_filters);
+            env_filters[id] = subs[id].filters[subs[id].root];
+        }
+        main.refilter(&env_filters);
         let anchor_filter = main.filters[main.root];
         let env_ids = environment_ids(text, subs.len());
         for graph in std::iter::once(&mut main).chain(subs.iter_mut()) {
@@ -235,8 +266,9 @@ impl Pattern {
             .collect()
     }
     /// A quick pre-filter: whether the anchored pattern atom could match `atom` at all
-    /// (element, aromaticity, charge). Lets callers skip most atoms without a search.
-    /// `false` is certain; `true` means a search is needed.
+    /// (element, aromaticity, charge, hydrogens, connections, rings, and what the pattern
+    /// needs of its neighbours). Lets callers skip most atoms without a search. `false` is
+    /// certain; `true` means a search is needed.
     pub fn could_anchor(&self, molecule: &Molecule, atom: usize) -> bool {
         atom < molecule.atoms().len() && self.anchor_filter.admits(molecule, atom)
     }
@@ -408,41 +440,84 @@ impl Drop for Matcher<'_> {
 impl<'m> Matcher<'m> {
     /// A matcher for `molecule`, with nothing remembered yet.
     pub fn new(molecule: &'m Molecule) -> Matcher<'m> {
-        let atoms = molecule.atoms().len();
         // The buffers of the thread's last matcher, when there is one: site finding makes
         // a matcher per molecule, and recognition one per substituent.
         let memo = SPARE_MEMO
             .with(|spare| spare.borrow_mut().take())
             .map(|mut memo| {
-                memo.reuse(atoms);
+                memo.reuse(molecule);
                 memo
             })
-            .unwrap_or_else(|| Box::new(EnvMemo::for_molecule(atoms)));
+            .unwrap_or_else(|| Box::new(EnvMemo::for_molecule(molecule)));
         Matcher {
             molecule,
             memo: Some(memo),
         }
     }
     fn memo(&mut self) -> &mut EnvMemo {
+        let molecule = self.molecule;
         self.memo
-            .get_or_insert_with(|| Box::new(EnvMemo::for_molecule(self.molecule.atoms().len())))
+            .get_or_insert_with(|| Box::new(EnvMemo::for_molecule(molecule)))
     }
     /// The molecule it matches against.
     pub fn molecule(&self) -> &'m Molecule {
         self.molecule
     }
-    /// Like [`Pattern::could_anchor`].
+    /// A matcher for `molecule` that works out what the primitives test on every atom at
+    /// once, instead of on first use: for trying many patterns on every atom (site
+    /// finding), where [`Matcher::could_anchor`] then reads a table.
+    pub fn with_all_atoms(molecule: &'m Molecule) -> Matcher<'m> {
+        let mut matcher = Matcher::new(molecule);
+        matcher.memo().features.fill(molecule);
+        matcher
+    }
+    /// The key of `atom` (see [`AtomKey`]); `None` out of range.
+    pub fn atom_key(&mut self, atom: usize) -> Option<AtomKey> {
+        let molecule = self.molecule;
+        (atom < molecule.atoms().len()).then(|| AtomKey(self.memo().features.get(molecule, atom)))
+    }
+    /// Whether the anchored pattern atom could match an atom with this key: what
+    /// [`Matcher::could_anchor`] answers for every atom with it.
+    #[inline]
+    pub fn could_anchor_key(pattern: &Pattern, key: &AtomKey) -> bool {
+        pattern.anchor_filter.admits_features(&key.0)
+    }
+    /// Like [`Pattern::could_anchor`], from the matcher's table of atom values where the
+    /// atom is in it.
     #[inline]
     pub fn could_anchor(&self, pattern: &Pattern, atom: usize) -> bool {
-        pattern.could_anchor(self.molecule, atom)
+        let molecule = self.molecule;
+        atom < molecule.atoms().len()
+            && match &self.memo {
+                Some(memo) => pattern
+                    .anchor_filter
+                    .admits_features(&memo.features.peek(molecule, atom)),
+                None => pattern.anchor_filter.admits(molecule, atom),
+            }
+    }
+    /// The anchor's pre-filter, from the table (filling it): a search set up only to fail
+    /// there costs more than the test.
+    #[inline]
+    fn anchor_ok(&mut self, pattern: &Pattern, atom: usize) -> bool {
+        let molecule = self.molecule;
+        atom < molecule.atoms().len()
+            && pattern
+                .anchor_filter
+                .admits_features(&self.memo().features.get(molecule, atom))
     }
     /// Like [`Pattern::is_match_at`].
     pub fn is_match_at(&mut self, pattern: &Pattern, atom: usize, avoid: &[usize]) -> bool {
+        if !self.anchor_ok(pattern, atom) {
+            return false;
+        }
         let mut search = Search::new(self.molecule, &pattern.subs, &pattern.env_ids, self.memo());
         search.search(&pattern.main, atom, avoid, &mut |_| true)
     }
     /// Like [`Pattern::matches_at`].
     pub fn matches_at(&mut self, pattern: &Pattern, atom: usize, avoid: &[usize]) -> Vec<Match> {
+        if !self.anchor_ok(pattern, atom) {
+            return Vec::new();
+        }
         let mut search = Search::new(self.molecule, &pattern.subs, &pattern.env_ids, self.memo());
         let mut distinct = Distinct::default();
         search.search(&pattern.main, atom, avoid, &mut |a| {
@@ -455,6 +530,25 @@ impl<'m> Matcher<'m> {
             .map(|atoms| Match { atoms })
             .collect()
     }
+    /// The least (compared atom by atom) of the matches [`Pattern::matches_at`] would
+    /// list, found without building the list: what a caller wanting one match that does
+    /// not depend on search order picks.
+    pub fn least_match_at(
+        &mut self,
+        pattern: &Pattern,
+        atom: usize,
+        avoid: &[usize],
+    ) -> Option<Vec<usize>> {
+        // Callers trying many patterns ask `could_anchor` first; the search repeats the
+        // test anyway.
+        let mut search = Search::new(self.molecule, &pattern.subs, &pattern.env_ids, self.memo());
+        let mut least = Least::default();
+        search.search(&pattern.main, atom, avoid, &mut |a| {
+            least.add(a);
+            false
+        });
+        least.best
+    }
     /// Like [`Pattern::first_match_at`].
     pub fn first_match_at(
         &mut self,
@@ -462,6 +556,9 @@ impl<'m> Matcher<'m> {
         atom: usize,
         avoid: &[usize],
     ) -> Option<Match> {
+        if !self.anchor_ok(pattern, atom) {
+            return None;
+        }
         let mut search = Search::new(self.molecule, &pattern.subs, &pattern.env_ids, self.memo());
         let mut first = None;
         search.search(&pattern.main, atom, avoid, &mut |a| {
@@ -568,10 +665,14 @@ mod tests {
         let pyridine = pattern("[nX2:1]");
         assert!(pyridine.could_anchor(&m, 7));
         assert!(!pyridine.could_anchor(&m, 5)); // aromatic carbon
-                                                // A filter pass is only a maybe: H count is not part of it.
-        let hydroxyl = pattern("[OH1]");
-        assert!(hydroxyl.could_anchor(&m, 2));
-        assert!(!hydroxyl.is_match_at(&m, 2, &[]));
+                                                // Hydrogen counts and connections are part of it too.
+        assert!(!pattern("[OH1]").could_anchor(&m, 2)); // C=O
+        assert!(!pattern("[OX2]").could_anchor(&m, 2));
+        assert!(!pattern("C[O:1]C").could_anchor(&m, 3)); // one bond, pattern has two
+                                                          // A pass is only a maybe where an environment is involved.
+        let ester = pattern("[OX1;$(O=C[OX2][#6])]");
+        assert!(ester.could_anchor(&m, 2));
+        assert!(!ester.is_match_at(&m, 2, &[]));
     }
 
     #[test]
@@ -631,6 +732,8 @@ mod tests {
                         single.first().cloned()
                     );
                     assert_eq!(p.first_match_at(&m, atom, &[]), single.first().cloned());
+                    let least = single.iter().map(|m| m.atoms.clone()).min();
+                    assert_eq!(matcher.least_match_at(p, atom, &[]), least);
                 }
             }
         }

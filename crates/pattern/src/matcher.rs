@@ -13,11 +13,17 @@ use std::collections::HashSet;
 use mol::Molecule;
 
 use crate::expr::Expr;
+use crate::features::{FeatureTable, COUNT_CAP};
+use crate::filter::bond_kind;
 use crate::graph::Graph;
 use crate::primitive::AtomPrim;
 
 /// Marks a pattern atom not placed yet.
 const UNPLACED: usize = usize::MAX;
+/// Pattern neighbours ahead of an atom up to this many are checked for distinct
+/// candidates; beyond, each only for one.
+const HALL_AHEAD: usize = 4;
+
 /// Patterns up to this size search in a stack buffer.
 const INLINE: usize = 32;
 
@@ -53,6 +59,9 @@ pub(crate) struct EnvMemo {
     touched_expr: Vec<u32>,
     /// Per (row, atom): 0 not asked yet, 1 no, 2 yes.
     table: Vec<u8>,
+    /// The atoms' values the primitives test; empty (every atom read afresh) for a single
+    /// call, kept for a matcher.
+    pub(crate) features: FeatureTable,
 }
 
 impl EnvMemo {
@@ -67,11 +76,13 @@ impl EnvMemo {
             touched_env: Vec::new(),
             touched_expr: Vec::new(),
             table: Vec::new(),
+            features: FeatureTable::default(),
         }
     }
 
-    /// Forgets every answer, keeping the buffers, for a molecule of `atoms` atoms.
-    pub(crate) fn reuse(&mut self, atoms: usize) {
+    /// Forgets every answer, keeping the buffers, for `molecule`.
+    pub(crate) fn reuse(&mut self, molecule: &Molecule) {
+        let atoms = molecule.atoms().len();
         self.atoms = atoms;
         self.recent_len = 0;
         for &e in &self.touched_env {
@@ -83,14 +94,17 @@ impl EnvMemo {
         self.touched_env.clear();
         self.touched_expr.clear();
         self.table.clear();
+        self.features.reset(molecule);
     }
 
     /// A memo that also keeps atom-expression answers, for many patterns on one molecule.
-    pub(crate) fn for_molecule(atoms: usize) -> EnvMemo {
-        EnvMemo {
+    pub(crate) fn for_molecule(molecule: &Molecule) -> EnvMemo {
+        let mut memo = EnvMemo {
             keep_atoms: true,
-            ..EnvMemo::new(atoms)
-        }
+            ..EnvMemo::new(molecule.atoms().len())
+        };
+        memo.features.reset(molecule);
+        memo
     }
 
     /// Adds one row to the table, reserving room for many at the first.
@@ -197,9 +211,10 @@ impl<'a> Search<'a> {
     /// Whether molecule atom `atom` satisfies an atom expression.
     pub(crate) fn atom_matches(&mut self, expr: &Expr<AtomPrim>, atom: usize) -> bool {
         let molecule = self.molecule;
+        let f = self.memo.features.get(molecule, atom);
         expr.eval(&mut |p| match p {
             AtomPrim::Recursive(id) => self.environment(*id as usize, atom),
-            _ => p.holds(molecule, atom),
+            _ => p.holds_with(&f, molecule, atom),
         })
     }
 
@@ -208,8 +223,12 @@ impl<'a> Search<'a> {
     #[inline]
     fn atom_ok(&mut self, graph: &Graph, at: usize, atom: usize) -> bool {
         let filter = &graph.filters[at];
-        if self.molecule.degree(atom) < graph.min_degree[at] || !filter.admits(self.molecule, atom)
-        {
+        if !filter.admits_features(&self.memo.features.get(self.molecule, atom)) {
+            return false;
+        }
+        // The filter holds the pattern bonds at the atom up to the cap only.
+        let min = graph.min_degree[at];
+        if min > COUNT_CAP as usize && self.molecule.degree(atom) < min {
             return false;
         }
         if filter.exact {
@@ -267,6 +286,8 @@ impl<'a> Search<'a> {
         if n == 0
             || anchor >= self.molecule.atoms().len()
             || avoid.contains(&anchor)
+            // A molecule short of the atoms the pattern names cannot hold it anywhere.
+            || !self.memo.features.has(&graph.census)
             || !self.atom_ok(graph, graph.root, anchor)
         {
             return false;
@@ -279,8 +300,77 @@ impl<'a> Search<'a> {
             heap.resize(n, UNPLACED);
             &mut heap
         };
+        if !self.ahead_ok(graph, graph.root, anchor, assign, avoid) {
+            return false;
+        }
         assign[graph.root] = anchor;
         self.extend(graph, 0, assign, avoid, sink)
+    }
+
+    /// Whether every pattern neighbour placed after `at` still has somewhere to go once
+    /// `atom` sits on `at`: a free molecule neighbour through an admitted bond, passing its
+    /// filter, and, for up to [`HALL_AHEAD`] of them, a different one each (Hall's
+    /// condition: every group of them has as many candidates between them). A necessary
+    /// condition, so it only cuts branches that hold no match, and matches are found in the
+    /// same order; it spares walking a ring or chain around an anchor that lacks what the
+    /// pattern needs further on.
+    #[inline]
+    fn ahead_ok(
+        &mut self,
+        graph: &Graph,
+        at: usize,
+        atom: usize,
+        assign: &[usize],
+        avoid: &[usize],
+    ) -> bool {
+        let molecule = self.molecule;
+        let bonds = molecule.bonds();
+        let features = &mut self.memo.features;
+        let ahead = &graph.ahead[at];
+        let neighbors = molecule.neighbors(atom);
+        let free = |nb: &mol::Neighbor| !assign.contains(&nb.atom) && !avoid.contains(&nb.atom);
+        if ahead.len() < 2 || ahead.len() > HALL_AHEAD || neighbors.len() > 32 {
+            return ahead.iter().all(|&(next, mask)| {
+                neighbors.iter().any(|nb| {
+                    mask >> bond_kind(&bonds[nb.bond]) & 1 != 0
+                        && graph.filters[next].admits_features(&features.get(molecule, nb.atom))
+                        && free(nb)
+                })
+            });
+        }
+        // Candidates per pattern neighbour, as bits over the molecule neighbours; each
+        // molecule neighbour read once.
+        let mut candidates = [0u32; HALL_AHEAD];
+        for (i, nb) in neighbors.iter().enumerate() {
+            let kind = bond_kind(&bonds[nb.bond]);
+            let mut f = None;
+            for (k, &(next, mask)) in ahead.iter().enumerate() {
+                if mask >> kind & 1 == 0 {
+                    continue;
+                }
+                let f = *f.get_or_insert_with(|| features.get(molecule, nb.atom));
+                if graph.filters[next].admits_features(&f) {
+                    candidates[k] |= 1 << i;
+                }
+            }
+            // A neighbour already placed or fenced off is no candidate after all.
+            if candidates[..ahead.len()].iter().any(|c| c >> i & 1 != 0) && !free(nb) {
+                for c in &mut candidates {
+                    *c &= !(1 << i);
+                }
+            }
+        }
+        if candidates[..ahead.len()].contains(&0) {
+            return false;
+        }
+        (3u32..1 << ahead.len())
+            .filter(|group| group.count_ones() > 1)
+            .all(|group| {
+                let union = (0..ahead.len())
+                    .filter(|k| group >> k & 1 != 0)
+                    .fold(0u32, |u, k| u | candidates[k]);
+                union.count_ones() >= group.count_ones()
+            })
     }
 
     /// Places step `step` and the ones after it.
@@ -298,13 +388,13 @@ impl<'a> Search<'a> {
         let molecule = self.molecule;
         let bonds = molecule.bonds();
         let from = assign[s.parent];
-        let bond_expr = &graph.bonds[s.bond].expr;
+        let mask = graph.bond_masks[s.bond];
         for nb in molecule.neighbors(from) {
             let candidate = nb.atom;
-            if assign.contains(&candidate) || avoid.contains(&candidate) {
+            if mask >> bond_kind(&bonds[nb.bond]) & 1 == 0 {
                 continue;
             }
-            if !bond_expr.eval(&mut |b| b.holds(&bonds[nb.bond])) {
+            if assign.contains(&candidate) || avoid.contains(&candidate) {
                 continue;
             }
             if !self.atom_ok(graph, s.atom, candidate) {
@@ -313,9 +403,12 @@ impl<'a> Search<'a> {
             let closed = s.closures.iter().all(|&(other, bond)| {
                 molecule
                     .bond_between(candidate, assign[other])
-                    .is_some_and(|mb| graph.bonds[bond].expr.eval(&mut |b| b.holds(&bonds[mb])))
+                    .is_some_and(|mb| graph.bond_masks[bond] >> bond_kind(&bonds[mb]) & 1 != 0)
             });
             if !closed {
+                continue;
+            }
+            if !self.ahead_ok(graph, s.atom, candidate, assign, avoid) {
                 continue;
             }
             assign[s.atom] = candidate;
@@ -361,5 +454,65 @@ impl Distinct {
             }
         }
         self.matches.push(atoms.to_vec());
+    }
+}
+
+/// Keeps the least (atom by atom) of the matches a [`Distinct`] would keep, without
+/// storing them: a match counts only when its atom set was not seen before, as there.
+#[derive(Default)]
+pub(crate) struct Least {
+    /// Sorted atom sets seen, back to back, while there are few.
+    keys: Vec<usize>,
+    /// How many sets `keys` holds.
+    count: usize,
+    /// All sorted atom sets, once there are many.
+    seen: Option<HashSet<Vec<usize>>>,
+    /// The least match kept so far.
+    pub(crate) best: Option<Vec<usize>>,
+}
+
+impl Least {
+    pub(crate) fn add(&mut self, atoms: &[usize]) {
+        let n = atoms.len();
+        let mut inline = [0usize; INLINE];
+        let mut heap = Vec::new();
+        let key: &mut [usize] = if n <= INLINE {
+            &mut inline[..n]
+        } else {
+            heap.extend_from_slice(atoms);
+            &mut heap
+        };
+        key.copy_from_slice(atoms);
+        key.sort_unstable();
+        if self.count < DISTINCT_LINEAR {
+            if n > 0 && self.keys.chunks_exact(n).any(|k| k == key) {
+                return;
+            }
+            if n == 0 && self.count > 0 {
+                return;
+            }
+            self.keys.extend_from_slice(key);
+            self.count += 1;
+        } else {
+            let seen = self.seen.get_or_insert_with(|| {
+                if n == 0 {
+                    std::iter::once(Vec::new()).collect()
+                } else {
+                    self.keys.chunks_exact(n).map(<[usize]>::to_vec).collect()
+                }
+            });
+            if !seen.insert(key.to_vec()) {
+                return;
+            }
+            self.count += 1;
+        }
+        match &mut self.best {
+            Some(best) if best.as_slice() <= atoms => {}
+            Some(best) => {
+                best.clear();
+                best.extend_from_slice(atoms);
+            }
+            None => self.best = Some(atoms.to_vec()),
+        }
     }
 }

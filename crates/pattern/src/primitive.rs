@@ -8,7 +8,9 @@
 //! SSSR ring size, implicit bond = single or aromatic). Cited from memory; the RDKit checks
 //! in `tests/` confirm the meanings on real molecules.
 
-use mol::{Bond, Molecule};
+use mol::Molecule;
+
+use crate::features::{AtomFeatures, COUNT_CAP};
 
 /// One atom primitive.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -71,6 +73,24 @@ impl AtomPrim {
             AtomPrim::Recursive(_) => false,
         }
     }
+
+    /// Like [`AtomPrim::holds`], with the atom's counts read from `f` (its values).
+    #[inline]
+    pub(crate) fn holds_with(&self, f: &AtomFeatures, molecule: &Molecule, atom: usize) -> bool {
+        // Counts at or beyond the cap share a value in `f`: those are read afresh.
+        match *self {
+            AtomPrim::TotalH(n) if n < COUNT_CAP => f.total_h == n,
+            AtomPrim::ImplicitH(Some(n)) if n < COUNT_CAP => f.implicit_h == n,
+            AtomPrim::ImplicitH(None) => f.implicit_h > 0,
+            AtomPrim::Degree(n) if n < COUNT_CAP => f.degree == n,
+            AtomPrim::Connectivity(n) if n < COUNT_CAP => f.connectivity == n,
+            AtomPrim::RingCount(Some(n)) if n < COUNT_CAP => f.ring_count == n,
+            AtomPrim::RingCount(None) => f.ring_count > 0,
+            AtomPrim::RingSize(Some(n)) if n < COUNT_CAP => f.smallest_ring == n,
+            AtomPrim::RingSize(None) => f.smallest_ring > 0,
+            _ => self.holds(molecule, atom),
+        }
+    }
 }
 
 /// One bond primitive.
@@ -93,17 +113,18 @@ pub(crate) enum BondPrim {
 }
 
 impl BondPrim {
-    /// Whether this primitive holds for the bond.
+    /// Whether this primitive holds for a bond with these properties (the only ones any
+    /// bond primitive reads).
     #[inline]
-    pub(crate) fn holds(&self, bond: &Bond) -> bool {
+    pub(crate) fn holds_parts(&self, aromatic: bool, order: u8, in_ring: bool) -> bool {
         match self {
-            BondPrim::Single => !bond.aromatic && bond.order == 1,
-            BondPrim::Double => !bond.aromatic && bond.order == 2,
-            BondPrim::Triple => !bond.aromatic && bond.order == 3,
-            BondPrim::Aromatic => bond.aromatic,
+            BondPrim::Single => !aromatic && order == 1,
+            BondPrim::Double => !aromatic && order == 2,
+            BondPrim::Triple => !aromatic && order == 3,
+            BondPrim::Aromatic => aromatic,
             BondPrim::Any => true,
-            BondPrim::Ring => bond.in_ring,
-            BondPrim::Implicit => bond.aromatic || bond.order == 1,
+            BondPrim::Ring => in_ring,
+            BondPrim::Implicit => aromatic || order == 1,
         }
     }
 }
