@@ -62,15 +62,39 @@ pub fn recognize<'a>(
     from: usize,
     avoid: &[usize],
 ) -> Option<Recognized<'a>> {
+    recognize_with(
+        library,
+        &mut pattern::Matcher::new(molecule),
+        atom,
+        from,
+        avoid,
+    )
+}
+
+/// [`recognize`] on the molecule of `matcher`, which keeps what it works out about the
+/// molecule's atoms and environments for the next call: a caller recognizing many groups
+/// on one molecule (the scorer) makes one matcher for them all. The answer is the one
+/// [`recognize`] gives.
+pub fn recognize_with<'a>(
+    library: &'a Library,
+    matcher: &mut pattern::Matcher<'_>,
+    atom: usize,
+    from: usize,
+    avoid: &[usize],
+) -> Option<Recognized<'a>> {
+    let molecule = matcher.molecule();
     let n = molecule.atoms().len();
     if atom >= n {
         return None;
     }
-    let mut fence: Vec<usize> = Vec::with_capacity(avoid.len() + 1);
-    fence.extend_from_slice(avoid);
-    if from < n {
-        fence.push(from);
-    }
+    // The scorer's fence already holds the attachment: no copy is needed then.
+    let extended: Vec<usize>;
+    let fence: &[usize] = if from >= n || avoid.contains(&from) {
+        avoid
+    } else {
+        extended = avoid.iter().copied().chain([from]).collect();
+        &extended
+    };
     if fence.contains(&atom) {
         return None;
     }
@@ -79,8 +103,6 @@ pub fn recognize<'a>(
     let a = &molecule.atoms()[atom];
     // (priority, atoms covered, entry index, matched atoms)
     let mut best: Option<(i32, usize, usize, Vec<usize>)> = None;
-    // Environments shared by several entries are worked out once per call.
-    let mut matcher = pattern::Matcher::new(molecule);
     let key = matcher.atom_key(atom)?;
     // Only entries whose first atom can sit on an atom like this one, in entry order: the
     // others could not anchor here, so leaving them out changes nothing. The same for
@@ -119,7 +141,7 @@ pub fn recognize<'a>(
             }
         }
         // The search tries the anchor's pre-filter first: no `could_anchor` needed.
-        let Some(m) = matcher.first_match_at(p, atom, &fence) else {
+        let Some(m) = matcher.first_match_at(p, atom, fence) else {
             continue;
         };
         let size = m.atoms.len();
@@ -140,7 +162,7 @@ pub fn recognize<'a>(
             approximate: false,
         });
     }
-    let id = nearest_type(molecule, atom, &fence)?;
+    let id = nearest_type(molecule, atom, fence)?;
     let entry = entry_by_id(library, id)?;
     Some(Recognized {
         entry,
