@@ -277,6 +277,11 @@ fn numbered(number: usize, name: &str) -> String {
     concat(&[decimal(number, &mut [0; 20]), "-", name])
 }
 
+/// Terms a site's list is first given room for, so that most sites never move theirs.
+/// Measured with callgrind over the MOSES sample: 7 cost least; 8 makes a block large
+/// enough that the system allocator sorts its free lists on every site.
+const TERMS_RESERVED: usize = 7;
+
 /// What scoring one site accumulates before it becomes a [`Site`].
 struct Account<'l> {
     /// Where the class's rho comes from, cited beside each sigma.
@@ -332,20 +337,22 @@ fn score_one(library: &Library, matcher: &mut Matcher<'_>, found: &FoundSite) ->
     let k = constants(library, found.class);
     let mut account = Account {
         rho_source: &k.rho_source,
-        terms: vec![Term {
-            label: concat(&["parent: ", &class.name]),
-            contribution: k.parent,
-            source: String::from(&*k.parent_source),
-            sigma: None,
-            rho: None,
-            position: None,
-            role: TermRole::Parent,
-            ortho_substituent: false,
-            counted: None,
-        }],
+        // Room for the terms of a typical site, so that they are not moved as they come.
+        terms: Vec::with_capacity(TERMS_RESERVED),
         warnings: Vec::new(),
         approximate: 0,
     };
+    account.terms.push(Term {
+        label: concat(&["parent: ", &class.name]),
+        contribution: k.parent,
+        source: String::from(&*k.parent_source),
+        sigma: None,
+        rho: None,
+        position: None,
+        role: TermRole::Parent,
+        ortho_substituent: false,
+        counted: None,
+    });
     let anchor = class
         .anchor
         .and_then(|map| {
@@ -1127,8 +1134,9 @@ struct Paths {
 }
 
 impl Paths {
-    /// Fills the buffers from `start`, up to `max` bonds.
-    fn from(&mut self, molecule: &Molecule, start: usize, max: usize) {
+    /// Fills the buffers from `start`, up to `max` bonds, for the atoms of `targets` (others
+    /// may be left unfinished).
+    fn from(&mut self, molecule: &Molecule, start: usize, max: usize, targets: &[Site]) {
         let n = molecule.atoms().len();
         let (dist, count, queue) = (&mut self.dist, &mut self.count, &mut self.queue);
         dist.clear();
@@ -1136,11 +1144,23 @@ impl Paths {
         count.clear();
         count.resize(n, 0);
         queue.clear();
+        queue.reserve(n);
         dist[start] = 0;
         count[start] = 1;
         queue.push(start);
         let mut head = 0;
+        // Distance of the atoms being expanded.
+        let mut level = 0;
         while let Some(&a) = queue.get(head) {
+            if head == 0 || dist[a] > level {
+                // Every atom nearer than `a` has been expanded, so distances and path counts
+                // up to its distance are final: once all targets are that near, the rest of
+                // the walk cannot change what is read of them.
+                level = dist[a];
+                if targets.iter().all(|t| dist[t.atom] <= level) {
+                    break;
+                }
+            }
             head += 1;
             if dist[a] >= max {
                 continue;
@@ -1175,7 +1195,7 @@ pub fn interactions(library: &Library, molecule: &Molecule, sites: &[Site]) -> V
     let mut paths = Paths::default();
     // The last site has no partner after it: no paths from it are needed.
     for i in 0..n.saturating_sub(1) {
-        paths.from(molecule, sites[i].atom, c.max_bonds);
+        paths.from(molecule, sites[i].atom, c.max_bonds, &sites[i + 1..]);
         let (dist, count) = (&paths.dist, &paths.count);
         for j in (i + 1)..n {
             let d = dist[sites[j].atom];

@@ -35,10 +35,24 @@ pub fn is_ring_member(entry: &SubstituentEntry) -> bool {
     entry.id.starts_with("ring-") || entry.id.starts_with("fused-")
 }
 
-/// The entry with the given id, if the library has one.
+/// The entry with the given id, if the library has one (the first, should ids repeat).
 pub fn entry_by_id<'a>(library: &'a Library, id: &str) -> Option<&'a SubstituentEntry> {
+    // The scorer asks for a few fixed ids on every site: for the built-in library they are
+    // looked up in a table rather than by comparing ids along the list.
+    if std::ptr::eq(library, Library::builtin()) {
+        return BUILTIN_IDS.get(id).map(|&i| &library.substituents[i]);
+    }
     library.substituents.iter().find(|e| e.id == id)
 }
+
+/// Entry index by id in the built-in library, the first entry holding each id.
+static BUILTIN_IDS: Lazy<HashMap<&'static str, usize, BuildFx>> = Lazy::new(|| {
+    let mut ids = HashMap::with_hasher(BuildFx);
+    for (i, e) in Library::builtin().substituents.iter().enumerate() {
+        ids.entry(e.id.as_str()).or_insert(i);
+    }
+    ids
+});
 
 /// Recognizes the substituent whose first atom is `atom`, bonded to `from` (the ring or
 /// chain atom), never entering `avoid`.
