@@ -515,8 +515,9 @@ fn hammett(
     let Some(start) = ring.iter().position(|&a| a == anchor) else {
         return;
     };
-    let mut avoid: Vec<usize> = ring.to_vec();
-    avoid.extend(found.matched.iter().copied());
+    let mut avoid: Vec<usize> = Vec::with_capacity(ring.len() + found.matched.len());
+    avoid.extend_from_slice(ring);
+    avoid.extend_from_slice(&found.matched);
     let fused = entry_by_id(library, "fused-ring");
     // A site that is itself a ring member (pyridine N, azole N) has its ortho substituents
     // on the next atom, where their inductive and field effect outweighs resonance.
@@ -968,7 +969,10 @@ fn taft(
             });
         }
     }
-    let mut visited: Vec<usize> = found.matched.clone();
+    // Atoms enter once each: room for them all, so that the walk never moves the list.
+    let mut visited: Vec<usize> =
+        Vec::with_capacity(found.matched.len().max(molecule.atoms().len()) + 1);
+    visited.extend_from_slice(&found.matched);
     if !visited.contains(&anchor) {
         visited.push(anchor);
     }
@@ -1261,6 +1265,69 @@ mod tests {
         assert_eq!(taft_sigma(&e, 1), Some((1.0, false)));
         assert!((taft_sigma(&e, 2).unwrap().0 - 0.4).abs() < 1e-12);
         assert!((taft_sigma(&e, 0).unwrap().0 - 2.5).abs() < 1e-12);
+    }
+
+    /// The walk of the first version of `interactions`: every atom within `max` bonds,
+    /// nothing stopped early.
+    fn full_walk(molecule: &Molecule, start: usize, max: usize) -> (Vec<usize>, Vec<u32>) {
+        let n = molecule.atoms().len();
+        let mut dist = vec![usize::MAX; n];
+        let mut count = vec![0u32; n];
+        dist[start] = 0;
+        count[start] = 1;
+        let mut queue = VecDeque::from([start]);
+        while let Some(a) = queue.pop_front() {
+            if dist[a] >= max {
+                continue;
+            }
+            for nb in molecule.neighbors(a) {
+                let b = nb.atom;
+                if dist[b] == usize::MAX {
+                    dist[b] = dist[a] + 1;
+                    count[b] = count[a];
+                    queue.push_back(b);
+                } else if dist[b] == dist[a] + 1 {
+                    count[b] = (count[b] + count[a]).min(8);
+                }
+            }
+        }
+        (dist, count)
+    }
+
+    #[test]
+    fn walks_stopped_at_the_last_site_read_what_full_walks_do() {
+        // Rings, branches and paths of equal length (the counts), sites near and far.
+        let library = Library::builtin();
+        let mut pairs = 0;
+        for smiles in [
+            "NCC(=O)O",
+            "NCCCCC(N)C(=O)O",
+            "OC(=O)c1ccc(cc1)C(=O)O",
+            "OC(=O)CC(O)(CC(=O)O)C(=O)O",
+            "NC(CCCNC(=N)N)C(=O)O",
+            "Oc1cc(O)cc(O)c1",
+            "OC(=O)C1CCC(CC1)C(=O)O",
+            "NCCc1c[nH]cn1",
+            // A ring N reached along both sides of its ring: two paths of equal length.
+            "NCc1ccncc1",
+            "OC(=O)c1ccncc1",
+            "OP(=O)(O)OCC(N)C(=O)O",
+            "OC(=O)CCCCCCCCCCCCCCC(=O)O",
+        ] {
+            let m = mol::parse(smiles).expect("test molecule parses");
+            let sites = score_sites(library, &m, &crate::find_sites(library, &m));
+            let mut paths = Paths::default();
+            for i in 0..sites.len() {
+                paths.from(&m, sites[i].atom, COUPLING.max_bonds, &sites[i + 1..]);
+                let (dist, count) = full_walk(&m, sites[i].atom, COUPLING.max_bonds);
+                for t in &sites[i + 1..] {
+                    assert_eq!(paths.dist[t.atom], dist[t.atom], "{smiles}: distance");
+                    assert_eq!(paths.count[t.atom], count[t.atom], "{smiles}: paths");
+                    pairs += 1;
+                }
+            }
+        }
+        assert!(pairs > 20, "only {pairs} pairs compared");
     }
 
     #[test]

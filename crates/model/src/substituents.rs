@@ -457,3 +457,91 @@ fn substituent_index(library: &Library) -> IndexRef {
         IndexRef::Local(index)
     })
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Drug-like molecules written by hand (aspirin, lidocaine, ciprofloxacin, a sulfonamide,
+    /// a nitro phenol, an ester and a nitrile), and the MOSES sample when it sits beside the
+    /// project.
+    fn molecules() -> Vec<Molecule> {
+        let mut smiles: Vec<String> = [
+            "CC(=O)Oc1ccccc1C(=O)O",
+            "CCN(CC)CC(=O)Nc1c(C)cccc1C",
+            "OC(=O)c1cn(C2CC2)c2cc(N3CCNCC3)c(F)cc2c1=O",
+            "Cc1cc(NS(=O)(=O)c2ccc(N)cc2)no1",
+            "Oc1ccc(cc1[N+](=O)[O-])C(F)(F)F",
+            "COC(=O)CC(C#N)c1ccc(Br)s1",
+        ]
+        .iter()
+        .map(|s| s.to_string())
+        .collect();
+        let sample = concat!(
+            env!("CARGO_MANIFEST_DIR"),
+            "/../../../shared/data/moses-sample.smi"
+        );
+        if let Ok(text) = std::fs::read_to_string(sample) {
+            smiles.extend(
+                text.lines()
+                    .take(300)
+                    .filter_map(|l| l.split_whitespace().next())
+                    .map(str::to_string),
+            );
+        }
+        smiles.iter().filter_map(|s| mol::parse(s).ok()).collect()
+    }
+
+    fn summary(r: Option<Recognized<'_>>) -> Option<(String, Vec<usize>, bool)> {
+        r.map(|r| (r.entry.id.clone(), r.atoms, r.approximate))
+    }
+
+    #[test]
+    fn one_matcher_per_molecule_answers_as_a_matcher_per_call() {
+        let builtin = Library::builtin();
+        // A copy is not the built-in library: it takes the path of user libraries.
+        let copy = builtin.clone();
+        for library in [builtin, &copy] {
+            let mut compared = 0;
+            for m in molecules() {
+                let mut matcher = pattern::Matcher::new(&m);
+                for atom in 0..m.atoms().len() {
+                    for nb in m.neighbors(atom) {
+                        // Without a fence, and with one that holds the attachment already.
+                        for avoid in [vec![], vec![nb.atom, atom + 1]] {
+                            let alone = recognize(library, &m, atom, nb.atom, &avoid);
+                            let shared =
+                                recognize_with(library, &mut matcher, atom, nb.atom, &avoid);
+                            assert_eq!(
+                                summary(shared),
+                                summary(alone),
+                                "atom {atom} from {}",
+                                nb.atom
+                            );
+                            compared += 1;
+                        }
+                    }
+                }
+            }
+            assert!(compared > 100, "only {compared} cases compared");
+        }
+    }
+
+    #[test]
+    fn entry_by_id_table_finds_what_the_list_does() {
+        let builtin = Library::builtin();
+        let ids = builtin.substituents.iter().map(|e| e.id.as_str()).chain([
+            "no-such-group",
+            "",
+            "ring-",
+        ]);
+        for id in ids {
+            let listed = builtin.substituents.iter().find(|e| e.id == id);
+            assert_eq!(
+                entry_by_id(builtin, id).map(|e| e as *const SubstituentEntry),
+                listed.map(|e| e as *const SubstituentEntry),
+                "{id}"
+            );
+        }
+    }
+}
