@@ -7,7 +7,6 @@
 use std::cell::RefCell;
 use std::collections::HashMap;
 use std::rc::Rc;
-use std::sync::Arc;
 
 use once_cell::sync::Lazy;
 
@@ -390,13 +389,15 @@ thread_local! {
 
 /// The built-in library cannot change (it is only ever handed out shared), so its index is
 /// built once per process and found without comparing any text.
-static BUILTIN_INDEX: Lazy<Arc<SubstituentIndex>> =
-    Lazy::new(|| Arc::new(SubstituentIndex::build(&Library::builtin().substituents)));
+static BUILTIN_INDEX: Lazy<SubstituentIndex> =
+    Lazy::new(|| SubstituentIndex::build(&Library::builtin().substituents));
 
 /// An index shared across threads or local to one.
 #[derive(Clone)]
 enum IndexRef {
-    Shared(Arc<SubstituentIndex>),
+    /// The built-in library's, which lives as long as the process: a plain reference, so
+    /// that handing it out on every call costs no atomic count.
+    Shared(&'static SubstituentIndex),
     Local(Rc<SubstituentIndex>),
 }
 
@@ -421,7 +422,7 @@ impl std::ops::Deref for IndexRef {
 /// library, per thread for others).
 fn substituent_index(library: &Library) -> IndexRef {
     if std::ptr::eq(library, Library::builtin()) {
-        return IndexRef::Shared(Arc::clone(&BUILTIN_INDEX));
+        return IndexRef::Shared(&BUILTIN_INDEX);
     }
     let entries = &library.substituents;
     CACHE.with(|cache| {
