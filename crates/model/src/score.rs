@@ -157,8 +157,8 @@ fn provenance(fit: &Calibration) -> String {
 }
 
 /// What scoring reads of the built-in library's calibration on every site, worked out
-/// once: the library cannot change (it is only ever handed out shared), and formatting the
-/// provenance of the fit for each site was a large part of the cost of scoring.
+/// once: the library cannot change (it is only ever handed out shared), so the provenance of
+/// a fit (two numbers to format) need not be written out again for every site.
 struct BuiltinCalibration {
     /// Per class: the index of its fit (the first one naming it), where it has one.
     fit: Vec<Option<usize>>,
@@ -247,7 +247,8 @@ pub fn score_sites(library: &Library, molecule: &Molecule, found: &[FoundSite]) 
 }
 
 /// The pieces joined into one string, allocated once at its final length: the labels and
-/// sources of terms are built for every site, where `format!` cost more than the scoring.
+/// sources of terms are built for every site, and building them with `format!` took about a
+/// third of the instructions of scoring (callgrind over the MOSES sample).
 fn concat(parts: &[&str]) -> String {
     let mut out = String::with_capacity(parts.iter().map(|p| p.len()).sum());
     for p in parts {
