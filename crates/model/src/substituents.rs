@@ -7,7 +7,6 @@
 use std::cell::RefCell;
 use std::collections::HashMap;
 use std::rc::Rc;
-use std::sync::Arc;
 
 use once_cell::sync::Lazy;
 
@@ -35,10 +34,24 @@ pub fn is_ring_member(entry: &SubstituentEntry) -> bool {
     entry.id.starts_with("ring-") || entry.id.starts_with("fused-")
 }
 
-/// The entry with the given id, if the library has one.
+/// The entry with the given id, if the library has one (the first, should ids repeat).
 pub fn entry_by_id<'a>(library: &'a Library, id: &str) -> Option<&'a SubstituentEntry> {
+    // The scorer asks for a few fixed ids on every site: for the built-in library they are
+    // looked up in a table rather than by comparing ids along the list.
+    if std::ptr::eq(library, Library::builtin()) {
+        return BUILTIN_IDS.get(id).map(|&i| &library.substituents[i]);
+    }
     library.substituents.iter().find(|e| e.id == id)
 }
+
+/// Entry index by id in the built-in library, the first entry holding each id.
+static BUILTIN_IDS: Lazy<HashMap<&'static str, usize, BuildFx>> = Lazy::new(|| {
+    let mut ids = HashMap::with_hasher(BuildFx);
+    for (i, e) in Library::builtin().substituents.iter().enumerate() {
+        ids.entry(e.id.as_str()).or_insert(i);
+    }
+    ids
+});
 
 /// Recognizes the substituent whose first atom is `atom`, bonded to `from` (the ring or
 /// chain atom), never entering `avoid`.
@@ -62,15 +75,39 @@ pub fn recognize<'a>(
     from: usize,
     avoid: &[usize],
 ) -> Option<Recognized<'a>> {
+    recognize_with(
+        library,
+        &mut pattern::Matcher::new(molecule),
+        atom,
+        from,
+        avoid,
+    )
+}
+
+/// [`recognize`] on the molecule of `matcher`, which keeps what it works out about the
+/// molecule's atoms and environments for the next call: a caller recognizing many groups
+/// on one molecule (the scorer) makes one matcher for them all. The answer is the one
+/// [`recognize`] gives.
+pub fn recognize_with<'a>(
+    library: &'a Library,
+    matcher: &mut pattern::Matcher<'_>,
+    atom: usize,
+    from: usize,
+    avoid: &[usize],
+) -> Option<Recognized<'a>> {
+    let molecule = matcher.molecule();
     let n = molecule.atoms().len();
     if atom >= n {
         return None;
     }
-    let mut fence: Vec<usize> = Vec::with_capacity(avoid.len() + 1);
-    fence.extend_from_slice(avoid);
-    if from < n {
-        fence.push(from);
-    }
+    // The scorer's fence already holds the attachment: no copy is needed then.
+    let extended: Vec<usize>;
+    let fence: &[usize] = if from >= n || avoid.contains(&from) {
+        avoid
+    } else {
+        extended = avoid.iter().copied().chain([from]).collect();
+        &extended
+    };
     if fence.contains(&atom) {
         return None;
     }
@@ -79,8 +116,6 @@ pub fn recognize<'a>(
     let a = &molecule.atoms()[atom];
     // (priority, atoms covered, entry index, matched atoms)
     let mut best: Option<(i32, usize, usize, Vec<usize>)> = None;
-    // Environments shared by several entries are worked out once per call.
-    let mut matcher = pattern::Matcher::new(molecule);
     let key = matcher.atom_key(atom)?;
     // Only entries whose first atom can sit on an atom like this one, in entry order: the
     // others could not anchor here, so leaving them out changes nothing. The same for
@@ -119,7 +154,7 @@ pub fn recognize<'a>(
             }
         }
         // The search tries the anchor's pre-filter first: no `could_anchor` needed.
-        let Some(m) = matcher.first_match_at(p, atom, &fence) else {
+        let Some(m) = matcher.first_match_at(p, atom, fence) else {
             continue;
         };
         let size = m.atoms.len();
@@ -140,7 +175,7 @@ pub fn recognize<'a>(
             approximate: false,
         });
     }
-    let id = nearest_type(molecule, atom, &fence)?;
+    let id = nearest_type(molecule, atom, fence)?;
     let entry = entry_by_id(library, id)?;
     Some(Recognized {
         entry,
@@ -354,13 +389,15 @@ thread_local! {
 
 /// The built-in library cannot change (it is only ever handed out shared), so its index is
 /// built once per process and found without comparing any text.
-static BUILTIN_INDEX: Lazy<Arc<SubstituentIndex>> =
-    Lazy::new(|| Arc::new(SubstituentIndex::build(&Library::builtin().substituents)));
+static BUILTIN_INDEX: Lazy<SubstituentIndex> =
+    Lazy::new(|| SubstituentIndex::build(&Library::builtin().substituents));
 
 /// An index shared across threads or local to one.
 #[derive(Clone)]
 enum IndexRef {
-    Shared(Arc<SubstituentIndex>),
+    /// The built-in library's, which lives as long as the process: a plain reference, so
+    /// that handing it out on every call costs no atomic count.
+    Shared(&'static SubstituentIndex),
     Local(Rc<SubstituentIndex>),
 }
 
@@ -385,7 +422,7 @@ impl std::ops::Deref for IndexRef {
 /// library, per thread for others).
 fn substituent_index(library: &Library) -> IndexRef {
     if std::ptr::eq(library, Library::builtin()) {
-        return IndexRef::Shared(Arc::clone(&BUILTIN_INDEX));
+        return IndexRef::Shared(&BUILTIN_INDEX);
     }
     let entries = &library.substituents;
     CACHE.with(|cache| {
@@ -420,4 +457,92 @@ fn substituent_index(library: &Library) -> IndexRef {
         cache.truncate(SLOTS);
         IndexRef::Local(index)
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Drug-like molecules written by hand (aspirin, lidocaine, ciprofloxacin, a sulfonamide,
+    /// a nitro phenol, an ester and a nitrile), and the MOSES sample when it sits beside the
+    /// project.
+    fn molecules() -> Vec<Molecule> {
+        let mut smiles: Vec<String> = [
+            "CC(=O)Oc1ccccc1C(=O)O",
+            "CCN(CC)CC(=O)Nc1c(C)cccc1C",
+            "OC(=O)c1cn(C2CC2)c2cc(N3CCNCC3)c(F)cc2c1=O",
+            "Cc1cc(NS(=O)(=O)c2ccc(N)cc2)no1",
+            "Oc1ccc(cc1[N+](=O)[O-])C(F)(F)F",
+            "COC(=O)CC(C#N)c1ccc(Br)s1",
+        ]
+        .iter()
+        .map(|s| s.to_string())
+        .collect();
+        let sample = concat!(
+            env!("CARGO_MANIFEST_DIR"),
+            "/../../../shared/data/moses-sample.smi"
+        );
+        if let Ok(text) = std::fs::read_to_string(sample) {
+            smiles.extend(
+                text.lines()
+                    .take(300)
+                    .filter_map(|l| l.split_whitespace().next())
+                    .map(str::to_string),
+            );
+        }
+        smiles.iter().filter_map(|s| mol::parse(s).ok()).collect()
+    }
+
+    fn summary(r: Option<Recognized<'_>>) -> Option<(String, Vec<usize>, bool)> {
+        r.map(|r| (r.entry.id.clone(), r.atoms, r.approximate))
+    }
+
+    #[test]
+    fn one_matcher_per_molecule_answers_as_a_matcher_per_call() {
+        let builtin = Library::builtin();
+        // A copy is not the built-in library: it takes the path of user libraries.
+        let copy = builtin.clone();
+        for library in [builtin, &copy] {
+            let mut compared = 0;
+            for m in molecules() {
+                let mut matcher = pattern::Matcher::new(&m);
+                for atom in 0..m.atoms().len() {
+                    for nb in m.neighbors(atom) {
+                        // Without a fence, and with one that holds the attachment already.
+                        for avoid in [vec![], vec![nb.atom, atom + 1]] {
+                            let alone = recognize(library, &m, atom, nb.atom, &avoid);
+                            let shared =
+                                recognize_with(library, &mut matcher, atom, nb.atom, &avoid);
+                            assert_eq!(
+                                summary(shared),
+                                summary(alone),
+                                "atom {atom} from {}",
+                                nb.atom
+                            );
+                            compared += 1;
+                        }
+                    }
+                }
+            }
+            assert!(compared > 100, "only {compared} cases compared");
+        }
+    }
+
+    #[test]
+    fn entry_by_id_table_finds_what_the_list_does() {
+        let builtin = Library::builtin();
+        let ids = builtin.substituents.iter().map(|e| e.id.as_str()).chain([
+            "no-such-group",
+            "",
+            "ring-",
+        ]);
+        for id in ids {
+            let listed = builtin.substituents.iter().find(|e| e.id == id);
+            assert_eq!(
+                entry_by_id(builtin, id).map(|e| e as *const SubstituentEntry),
+                listed.map(|e| e as *const SubstituentEntry),
+                "{id}"
+            );
+        }
+    }
 }
