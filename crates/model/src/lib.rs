@@ -10,7 +10,7 @@ mod substituents;
 pub use library::{Calibration, Kind, Library, LibraryError, Scale, SiteClass, SubstituentEntry};
 pub use score::{interactions, score_sites, Counted, Site, Term, TermRole};
 pub use sites::{find_sites, FoundSite};
-pub use substituents::{entry_by_id, is_ring_member, recognize, Recognized};
+pub use substituents::{entry_by_id, is_ring_member, recognize, recognize_with, Recognized};
 
 /// The aqueous window: sites whose estimate falls outside it are reported apart.
 /// Common practice: water levels acids stronger than about pKa -2 and bases whose
