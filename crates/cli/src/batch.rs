@@ -264,3 +264,156 @@ pub fn write_all_quiet(out: &mut dyn Write, bytes: &[u8]) -> anyhow::Result<()> 
         _ => Ok(()),
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::sync::atomic::AtomicU64;
+    use std::sync::Arc;
+
+    /// Records numbered from 1, `limit` of them (or without end), counting chunks read.
+    struct Counting {
+        next: u64,
+        limit: Option<u64>,
+        chunks: Arc<AtomicU64>,
+    }
+
+    impl Source for Counting {
+        fn next_chunk(&mut self, n: usize) -> io::Result<Vec<Item>> {
+            let mut items = Vec::new();
+            while items.len() < n && self.limit.is_none_or(|l| self.next <= l) {
+                items.push(Item {
+                    number: self.next,
+                    text: self.next.to_string(),
+                    id: None,
+                    problem: None,
+                    row: None,
+                    end: self.next,
+                });
+                self.next += 1;
+            }
+            self.chunks.fetch_add(1, Ordering::SeqCst);
+            Ok(items)
+        }
+    }
+
+    fn source(limit: Option<u64>) -> (Box<dyn Source>, Arc<AtomicU64>) {
+        let chunks = Arc::new(AtomicU64::new(0));
+        let source = Counting {
+            next: 1,
+            limit,
+            chunks: chunks.clone(),
+        };
+        (Box::new(source), chunks)
+    }
+
+    /// Echoes the record number; the first record of the first chunk is slow, so that
+    /// later chunks finish before it; numbers divisible by 7 fail; 1000 panics.
+    struct Echo;
+
+    impl Outcome for (u64, bool) {
+        fn failed(&self) -> bool {
+            self.1
+        }
+    }
+
+    impl Job for Echo {
+        type Out = (u64, bool);
+        fn run(&self, item: &Item) -> (u64, bool) {
+            if item.number == 1 {
+                std::thread::sleep(Duration::from_millis(300));
+            }
+            if item.number == 1000 {
+                panic!("record 1000");
+            }
+            (item.number, item.number % 7 == 0)
+        }
+        fn internal_error(&self, item: &Item, _message: String) -> (u64, bool) {
+            (item.number, true)
+        }
+    }
+
+    /// Keeps what it is given; stalls on the first record for `stall`, and reports a
+    /// closed pipe after `close_after` records.
+    #[derive(Default)]
+    struct Collect {
+        got: Vec<u64>,
+        stall: Option<(Duration, Arc<AtomicU64>)>,
+        chunks_read_during_stall: u64,
+        close_after: Option<usize>,
+        finished: bool,
+    }
+
+    impl Sink<(u64, bool)> for Collect {
+        fn write(&mut self, _item: &Item, out: &(u64, bool)) -> io::Result<()> {
+            if Some(self.got.len()) == self.close_after {
+                return Err(io::ErrorKind::BrokenPipe.into());
+            }
+            if let (Some((stall, chunks)), true) = (&self.stall, self.got.is_empty()) {
+                std::thread::sleep(*stall);
+                self.chunks_read_during_stall = chunks.load(Ordering::SeqCst);
+            }
+            self.got.push(out.0);
+            Ok(())
+        }
+        fn finish(&mut self) -> io::Result<()> {
+            self.finished = true;
+            Ok(())
+        }
+        fn flush(&mut self) -> io::Result<()> {
+            Ok(())
+        }
+    }
+
+    fn quiet() -> Progress {
+        Progress::new(true, None)
+    }
+
+    #[test]
+    fn every_record_once_in_input_order_when_chunks_finish_out_of_order() {
+        let n = 10 * CHUNK as u64 + 17;
+        for threads in [1, 2, 3] {
+            let (source, _) = source(Some(n));
+            let mut sink = Collect::default();
+            let summary = run(source, Some(threads), &Echo, &mut sink, &quiet()).unwrap();
+            assert_eq!(sink.got, (1..=n).collect::<Vec<_>>(), "{threads} threads");
+            assert!(sink.finished);
+            assert_eq!(summary.records, n);
+            // Multiples of 7, plus record 1000 whose panic became an error record.
+            assert_eq!(summary.failed, n / 7 + 1);
+            assert!(!summary.pipe_closed);
+        }
+    }
+
+    #[test]
+    fn reading_stays_a_few_chunks_ahead_of_a_stalled_writer() {
+        let (source, chunks) = source(Some(100 * CHUNK as u64));
+        let mut sink = Collect {
+            stall: Some((Duration::from_millis(500), chunks.clone())),
+            ..Collect::default()
+        };
+        run(source, Some(2), &Echo, &mut sink, &quiet()).unwrap();
+        // In flight, two in the reader's channel, one held by the dispatcher waiting for a
+        // slot, one held by the reader waiting for room in its channel.
+        let bound = IN_FLIGHT as u64 + 4;
+        assert!(
+            sink.chunks_read_during_stall <= bound,
+            "{} chunks read while the writer was stalled on the first record, at most {bound} expected",
+            sink.chunks_read_during_stall
+        );
+        assert_eq!(sink.got.len(), 100 * CHUNK);
+    }
+
+    #[test]
+    fn closed_output_ends_a_run_over_an_endless_input() {
+        let (source, _) = source(None);
+        let mut sink = Collect {
+            close_after: Some(3 * CHUNK + 5),
+            ..Collect::default()
+        };
+        let summary = run(source, Some(2), &Echo, &mut sink, &quiet()).unwrap();
+        assert!(summary.pipe_closed);
+        assert_eq!(summary.records, 3 * CHUNK as u64 + 5);
+        assert_eq!(sink.got, (1..=3 * CHUNK as u64 + 5).collect::<Vec<_>>());
+    }
+}
