@@ -164,10 +164,16 @@ impl PredictJob {
         // size rather than a buffer doubling up to it.
         let mut text = Vec::with_capacity(8192);
         match serde_json::to_writer(&mut text, &record) {
-            Ok(()) => Estimated::Json {
-                text,
-                failed: record.failed(),
-            },
+            Ok(()) => {
+                // The text waits for the writer, up to a few chunks of it: give back the
+                // unused capacity (glibc shrinks in place, without a copy) so that waiting costs what
+                // the text weighs, not 8 KiB a record.
+                text.shrink_to_fit();
+                Estimated::Json {
+                    text,
+                    failed: record.failed(),
+                }
+            }
             Err(_) => Estimated::Record(record),
         }
     }
