@@ -166,8 +166,8 @@ impl PredictJob {
         match serde_json::to_writer(&mut text, &record) {
             Ok(()) => {
                 // The text waits for the writer, up to a few chunks of it: give back the
-                // unused capacity (glibc shrinks in place, without a copy) so that waiting costs what
-                // the text weighs, not 8 KiB a record.
+                // unused capacity (glibc shrinks in place, without a copy) so that waiting
+                // costs what the text weighs, not 8 KiB a record.
                 text.shrink_to_fit();
                 Estimated::Json {
                     text,
