@@ -12,7 +12,8 @@ Measures and prints; asserts nothing.
 - RDKit: `Chem.MolFromSmiles` (parse + sanitize) over the same SMILES in this process,
   one core, wall time. RDKit does much less (no sites, no scoring, no speciation): the
   ratio says what an estimate costs next to reading the molecule with a common toolkit.
-- --threads 2 against --threads 1 on the same file.
+- --threads 2 against --threads 1 on the same file, each run with the CPU seconds (user +
+  system) the process used.
 - Each timing is repeated (--repeat, default 3), the runs of --threads 1, --threads 2 and
   RDKit interleaved so that all three meet the same load from other work on the machine;
   the fastest run of each is compared (other work only ever slows a run down), and every
@@ -28,6 +29,7 @@ import csv
 import gzip
 import io
 import os
+import resource
 import subprocess
 import sys
 import time
@@ -85,16 +87,20 @@ def molecules(n):
 
 
 def run_pkarta(binary, path, threads):
-    """Wall seconds of one predict run, and its output line count."""
+    """Wall seconds of one predict run, its CPU seconds (user + system) and its output
+    line count."""
     cmd = [str(binary), "predict", "--threads", str(threads), "--format", "jsonl", "--quiet", str(path)]
+    before = resource.getrusage(resource.RUSAGE_CHILDREN)
     start = time.perf_counter()
     proc = subprocess.Popen(cmd, stdout=subprocess.PIPE)
     lines = sum(chunk.count(b"\n") for chunk in iter(lambda: proc.stdout.read(1 << 20), b""))
     proc.wait()
     seconds = time.perf_counter() - start
+    after = resource.getrusage(resource.RUSAGE_CHILDREN)
+    cpu = (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
     if proc.returncode not in (0, 1):
         sys.exit(f"{' '.join(cmd)} exited with {proc.returncode}")
-    return seconds, lines
+    return seconds, cpu, lines
 
 
 def peak_memory(binary, path):
@@ -152,8 +158,11 @@ def main():
                 seconds, parsed = rdkit_run()
                 label = "RDKit MolFromSmiles (parse + sanitize), one core"
             else:
-                seconds, lines = run_pkarta(binary, path, what)
-                label = f"pkarta predict --threads {what}"
+                seconds, cpu, lines = run_pkarta(binary, path, what)
+                # CPU seconds beside wall seconds: a --threads 2 run that takes more CPU for
+                # the same work than --threads 1 shows cores that slow each other down,
+                # which no pipeline can win back.
+                label = f"pkarta predict --threads {what} (CPU {cpu:.2f} s)"
             runs[what].append(seconds)
             print(f"run {r + 1}: {label}: {seconds:.2f} s, {len(smiles) / seconds:,.0f} molecules/s (load average before: {load:.2f})")
 

@@ -89,19 +89,42 @@ pub struct PredictJob {
     pub json: bool,
 }
 
-/// A finished record, with its JSON Lines text when that is the output format: the
-/// workers serialize in parallel, so the single writer thread only copies bytes and does
-/// not hold back the others.
-pub struct Estimated {
-    /// The record.
-    pub record: Record,
-    /// Its JSON text (no line end), when the output is JSON Lines.
-    pub json: Option<Vec<u8>>,
+/// A finished record. For JSON Lines the worker that estimated it also serializes it and
+/// drops the record there, so the single writer thread only copies bytes: it neither holds
+/// back the others nor frees, one allocation at a time, memory that other threads took.
+pub enum Estimated {
+    /// The record, for the table and CSV/TSV writers (and for JSON Lines if serializing it
+    /// in the worker failed: the writer then tries again and reports the error).
+    Record(Record),
+    /// The record as JSON text (no line end), and whether it failed.
+    Json {
+        /// The JSON text.
+        text: Vec<u8>,
+        /// Whether the record carries an error.
+        failed: bool,
+    },
 }
 
 impl Outcome for Estimated {
     fn failed(&self) -> bool {
-        self.record.error.is_some()
+        match self {
+            Estimated::Record(record) => record.failed(),
+            Estimated::Json { failed, .. } => *failed,
+        }
+    }
+}
+
+impl Estimated {
+    /// The record, for the writers that format it themselves.
+    fn record(&self) -> io::Result<&Record> {
+        match self {
+            Estimated::Record(record) => Ok(record),
+            // Only when the job and the writer disagree on the format: a bug, reported as
+            // an output error rather than a panic.
+            Estimated::Json { .. } => Err(io::Error::other(
+                "internal error (please report it): a record reached this output as JSON",
+            )),
+        }
     }
 }
 
@@ -134,15 +157,25 @@ impl Job for PredictJob {
 
 impl PredictJob {
     fn finish(&self, record: Record) -> Estimated {
-        let json = if self.json {
-            // Records run to a few kilobytes (terms carry their sources): one allocation
-            // of that size rather than a buffer doubling up to it.
-            let mut buf = Vec::with_capacity(8192);
-            serde_json::to_writer(&mut buf, &record).ok().map(|()| buf)
-        } else {
-            None
-        };
-        Estimated { record, json }
+        if !self.json {
+            return Estimated::Record(record);
+        }
+        // Records run to a few kilobytes (terms carry their sources): one allocation of that
+        // size rather than a buffer doubling up to it.
+        let mut text = Vec::with_capacity(8192);
+        match serde_json::to_writer(&mut text, &record) {
+            Ok(()) => {
+                // The text waits for the writer, up to a few chunks of it: give back the
+                // unused capacity (glibc shrinks in place, without a copy) so that waiting
+                // costs what the text weighs, not 8 KiB a record.
+                text.shrink_to_fit();
+                Estimated::Json {
+                    text,
+                    failed: record.failed(),
+                }
+            }
+            Err(_) => Estimated::Record(record),
+        }
     }
 }
 
@@ -195,9 +228,9 @@ struct Jsonl<W> {
 
 impl<W: Write + Send> Sink<Estimated> for Jsonl<W> {
     fn write(&mut self, _item: &Item, done: &Estimated) -> io::Result<()> {
-        match &done.json {
-            Some(json) => self.out.write_all(json)?,
-            None => serde_json::to_writer(&mut self.out, &done.record)?,
+        match done {
+            Estimated::Json { text, .. } => self.out.write_all(text)?,
+            Estimated::Record(record) => serde_json::to_writer(&mut self.out, record)?,
         }
         self.out.write_all(b"\n")
     }
@@ -269,7 +302,7 @@ pub fn cells(record: &Record) -> Vec<String> {
 
 impl<W: Write + Send> Sink<Estimated> for Delimited<W> {
     fn write(&mut self, item: &Item, done: &Estimated) -> io::Result<()> {
-        let record = &done.record;
+        let record = done.record()?;
         if !self.header_written {
             self.write_header()?;
         }
@@ -335,7 +368,7 @@ struct Table<W> {
 
 impl<W: Write + Send> Sink<Estimated> for Table<W> {
     fn write(&mut self, item: &Item, done: &Estimated) -> io::Result<()> {
-        let record = &done.record;
+        let record = done.record()?;
         if !self.first {
             self.out.write_all(b"\n")?;
         }
