@@ -187,7 +187,14 @@ proptest! {
                 prop_assert!(sp.fraction >= MIN_FRACTION);
                 prop_assert!(sp.fraction <= r.species[i - 1].fraction);
             }
-            prop_assert!((sp.fraction - m.fraction(&sp.charged, ph)).abs() < 1e-12);
+            // Two evaluation orders of the same log-sum-exp over up to 1,024 microstates:
+            // they agree to rounding (a case at pH 15.5 differed by 1.0e-12), not bit for bit.
+            let direct = m.fraction(&sp.charged, ph);
+            prop_assert!(
+                (sp.fraction - direct).abs() < 1e-9,
+                "{} vs {direct} at pH {ph}",
+                sp.fraction
+            );
             prop_assert_eq!(f64::from(sp.charge), direct_charge(&s, &sp.charged));
         }
         let listed: f64 = r.species.iter().map(|x| x.fraction).sum();
