@@ -34,6 +34,10 @@ const RHO_PRIOR: f64 = 0.05;
 /// hydrogen bond, alkyl), as a fraction of the information the class's data hold on it
 /// (the column's sum of squares).
 const CORRECTION_PRIOR: f64 = 0.1;
+/// A floor under each correction's prior (in squared pKa per squared column unit): a class
+/// with few points and small column values (ortho sigma_I of methyls) must not buy a
+/// coefficient of 10 or 20 with a few tenths of residual.
+const CORRECTION_FLOOR: f64 = 0.3;
 /// Huber threshold (pKa units).
 const HUBER: f64 = 1.0;
 /// Weight of the prior on the parent value, in points at its published value, for classes
@@ -398,7 +402,7 @@ fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64)
                     v * v
                 })
                 .sum();
-            *wc = (CORRECTION_PRIOR * information + 1e-3).sqrt();
+            *wc = (CORRECTION_PRIOR * information + CORRECTION_FLOOR).sqrt();
         }
         let targets = [
             published.parent,
