@@ -169,16 +169,18 @@ impl Microstates {
     }
 
     fn find_isoelectric_point(&self) -> Option<f64> {
+        /// A mean charge this close to 0 at an end of the range is neutral, not a sign.
+        const PI_CHARGE_TOLERANCE: f64 = 1e-9;
         if self.n == 0 {
             return None;
         }
         let (mut lo, mut hi) = PI_RANGE;
         let (c_lo, c_hi) = (self.charge(lo), self.charge(hi));
-        if !(c_lo >= 0.0 && c_hi <= 0.0) || (c_lo == 0.0 && c_hi == 0.0) {
+        // The charge must really change sign across the range. A molecule that is only
+        // basic tends to charge 0 at high pH without crossing it, and rounding in the
+        // proton count can leave its charge at -1e-16 there: that is no isoelectric point.
+        if !(c_lo > PI_CHARGE_TOLERANCE && c_hi < -PI_CHARGE_TOLERANCE) {
             return None;
-        }
-        if c_lo == 0.0 {
-            return Some(lo);
         }
         // The mean charge falls strictly with pH (its slope is -ln10 times the variance of
         // the proton count), so bisection on the sign converges to the one root.

@@ -172,7 +172,8 @@ proptest! {
             }
             None => {
                 let (a, b) = (m.charge(-2.0), m.charge(16.0));
-                prop_assert!(!(a > 0.0 && b < 0.0), "charge crosses zero: {a} to {b}");
+                // Charges within 1e-9 of 0 at an end of the range count as neutral there.
+                prop_assert!(!(a > 1e-9 && b < -1e-9), "charge crosses zero: {a} to {b}");
             }
         }
     }
