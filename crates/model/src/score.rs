@@ -579,13 +579,8 @@ fn hammett(
                     .filter(|r| r.contains(&s) && r.contains(&atom))
                 {
                     for &a in r {
-                        let at = &molecule.atoms()[a];
                         if !ring.contains(&a)
-                            && at.element == 7
-                            && at.aromatic
-                            && at.charge == 0
-                            && molecule.total_hydrogens(a) == 0
-                            && molecule.degree(a) == 2
+                            && is_pyridine_type_n(molecule, a)
                             && !fused_aza.contains(&a)
                         {
                             fused_aza.push(a);
@@ -683,14 +678,22 @@ fn hammett(
         k.ortho_hbond_term,
         "ortho hydrogen-bond acceptor (C=O, NO2)",
     );
-    push_ortho_field(
+    push_ortho_sum(
         account,
+        Counted::OrthoField,
+        "field",
+        "sigma_I",
+        "ortho (sigma_I)",
         ortho_field,
         &ortho_field_groups,
         k.ortho_field_term,
     );
-    push_ortho_resonance(
+    push_ortho_sum(
         account,
+        Counted::OrthoResonance,
+        "resonance",
+        "sigma_R",
+        "ortho (sigma_R = sigma_p - sigma_I)",
         ortho_resonance,
         &ortho_resonance_groups,
         k.ortho_resonance_term,
@@ -701,15 +704,7 @@ fn hammett(
     // cf. Perrin, Dempsey and Serjeant 1981 on polyaza heterocycles).
     let aza = ring
         .iter()
-        .filter(|&&a| {
-            let at = &molecule.atoms()[a];
-            a != found.atom
-                && at.element == 7
-                && at.aromatic
-                && at.charge == 0
-                && molecule.total_hydrogens(a) == 0
-                && molecule.degree(a) == 2
-        })
+        .filter(|&&a| a != found.atom && is_pyridine_type_n(molecule, a))
         .count();
     push_counted(
         account,
@@ -720,64 +715,72 @@ fn hammett(
     );
 }
 
-/// The resonance part of the ortho substituents, sigma_R = sigma_p - sigma_I summed, times
-/// the class's coefficient: with the field term it lets the fit weigh the two parts of an
-/// ortho effect separately (for a ring-member site the ortho group is otherwise scored by
-/// sigma_I alone).
+/// An ortho or alkyl class correction: the class's coefficient `per` times a summed scale
+/// value `sum`, shown with the coefficient as its rho (contribution = -rho * sigma).
+/// `on` names the scale in the source line.
+///
+/// The ortho field and resonance terms split an ortho effect into its inductive (sigma_I)
+/// and resonance (sigma_R = sigma_p - sigma_I) parts, each weighed by the fit; for a
+/// ring-member site the ortho group is otherwise scored by sigma_I alone.
 ///
 /// # Reference
 ///
 /// The dual-parameter treatment of ortho substituents: Charton, Prog. Phys. Org. Chem.
 /// 1971, 8, 235; Fujita and Nishioka, Prog. Phys. Org. Chem. 1976, 12, 49 (from memory).
-fn push_ortho_resonance(account: &mut Account, sum: f64, groups: &str, per: f64) {
-    if groups.is_empty() {
-        return;
-    }
+/// The coefficient per class is fitted by the calibration program.
+fn push_coefficient_term(
+    account: &mut Account,
+    what: Counted,
+    label: String,
+    position: &str,
+    on: &str,
+    sum: f64,
+    per: f64,
+) {
     account.terms.push(Term {
-        label: concat(&["ortho resonance (", groups, ")"]),
+        label,
         contribution: per * sum,
         source: if per == 0.0 {
             "class correction, not calibrated for this class (0)".into()
         } else {
-            concat(&["class coefficient on sigma_R: ", account.rho_source])
+            concat(&["class coefficient on ", on, ": ", account.rho_source])
         },
         sigma: Some(sum),
         rho: Some(-per),
-        position: Some("ortho (sigma_R = sigma_p - sigma_I)".into()),
+        position: Some(position.into()),
         role: TermRole::Correction,
         ortho_substituent: false,
-        counted: Some((Counted::OrthoResonance, sum)),
+        counted: Some((what, sum)),
     });
 }
 
-/// The field effect of the ortho substituents: the class's coefficient times their summed
-/// sigma_I, shown with the coefficient as its rho (contribution = -rho * sigma).
-///
-/// # Reference
-///
-/// Ortho effects split into the para-type electronic part and a proximity (field) part
-/// proportional to the inductive constant: Fujita and Nishioka, Prog. Phys. Org. Chem.
-/// 1976, 12, 49; Charton, Prog. Phys. Org. Chem. 1971, 8, 235 (from memory). The
-/// coefficient per class is fitted by the calibration program.
-fn push_ortho_field(account: &mut Account, sum: f64, groups: &str, per: f64) {
+/// The ortho field or resonance term over the named ortho groups, when there are any.
+#[allow(clippy::too_many_arguments)]
+fn push_ortho_sum(
+    account: &mut Account,
+    what: Counted,
+    part: &str,
+    on: &str,
+    position: &str,
+    sum: f64,
+    groups: &str,
+    per: f64,
+) {
     if groups.is_empty() {
         return;
     }
-    account.terms.push(Term {
-        label: concat(&["ortho field (", groups, ")"]),
-        contribution: per * sum,
-        source: if per == 0.0 {
-            "class correction, not calibrated for this class (0)".into()
-        } else {
-            concat(&["class coefficient on sigma_I: ", account.rho_source])
-        },
-        sigma: Some(sum),
-        rho: Some(-per),
-        position: Some("ortho (sigma_I)".into()),
-        role: TermRole::Correction,
-        ortho_substituent: false,
-        counted: Some((Counted::OrthoField, sum)),
-    });
+    let label = concat(&["ortho ", part, " (", groups, ")"]);
+    push_coefficient_term(account, what, label, position, on, sum, per);
+}
+
+/// Whether `atom` is a pyridine-type ring N (aromatic, neutral, two neighbours, no H).
+fn is_pyridine_type_n(molecule: &Molecule, atom: usize) -> bool {
+    let at = &molecule.atoms()[atom];
+    at.element == 7
+        && at.aromatic
+        && at.charge == 0
+        && molecule.total_hydrogens(atom) == 0
+        && molecule.degree(atom) == 2
 }
 
 /// Adds a group's name to a comma-separated list.
@@ -1095,21 +1098,15 @@ fn taft(
         // 4.76): the class's fitted coefficient takes back what the Taft count overstates.
         // Reference: Taft, in Newman (ed.), Steric Effects in Organic Chemistry, 1956, and
         // Perrin, Dempsey and Serjeant 1981 on alkyl groups in amine basicity (from memory).
-        account.terms.push(Term {
-            label: "solvation offset of the alkyl branches".into(),
-            contribution: k.alkyl_term * alkyl,
-            source: if k.alkyl_term == 0.0 {
-                "class correction, not calibrated for this class (0)".into()
-            } else {
-                concat(&["class coefficient on the alkyl sigma*: ", &k.rho_source])
-            },
-            sigma: Some(alkyl),
-            rho: Some(-k.alkyl_term),
-            position: Some("2 bonds and beyond".into()),
-            role: TermRole::Correction,
-            ortho_substituent: false,
-            counted: Some((Counted::AlkylBranch, alkyl)),
-        });
+        push_coefficient_term(
+            account,
+            Counted::AlkylBranch,
+            "solvation offset of the alkyl branches".into(),
+            "2 bonds and beyond",
+            "the alkyl sigma*",
+            alkyl,
+            k.alkyl_term,
+        );
     }
 }
 
