@@ -23,7 +23,7 @@ use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 
 use anyhow::{bail, Context, Result};
-use model::{Counted, Kind, Library, Scale, TermRole};
+use model::{Counted, Kind, Library, Scale, SiteClass, TermRole};
 use nalgebra::{DMatrix, DVector};
 
 /// Classes with fewer points than this keep their published values.
@@ -81,21 +81,8 @@ struct Point {
     class: usize,
     /// Sum of sigma over the site's substituent terms.
     x: f64,
-    /// Number of ortho substituents (the class's ortho term applies to each).
-    ortho: f64,
-    /// Counted class corrections: pyridine-type N in fused rings, ring C=O / C=S.
-    fused_aza: f64,
-    ring_oxo: f64,
-    /// Summed sigma_I of the ortho substituents (the ortho field term's count).
-    ortho_field: f64,
-    /// Ortho hydrogen-bond acceptors.
-    ortho_hbond: f64,
-    /// Summed sigma_R (sigma_p - sigma_I) of the ortho substituents.
-    ortho_resonance: f64,
-    /// Pairs of pyridine-type N in the site's ring besides the site.
-    aza_pairs: f64,
-    /// Summed sigma* of the alkyl branches of a Taft chain.
-    alkyl: f64,
+    /// What each class correction multiplies, in [`CORRECTIONS`] order.
+    corrections: [f64; N_CORRECTIONS],
     /// Measured value less the fixed corrections and the coupling/statistical shift
     /// between the site value and the predicted macroscopic constant.
     y: f64,
@@ -174,14 +161,9 @@ struct Prediction {
     site_pka: f64,
     class: String,
     x: f64,
-    ortho: f64,
-    fused_aza: f64,
-    ring_oxo: f64,
-    ortho_field: f64,
-    ortho_hbond: f64,
-    ortho_resonance: f64,
-    aza_pairs: f64,
-    alkyl: f64,
+    /// What each class correction multiplies, in [`CORRECTIONS`] order.
+    counts: [f64; N_CORRECTIONS],
+    /// The fixed corrections (those the fit does not set), summed.
     corrections: f64,
 }
 
@@ -238,26 +220,16 @@ fn predict(library: &Library, m: &Measurement) -> Option<Prediction> {
             .map(|(_, n)| n)
             .sum()
     };
-    let fused_aza = count(Counted::FusedAza);
-    let ring_oxo = count(Counted::RingOxo);
-    let ortho_field = count(Counted::OrthoField);
-    let ortho_hbond = count(Counted::OrthoHbond);
-    let ortho_resonance = count(Counted::OrthoResonance);
-    let aza_pairs = count(Counted::AzaPair);
-    let alkyl = count(Counted::AlkylBranch);
+    let counts = CORRECTIONS.map(|(what, _)| match what {
+        Some(what) => count(what),
+        None => ortho,
+    });
     Some(Prediction {
         value: macro_value.unwrap_or(site.pka),
         site_pka: site.pka,
         class: site.class,
         x,
-        ortho,
-        fused_aza,
-        ring_oxo,
-        ortho_field,
-        ortho_hbond,
-        ortho_resonance,
-        aza_pairs,
-        alkyl,
+        counts,
         corrections,
     })
 }
@@ -280,14 +252,7 @@ fn points(library: &Library, data: &[Measurement]) -> Vec<Point> {
             Some(Point {
                 class: index[&p.class],
                 x: p.x,
-                ortho: p.ortho,
-                fused_aza: p.fused_aza,
-                ring_oxo: p.ring_oxo,
-                ortho_field: p.ortho_field,
-                ortho_hbond: p.ortho_hbond,
-                ortho_resonance: p.ortho_resonance,
-                aza_pairs: p.aza_pairs,
-                alkyl: p.alkyl,
+                corrections: p.counts,
                 y: m.pka - p.corrections - shift,
             })
         })
@@ -299,28 +264,62 @@ fn points(library: &Library, data: &[Measurement]) -> Vec<Point> {
 struct Fit {
     parent: f64,
     rho: f64,
-    ortho: f64,
-    fused_aza: f64,
-    ring_oxo: f64,
-    ortho_field: f64,
-    ortho_hbond: f64,
-    ortho_resonance: f64,
-    aza_pairs: f64,
-    alkyl: f64,
+    /// The class corrections, in [`CORRECTIONS`] order.
+    corrections: [f64; N_CORRECTIONS],
 }
 
 impl Fit {
     fn predict(&self, pt: &Point) -> f64 {
-        self.parent - self.rho * pt.x
-            + self.ortho * pt.ortho
-            + self.fused_aza * pt.fused_aza
-            + self.ring_oxo * pt.ring_oxo
-            + self.ortho_field * pt.ortho_field
-            + self.ortho_hbond * pt.ortho_hbond
-            + self.ortho_resonance * pt.ortho_resonance
-            + self.aza_pairs * pt.aza_pairs
-            + self.alkyl * pt.alkyl
+        self.corrections
+            .iter()
+            .zip(&pt.corrections)
+            .fold(self.parent - self.rho * pt.x, |sum, (c, v)| sum + c * v)
     }
+}
+
+/// Number of class corrections the fit sets besides parent and rho.
+const N_CORRECTIONS: usize = 8;
+
+/// The class corrections, in column order after parent and rho: what the scorer counts
+/// for each (`None`: the ortho substituents, flagged on their terms) and the field of
+/// `SiteClass` and of `fragments/calibration.toml` that holds its value.
+const CORRECTIONS: [(Option<Counted>, &str); N_CORRECTIONS] = [
+    (None, "ortho_term"),
+    (Some(Counted::FusedAza), "fused_aza_term"),
+    (Some(Counted::RingOxo), "ring_oxo_term"),
+    (Some(Counted::OrthoField), "ortho_field_term"),
+    (Some(Counted::OrthoHbond), "ortho_hbond_term"),
+    (Some(Counted::OrthoResonance), "ortho_resonance_term"),
+    (Some(Counted::AzaPair), "aza_pair_term"),
+    (Some(Counted::AlkylBranch), "alkyl_term"),
+];
+
+/// The class's corrections in [`CORRECTIONS`] order.
+fn class_corrections(c: &SiteClass) -> [f64; N_CORRECTIONS] {
+    [
+        c.ortho_term,
+        c.fused_aza_term,
+        c.ring_oxo_term,
+        c.ortho_field_term,
+        c.ortho_hbond_term,
+        c.ortho_resonance_term,
+        c.aza_pair_term,
+        c.alkyl_term,
+    ]
+}
+
+/// Sets the class's corrections from values in [`CORRECTIONS`] order.
+fn set_class_corrections(c: &mut SiteClass, v: [f64; N_CORRECTIONS]) {
+    [
+        c.ortho_term,
+        c.fused_aza_term,
+        c.ring_oxo_term,
+        c.ortho_field_term,
+        c.ortho_hbond_term,
+        c.ortho_resonance_term,
+        c.aza_pair_term,
+        c.alkyl_term,
+    ] = v;
 }
 
 /// Fits y = p0 - rho * x (+ the counted class corrections: ortho, fused-aza, ring-oxo,
@@ -332,35 +331,23 @@ fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64)
     // Every column is fitted; the ones a class's scale never fills (aromatic terms on a
     // Taft class, the alkyl term on an aromatic one) are all zero, and their prior rows
     // keep them at the published value.
-    let cols = 10;
+    let cols = 2 + N_CORRECTIONS;
     let mut fit = published;
     let mut w: Vec<f64> = pts
         .iter()
         .map(|pt| weight(pt.y - published.predict(pt)))
         .collect();
     for _ in 0..10 {
-        // Rows: sqrt(w) * [1, -x, n_ortho, n_fused_aza, n_ring_oxo, sum sigma_I ortho,
-        // n_ortho_hbond, sum sigma_R ortho, sum sigma* alkyl, aza pairs]
-        // . constants = sqrt(w) * y,
-        // then one prior row per constant.
+        // Rows: sqrt(w) * [1, -x, corrections...] . constants = sqrt(w) * y, then one prior
+        // row per constant.
         let mut a = DMatrix::<f64>::zeros(n + cols, cols);
         let mut b = DVector::<f64>::zeros(n + cols);
         for (i, pt) in pts.iter().enumerate() {
             let s = w[i].sqrt();
-            let row = [
-                1.0,
-                -pt.x,
-                pt.ortho,
-                pt.fused_aza,
-                pt.ring_oxo,
-                pt.ortho_field,
-                pt.ortho_hbond,
-                pt.ortho_resonance,
-                pt.aza_pairs,
-                pt.alkyl,
-            ];
-            for c in 0..cols {
-                a[(i, c)] = row[c] * s;
+            a[(i, 0)] = s;
+            a[(i, 1)] = -pt.x * s;
+            for (c, v) in pt.corrections.iter().enumerate() {
+                a[(i, c + 2)] = v * s;
             }
             b[i] = pt.y * s;
         }
@@ -370,52 +357,19 @@ fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64)
             (RHO_PRIOR * n as f64).sqrt()
         };
         // The class corrections' priors scale with what the data hold on each: a fixed
-        // fraction of the column's sum of squares (plus a floor for empty columns), so a
-        // column of small values (alkyl sigma* sums) is held no harder than a column of
-        // counts.
-        let mut weights = [
-            parent_prior.sqrt(),
-            slope,
-            0.0,
-            0.0,
-            0.0,
-            0.0,
-            0.0,
-            0.0,
-            0.0,
-            0.0,
-        ];
+        // fraction of the column's sum of squares (plus a floor), so a column of small
+        // values (alkyl sigma* sums) is held no harder than a column of counts.
+        let mut weights = [0.0; 2 + N_CORRECTIONS];
+        weights[0] = parent_prior.sqrt();
+        weights[1] = slope;
         for (c, wc) in weights.iter_mut().enumerate().skip(2) {
-            let information: f64 = pts
-                .iter()
-                .map(|pt| {
-                    let v = [
-                        pt.ortho,
-                        pt.fused_aza,
-                        pt.ring_oxo,
-                        pt.ortho_field,
-                        pt.ortho_hbond,
-                        pt.ortho_resonance,
-                        pt.aza_pairs,
-                        pt.alkyl,
-                    ][c - 2];
-                    v * v
-                })
-                .sum();
+            let information: f64 = pts.iter().map(|pt| pt.corrections[c - 2].powi(2)).sum();
             *wc = (CORRECTION_PRIOR * information + CORRECTION_FLOOR).sqrt();
         }
-        let targets = [
-            published.parent,
-            published.rho,
-            published.ortho,
-            published.fused_aza,
-            published.ring_oxo,
-            published.ortho_field,
-            published.ortho_hbond,
-            published.ortho_resonance,
-            published.aza_pairs,
-            published.alkyl,
-        ];
+        let mut targets = [0.0; 2 + N_CORRECTIONS];
+        targets[0] = published.parent;
+        targets[1] = published.rho;
+        targets[2..].copy_from_slice(&published.corrections);
         for c in 0..cols {
             a[(n + c, c)] = weights[c];
             b[n + c] = weights[c] * targets[c];
@@ -425,14 +379,9 @@ fn fit_class(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prior: f64)
         };
         fit.parent = sol[0];
         fit.rho = sol[1];
-        fit.ortho = sol[2];
-        fit.fused_aza = sol[3];
-        fit.ring_oxo = sol[4];
-        fit.ortho_field = sol[5];
-        fit.ortho_hbond = sol[6];
-        fit.ortho_resonance = sol[7];
-        fit.aza_pairs = sol[8];
-        fit.alkyl = sol[9];
+        for (c, f) in fit.corrections.iter_mut().enumerate() {
+            *f = sol[c + 2];
+        }
         for (i, pt) in pts.iter().enumerate() {
             w[i] = weight(pt.y - fit.predict(pt));
         }
@@ -462,14 +411,7 @@ fn calibrate(
             let published_fit = Fit {
                 parent: pub_class.parent_pka,
                 rho: pub_class.rho,
-                ortho: pub_class.ortho_term,
-                fused_aza: pub_class.fused_aza_term,
-                ring_oxo: pub_class.ring_oxo_term,
-                ortho_field: pub_class.ortho_field_term,
-                ortho_hbond: pub_class.ortho_hbond_term,
-                ortho_resonance: pub_class.ortho_resonance_term,
-                aza_pairs: pub_class.aza_pair_term,
-                alkyl: pub_class.alkyl_term,
+                corrections: class_corrections(pub_class),
             };
             let prior = if pub_class.scale == Scale::None {
                 PARENT_PRIOR
@@ -486,14 +428,7 @@ fn calibrate(
             let c = &mut lib.classes[class];
             c.parent_pka = fit.parent;
             c.rho = fit.rho;
-            c.ortho_term = fit.ortho;
-            c.fused_aza_term = fit.fused_aza;
-            c.ring_oxo_term = fit.ring_oxo;
-            c.ortho_field_term = fit.ortho_field;
-            c.ortho_hbond_term = fit.ortho_hbond;
-            c.ortho_resonance_term = fit.ortho_resonance;
-            c.aza_pair_term = fit.aza_pairs;
-            c.alkyl_term = fit.alkyl;
+            set_class_corrections(c, fit.corrections);
             stats.insert(class, (cp.len(), rmse));
         }
     }
@@ -699,20 +634,16 @@ fn main() -> Result<()> {
             writeln!(out, "class = {:?}", c.id)?;
             writeln!(out, "parent_pka = {:.3}", c.parent_pka)?;
             writeln!(out, "rho = {:.3}", c.rho)?;
-            if matches!(
+            // The aromatic corrections on Hammett-scored classes, the alkyl one on Taft's.
+            let aromatic = matches!(
                 c.scale,
                 Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus
-            ) {
-                writeln!(out, "ortho_term = {:.3}", c.ortho_term)?;
-                writeln!(out, "fused_aza_term = {:.3}", c.fused_aza_term)?;
-                writeln!(out, "ring_oxo_term = {:.3}", c.ring_oxo_term)?;
-                writeln!(out, "ortho_field_term = {:.3}", c.ortho_field_term)?;
-                writeln!(out, "ortho_hbond_term = {:.3}", c.ortho_hbond_term)?;
-                writeln!(out, "ortho_resonance_term = {:.3}", c.ortho_resonance_term)?;
-                writeln!(out, "aza_pair_term = {:.3}", c.aza_pair_term)?;
-            }
-            if c.scale == Scale::Taft {
-                writeln!(out, "alkyl_term = {:.3}", c.alkyl_term)?;
+            );
+            for ((what, name), v) in CORRECTIONS.iter().zip(class_corrections(c)) {
+                let alkyl = *what == Some(Counted::AlkylBranch);
+                if (aromatic && !alkyl) || (alkyl && c.scale == Scale::Taft) {
+                    writeln!(out, "{name} = {v:.3}")?;
+                }
             }
             writeln!(out, "points = {n}")?;
             writeln!(out, "rmse = {rmse:.3}")?;
