@@ -213,17 +213,8 @@ impl Pattern {
     /// no matches.
     pub fn matches_at(&self, molecule: &Molecule, atom: usize, avoid: &[usize]) -> Vec<Match> {
         let mut memo = EnvMemo::new(molecule.atoms().len());
-        let mut search = Search::new(molecule, &self.subs, &self.env_ids, &mut memo);
-        let mut distinct = Distinct::default();
-        search.search(&self.main, atom, avoid, &mut |a| {
-            distinct.add(a);
-            false
-        });
-        distinct
-            .matches
-            .into_iter()
-            .map(|atoms| Match { atoms })
-            .collect()
+        Search::new(molecule, &self.subs, &self.env_ids, &mut memo)
+            .distinct_matches(&self.main, atom, avoid)
     }
     /// Whether any match sits on `atom` (cheaper than [`Pattern::matches_at`]).
     pub fn is_match_at(&self, molecule: &Molecule, atom: usize, avoid: &[usize]) -> bool {
@@ -518,17 +509,11 @@ impl<'m> Matcher<'m> {
         if !self.anchor_ok(pattern, atom) {
             return Vec::new();
         }
-        let mut search = Search::new(self.molecule, &pattern.subs, &pattern.env_ids, self.memo());
-        let mut distinct = Distinct::default();
-        search.search(&pattern.main, atom, avoid, &mut |a| {
-            distinct.add(a);
-            false
-        });
-        distinct
-            .matches
-            .into_iter()
-            .map(|atoms| Match { atoms })
-            .collect()
+        Search::new(self.molecule, &pattern.subs, &pattern.env_ids, self.memo()).distinct_matches(
+            &pattern.main,
+            atom,
+            avoid,
+        )
     }
     /// The least (compared atom by atom) of the matches [`Pattern::matches_at`] would
     /// list, found without building the list: what a caller wanting one match that does

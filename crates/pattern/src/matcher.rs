@@ -17,6 +17,7 @@ use crate::features::{FeatureTable, COUNT_CAP};
 use crate::filter::bond_kind;
 use crate::graph::Graph;
 use crate::primitive::AtomPrim;
+use crate::Match;
 
 /// Marks a pattern atom not placed yet.
 const UNPLACED: usize = usize::MAX;
@@ -271,6 +272,26 @@ impl<'a> Search<'a> {
         };
         self.memo.remember(env, atom, found);
         found
+    }
+
+    /// Every match of `graph` with its root on `anchor`, one per distinct atom set, in the
+    /// order the search finds them.
+    pub(crate) fn distinct_matches(
+        &mut self,
+        graph: &Graph,
+        anchor: usize,
+        avoid: &[usize],
+    ) -> Vec<Match> {
+        let mut distinct = Distinct::default();
+        self.search(graph, anchor, avoid, &mut |a| {
+            distinct.add(a);
+            false
+        });
+        distinct
+            .matches
+            .into_iter()
+            .map(|atoms| Match { atoms })
+            .collect()
     }
 
     /// Runs `graph` with its root on `anchor`, giving each complete match (molecule atom per
