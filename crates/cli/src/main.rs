@@ -1,6 +1,11 @@
 //! The `pkarta` command-line tool: argument parsing, input and output, formatting. The
 //! chemistry is in the `pkarta` library.
 
+// A general-purpose allocator with per-thread heaps: the batch allocates many small,
+// short-lived objects per molecule on every worker thread.
+#[global_allocator]
+static ALLOCATOR: mimalloc::MiMalloc = mimalloc::MiMalloc;
+
 mod batch;
 mod curve;
 mod debug;
