@@ -1116,6 +1116,7 @@ struct Coupling {
     w3: f64,
     falloff: f64,
     extra_path: f64,
+    unlike: f64,
     max_bonds: usize,
 }
 
@@ -1221,9 +1222,15 @@ pub fn interactions(library: &Library, molecule: &Molecule, sites: &[Site]) -> V
                     magnitude = g;
                 }
             }
-            // Charged forms: acids -1, bases +1; like signs repel.
+            // Charged forms: acids -1, bases +1; like signs repel, unlike ones attract, less
+            // strongly than like ones repel at the same distance (see the header of
+            // fragments/interactions.toml).
             let same_sign = sites[i].kind == sites[j].kind;
-            let value = if same_sign { magnitude } else { -magnitude };
+            let value = if same_sign {
+                magnitude
+            } else {
+                -magnitude * c.unlike
+            };
             w[i][j] = value;
             w[j][i] = value;
         }
@@ -1238,6 +1245,7 @@ mod tests {
     #[test]
     fn coupling_constants_load() {
         assert!(COUPLING.w3 > 0.0 && COUPLING.falloff > 0.0 && COUPLING.falloff < 1.0);
+        assert!(COUPLING.unlike > 0.0 && COUPLING.unlike <= 1.0);
     }
 
     #[test]
