@@ -135,6 +135,10 @@ pub struct SiteClass {
     /// cancels in water; set by calibration, 0 when not calibrated).
     #[serde(default)]
     pub alkyl_term: f64,
+    /// Correction per plain alkyl group ortho to the site (aromatic scales: hindered
+    /// solvation of the charged form; set by calibration, 0 when not calibrated).
+    #[serde(default)]
+    pub ortho_alkyl_term: f64,
     /// Statistical factor (number of equivalent protons or positions the class counts);
     /// contributes -log10(factor) for acids and +log10(factor) for bases when not 1.
     #[serde(default = "one")]
@@ -249,6 +253,9 @@ pub struct Calibration {
     /// Fitted coefficient on the summed sigma* of alkyl branches.
     #[serde(default)]
     pub alkyl_term: Option<f64>,
+    /// Fitted correction per ortho alkyl group.
+    #[serde(default)]
+    pub ortho_alkyl_term: Option<f64>,
     /// Number of measurements fitted.
     pub points: usize,
     /// Residual error of the fit (RMS, pKa units).

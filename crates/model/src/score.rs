@@ -104,6 +104,9 @@ pub enum Counted {
     AzaPair,
     /// Plain alkyl branches along a Taft chain: the count is their summed sigma*.
     AlkylBranch,
+    /// Plain hydrocarbon alkyl groups ortho to the site (steric hindrance to solvation of
+    /// the charged form, which sigma_I does not carry).
+    OrthoAlkyl,
 }
 
 /// A scored site.
@@ -145,6 +148,7 @@ struct Constants<'l> {
     ortho_resonance_term: f64,
     aza_pair_term: f64,
     alkyl_term: f64,
+    ortho_alkyl_term: f64,
     uncertainty: f64,
 }
 
@@ -212,6 +216,7 @@ fn constants(library: &Library, class_index: usize) -> Constants<'_> {
                     .unwrap_or(class.ortho_resonance_term),
                 aza_pair_term: fit.aza_pair_term.unwrap_or(class.aza_pair_term),
                 alkyl_term: fit.alkyl_term.unwrap_or(class.alkyl_term),
+                ortho_alkyl_term: fit.ortho_alkyl_term.unwrap_or(class.ortho_alkyl_term),
                 // The class's cross-validated error, as a standard deviation (for normal errors
                 // sd = MAE * sqrt(pi / 2)); never below the residual of the fit itself.
                 uncertainty: (fit.cv_mae * 1.2533).max(fit.rmse).max(0.1),
@@ -230,6 +235,7 @@ fn constants(library: &Library, class_index: usize) -> Constants<'_> {
             ortho_resonance_term: class.ortho_resonance_term,
             aza_pair_term: class.aza_pair_term,
             alkyl_term: class.alkyl_term,
+            ortho_alkyl_term: class.ortho_alkyl_term,
             uncertainty: class.uncertainty,
         },
     }
@@ -529,6 +535,7 @@ fn hammett(
     let mut ortho_field = 0.0;
     let mut ortho_field_groups = String::new();
     let mut ortho_hbond = 0usize;
+    let mut ortho_alkyl = 0usize;
     let mut ortho_resonance = 0.0;
     let mut ortho_resonance_groups = String::new();
     for step in 1..n {
@@ -617,6 +624,10 @@ fn hammett(
                     if ortho && r.entry.hbond_acceptor {
                         ortho_hbond += 1;
                     }
+                    // `walk` marks the plain hydrocarbon alkyls (methyl ... tert-butyl).
+                    if ortho && r.entry.walk {
+                        ortho_alkyl += 1;
+                    }
                     let name = numbered(number, &r.entry.name);
                     if ortho {
                         if let Some((s_i, _)) = sigma_inductive(r.entry) {
@@ -677,6 +688,13 @@ fn hammett(
         ortho_hbond,
         k.ortho_hbond_term,
         "ortho hydrogen-bond acceptor (C=O, NO2)",
+    );
+    push_counted(
+        account,
+        Counted::OrthoAlkyl,
+        ortho_alkyl,
+        k.ortho_alkyl_term,
+        "ortho alkyl (hindered solvation)",
     );
     push_ortho_sum(
         account,
