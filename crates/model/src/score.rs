@@ -956,6 +956,49 @@ fn is_plain_carbon(molecule: &Molecule, atom: usize) -> bool {
     a.element == 6 && a.charge == 0 && !a.aromatic && a.hybridization == Hybridization::Sp3
 }
 
+/// Atoms bonded to the saturated carbons of a Taft class's own pattern (not the anchor),
+/// outside the pattern, as walk entries (atom, the pattern carbon it hangs from, depth),
+/// deepest first. Distances run through the pattern's atoms from the anchor; entries beyond
+/// the walk's depth are left out.
+fn parent_carbon_branches(
+    molecule: &Molecule,
+    found: &FoundSite,
+    anchor: usize,
+    visited: &[usize],
+) -> Vec<(usize, usize, usize)> {
+    let matched = &found.matched;
+    let mut out = Vec::new();
+    if matched.len() < 2 || !matched.contains(&anchor) {
+        return out;
+    }
+    // Breadth-first over the pattern's atoms only.
+    let mut dist: Vec<(usize, usize)> = vec![(anchor, 0)];
+    let mut head = 0;
+    while let Some(&(a, d)) = dist.get(head) {
+        head += 1;
+        for nb in molecule.neighbors(a) {
+            if matched.contains(&nb.atom) && !dist.iter().any(|&(b, _)| b == nb.atom) {
+                dist.push((nb.atom, d + 1));
+            }
+        }
+    }
+    for &(c, d) in &dist[1..] {
+        if d > TAFT_MAX_DEPTH || !is_plain_carbon(molecule, c) {
+            continue;
+        }
+        for nb in molecule.neighbors(c) {
+            let s = nb.atom;
+            if visited.contains(&s) || molecule.atoms()[s].element == 1 {
+                continue;
+            }
+            out.push((s, c, d));
+        }
+    }
+    // Deepest first, so that popping from the end yields the nearest.
+    out.sort_by(|a, b| b.2.cmp(&a.2));
+    out
+}
+
 fn taft(
     library: &Library,
     matcher: &mut Matcher<'_>,
@@ -1008,9 +1051,30 @@ fn taft(
     for &(a, _, _) in &queue {
         visited.push(a);
     }
+    // What hangs on the saturated carbons of the class's own pattern (the ring carbons of a
+    // piperidine or morpholine class) is part of no parent value: it enters the walk at its
+    // distance from the anchor, nearest first, interleaved with the walk's own levels.
+    let mut from_parent = parent_carbon_branches(molecule, found, anchor, &visited);
     let mut alkyl = 0.0;
     let mut alkyl_source = None;
-    while let Some((atom, from, depth)) = queue.pop_front() {
+    loop {
+        let take_parent = match (from_parent.last(), queue.front()) {
+            (Some(p), Some(q)) => p.2 <= q.2,
+            (Some(_), None) => true,
+            (None, _) => false,
+        };
+        let (atom, from, depth) = if take_parent {
+            let Some(p) = from_parent.pop() else { break };
+            if visited.contains(&p.0) {
+                continue;
+            }
+            p
+        } else {
+            match queue.pop_front() {
+                Some(q) => q,
+                None => break,
+            }
+        };
         // The atom was marked visited when it was queued; it must not fence itself off.
         if let Some(i) = visited.iter().position(|&a| a == atom) {
             visited.swap_remove(i);
