@@ -278,7 +278,7 @@ impl Fit {
 }
 
 /// Number of class corrections the fit sets besides parent and rho.
-const N_CORRECTIONS: usize = 9;
+const N_CORRECTIONS: usize = 10;
 
 /// The class corrections, in column order after parent and rho: what the scorer counts
 /// for each (`None`: the ortho substituents, flagged on their terms) and the field of
@@ -293,6 +293,7 @@ const CORRECTIONS: [(Option<Counted>, &str); N_CORRECTIONS] = [
     (Some(Counted::AzaPair), "aza_pair_term"),
     (Some(Counted::AlkylBranch), "alkyl_term"),
     (Some(Counted::OrthoAlkyl), "ortho_alkyl_term"),
+    (Some(Counted::FusedSubstituents), "fused_substituent_term"),
 ];
 
 /// The class's corrections in [`CORRECTIONS`] order.
@@ -307,6 +308,7 @@ fn class_corrections(c: &SiteClass) -> [f64; N_CORRECTIONS] {
         c.aza_pair_term,
         c.alkyl_term,
         c.ortho_alkyl_term,
+        c.fused_substituent_term,
     ]
 }
 
@@ -322,6 +324,7 @@ fn set_class_corrections(c: &mut SiteClass, v: [f64; N_CORRECTIONS]) {
         c.aza_pair_term,
         c.alkyl_term,
         c.ortho_alkyl_term,
+        c.fused_substituent_term,
     ] = v;
 }
 

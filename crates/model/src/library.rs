@@ -139,6 +139,10 @@ pub struct SiteClass {
     /// solvation of the charged form; set by calibration, 0 when not calibrated).
     #[serde(default)]
     pub ortho_alkyl_term: f64,
+    /// Coefficient on the summed sigma_m of the substituents on aromatic rings fused to the
+    /// site's ring (aromatic scales; set by calibration, 0 when not calibrated).
+    #[serde(default)]
+    pub fused_substituent_term: f64,
     /// Statistical factor (number of equivalent protons or positions the class counts);
     /// contributes -log10(factor) for acids and +log10(factor) for bases when not 1.
     #[serde(default = "one")]
@@ -256,6 +260,9 @@ pub struct Calibration {
     /// Fitted correction per ortho alkyl group.
     #[serde(default)]
     pub ortho_alkyl_term: Option<f64>,
+    /// Fitted coefficient on the fused-ring substituents' summed sigma_m.
+    #[serde(default)]
+    pub fused_substituent_term: Option<f64>,
     /// Number of measurements fitted.
     pub points: usize,
     /// Residual error of the fit (RMS, pKa units).

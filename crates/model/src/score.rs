@@ -107,6 +107,10 @@ pub enum Counted {
     /// Plain hydrocarbon alkyl groups ortho to the site (steric hindrance to solvation of
     /// the charged form, which sigma_I does not carry).
     OrthoAlkyl,
+    /// Substituents on an aromatic ring fused to the site's ring (the benzo ring of a
+    /// quinoline, the other ring of a naphthol): the count is their summed sigma_m, for a
+    /// per-class transmission coefficient across the ring fusion.
+    FusedSubstituents,
 }
 
 /// A scored site.
@@ -149,6 +153,7 @@ struct Constants<'l> {
     aza_pair_term: f64,
     alkyl_term: f64,
     ortho_alkyl_term: f64,
+    fused_substituent_term: f64,
     uncertainty: f64,
 }
 
@@ -217,6 +222,9 @@ fn constants(library: &Library, class_index: usize) -> Constants<'_> {
                 aza_pair_term: fit.aza_pair_term.unwrap_or(class.aza_pair_term),
                 alkyl_term: fit.alkyl_term.unwrap_or(class.alkyl_term),
                 ortho_alkyl_term: fit.ortho_alkyl_term.unwrap_or(class.ortho_alkyl_term),
+                fused_substituent_term: fit
+                    .fused_substituent_term
+                    .unwrap_or(class.fused_substituent_term),
                 // The class's cross-validated error, as a standard deviation (for normal errors
                 // sd = MAE * sqrt(pi / 2)); never below the residual of the fit itself.
                 uncertainty: (fit.cv_mae * 1.2533).max(fit.rmse).max(0.1),
@@ -236,6 +244,7 @@ fn constants(library: &Library, class_index: usize) -> Constants<'_> {
             aza_pair_term: class.aza_pair_term,
             alkyl_term: class.alkyl_term,
             ortho_alkyl_term: class.ortho_alkyl_term,
+            fused_substituent_term: class.fused_substituent_term,
             uncertainty: class.uncertainty,
         },
     }
@@ -530,6 +539,8 @@ fn hammett(
     // on the next atom, where their inductive and field effect outweighs resonance.
     let site_in_ring = ring.contains(&found.atom);
     let mut fused_aza: Vec<usize> = Vec::new();
+    // Atoms of the aromatic rings fused to the site's ring, outside it.
+    let mut fused_atoms: Vec<usize> = Vec::new();
     let mut ring_oxo = 0usize;
     // Summed sigma_I of the ortho substituents, and their labels for the account.
     let mut ortho_field = 0.0;
@@ -586,11 +597,14 @@ fn hammett(
                     .filter(|r| r.contains(&s) && r.contains(&atom))
                 {
                     for &a in r {
-                        if !ring.contains(&a)
-                            && is_pyridine_type_n(molecule, a)
-                            && !fused_aza.contains(&a)
-                        {
+                        if ring.contains(&a) {
+                            continue;
+                        }
+                        if is_pyridine_type_n(molecule, a) && !fused_aza.contains(&a) {
                             fused_aza.push(a);
+                        }
+                        if !fused_atoms.contains(&a) {
+                            fused_atoms.push(a);
                         }
                     }
                 }
@@ -668,6 +682,7 @@ fn hammett(
             }
         }
     }
+    fused_ring_substituents(library, matcher, ring, &fused_atoms, &avoid, k, account);
     push_counted(
         account,
         Counted::FusedAza,
@@ -770,6 +785,61 @@ fn push_coefficient_term(
         ortho_substituent: false,
         counted: Some((what, sum)),
     });
+}
+
+/// The substituents on the aromatic rings fused to the site's ring: one coefficient term on
+/// their summed sigma_m (transmission across a ring fusion is weaker than within a ring and
+/// differs by position; the class's fitted coefficient stands for it; common practice is to
+/// treat such groups as roughly meta-like).
+fn fused_ring_substituents(
+    library: &Library,
+    matcher: &mut Matcher<'_>,
+    ring: &[usize],
+    fused_atoms: &[usize],
+    avoid: &[usize],
+    k: &Constants,
+    account: &mut Account,
+) {
+    if fused_atoms.is_empty() {
+        return;
+    }
+    let molecule = matcher.molecule();
+    let mut keep_out: Vec<usize> = Vec::with_capacity(avoid.len() + fused_atoms.len());
+    keep_out.extend_from_slice(avoid);
+    keep_out.extend_from_slice(fused_atoms);
+    let mut sum = 0.0;
+    let mut groups = String::new();
+    for &f in fused_atoms {
+        for nb in molecule.neighbors(f) {
+            let x = nb.atom;
+            if molecule.bonds()[nb.bond].in_ring
+                || ring.contains(&x)
+                || fused_atoms.contains(&x)
+                || molecule.atoms()[x].element == 1
+            {
+                continue;
+            }
+            let Some(r) = recognize_with(library, matcher, x, f, &keep_out) else {
+                continue;
+            };
+            if let Some(s_m) = r.entry.sigma_m {
+                sum += s_m;
+                push_group(&mut groups, &r.entry.name);
+            }
+        }
+    }
+    if groups.is_empty() {
+        return;
+    }
+    push_coefficient_term(
+        account,
+        Counted::FusedSubstituents,
+        concat(&["substituents on the fused ring (", &groups, ")"]),
+        "fused ring (sigma_m)",
+        "their summed sigma_m",
+        sum,
+        k.fused_substituent_term,
+    );
 }
 
 /// The ortho field or resonance term over the named ortho groups, when there are any.
