@@ -278,7 +278,7 @@ impl Fit {
 }
 
 /// Number of class corrections the fit sets besides parent and rho.
-const N_CORRECTIONS: usize = 10;
+const N_CORRECTIONS: usize = 11;
 
 /// The class corrections, in column order after parent and rho: what the scorer counts
 /// for each (`None`: the ortho substituents, flagged on their terms) and the field of
@@ -294,6 +294,7 @@ const CORRECTIONS: [(Option<Counted>, &str); N_CORRECTIONS] = [
     (Some(Counted::AlkylBranch), "alkyl_term"),
     (Some(Counted::OrthoAlkyl), "ortho_alkyl_term"),
     (Some(Counted::FusedSubstituents), "fused_substituent_term"),
+    (Some(Counted::FusedConjugated), "fused_conjugated_term"),
 ];
 
 /// The class's corrections in [`CORRECTIONS`] order.
@@ -309,6 +310,7 @@ fn class_corrections(c: &SiteClass) -> [f64; N_CORRECTIONS] {
         c.alkyl_term,
         c.ortho_alkyl_term,
         c.fused_substituent_term,
+        c.fused_conjugated_term,
     ]
 }
 
@@ -325,6 +327,7 @@ fn set_class_corrections(c: &mut SiteClass, v: [f64; N_CORRECTIONS]) {
         c.alkyl_term,
         c.ortho_alkyl_term,
         c.fused_substituent_term,
+        c.fused_conjugated_term,
     ] = v;
 }
 

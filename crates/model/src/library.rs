@@ -143,6 +143,11 @@ pub struct SiteClass {
     /// site's ring (aromatic scales; set by calibration, 0 when not calibrated).
     #[serde(default)]
     pub fused_substituent_term: f64,
+    /// Coefficient on the summed sigma_p of the substituents on fused aromatic rings in
+    /// conjugation with the site (aromatic scales; set by calibration, 0 when not
+    /// calibrated).
+    #[serde(default)]
+    pub fused_conjugated_term: f64,
     /// Statistical factor (number of equivalent protons or positions the class counts);
     /// contributes -log10(factor) for acids and +log10(factor) for bases when not 1.
     #[serde(default = "one")]
@@ -263,6 +268,9 @@ pub struct Calibration {
     /// Fitted coefficient on the fused-ring substituents' summed sigma_m.
     #[serde(default)]
     pub fused_substituent_term: Option<f64>,
+    /// Fitted coefficient on the conjugated fused-ring substituents' summed sigma_p.
+    #[serde(default)]
+    pub fused_conjugated_term: Option<f64>,
     /// Number of measurements fitted.
     pub points: usize,
     /// Residual error of the fit (RMS, pKa units).

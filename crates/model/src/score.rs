@@ -108,9 +108,14 @@ pub enum Counted {
     /// the charged form, which sigma_I does not carry).
     OrthoAlkyl,
     /// Substituents on an aromatic ring fused to the site's ring (the benzo ring of a
-    /// quinoline, the other ring of a naphthol): the count is their summed sigma_m, for a
+    /// quinoline, the other ring of a naphthol) an even number of bonds from the site's
+    /// ring atom, out of conjugation with it: the count is their summed sigma_m, for a
     /// per-class transmission coefficient across the ring fusion.
     FusedSubstituents,
+    /// The same an odd number of bonds away (7-aminoquinoline, 3-aminoacridine), where a
+    /// donor or acceptor conjugates with the site as from an ortho or para position: the
+    /// count is their summed sigma_p of the class's scale (sigma_p+, sigma_p-).
+    FusedConjugated,
 }
 
 /// A scored site.
@@ -154,6 +159,7 @@ struct Constants<'l> {
     alkyl_term: f64,
     ortho_alkyl_term: f64,
     fused_substituent_term: f64,
+    fused_conjugated_term: f64,
     uncertainty: f64,
 }
 
@@ -225,6 +231,9 @@ fn constants(library: &Library, class_index: usize) -> Constants<'_> {
                 fused_substituent_term: fit
                     .fused_substituent_term
                     .unwrap_or(class.fused_substituent_term),
+                fused_conjugated_term: fit
+                    .fused_conjugated_term
+                    .unwrap_or(class.fused_conjugated_term),
                 // The class's cross-validated error, as a standard deviation (for normal errors
                 // sd = MAE * sqrt(pi / 2)); never below the residual of the fit itself.
                 uncertainty: (fit.cv_mae * 1.2533).max(fit.rmse).max(0.1),
@@ -245,6 +254,7 @@ fn constants(library: &Library, class_index: usize) -> Constants<'_> {
             alkyl_term: class.alkyl_term,
             ortho_alkyl_term: class.ortho_alkyl_term,
             fused_substituent_term: class.fused_substituent_term,
+            fused_conjugated_term: class.fused_conjugated_term,
             uncertainty: class.uncertainty,
         },
     }
@@ -682,7 +692,15 @@ fn hammett(
             }
         }
     }
-    fused_ring_substituents(library, matcher, ring, &fused_atoms, &avoid, k, account);
+    fused_ring_substituents(
+        library,
+        matcher,
+        (ring, anchor, class.scale),
+        &fused_atoms,
+        &avoid,
+        k,
+        account,
+    );
     push_counted(
         account,
         Counted::FusedAza,
@@ -787,14 +805,18 @@ fn push_coefficient_term(
     });
 }
 
-/// The substituents on the aromatic rings fused to the site's ring: one coefficient term on
-/// their summed sigma_m (transmission across a ring fusion is weaker than within a ring and
-/// differs by position; the class's fitted coefficient stands for it; common practice is to
-/// treat such groups as roughly meta-like).
+/// The substituents on the aromatic rings fused to the site's ring, in two coefficient
+/// terms: those an even number of bonds from the site's ring atom on their summed sigma_m,
+/// those an odd number away (in conjugation, as from ortho or para) on their summed sigma_p
+/// of the class's scale. Transmission across a ring fusion is weaker than within a ring and
+/// differs by position; each class's fitted coefficients stand for it (common practice:
+/// conjugated positions of naphthalenes and quinolines take sigma_p-type constants, the
+/// others sigma_m-type).
+#[allow(clippy::too_many_arguments)]
 fn fused_ring_substituents(
     library: &Library,
     matcher: &mut Matcher<'_>,
-    ring: &[usize],
+    (ring, anchor, scale): (&[usize], usize, Scale),
     fused_atoms: &[usize],
     avoid: &[usize],
     k: &Constants,
@@ -807,9 +829,26 @@ fn fused_ring_substituents(
     let mut keep_out: Vec<usize> = Vec::with_capacity(avoid.len() + fused_atoms.len());
     keep_out.extend_from_slice(avoid);
     keep_out.extend_from_slice(fused_atoms);
-    let mut sum = 0.0;
-    let mut groups = String::new();
+    // Bonds from the anchor through the site's ring and the fused rings.
+    let mut dist: Vec<(usize, usize)> = vec![(anchor, 0)];
+    let mut head = 0;
+    while let Some(&(a, d)) = dist.get(head) {
+        head += 1;
+        for nb in molecule.neighbors(a) {
+            let b = nb.atom;
+            if (ring.contains(&b) || fused_atoms.contains(&b))
+                && !dist.iter().any(|&(x, _)| x == b)
+            {
+                dist.push((b, d + 1));
+            }
+        }
+    }
+    let mut sum = [0.0; 2];
+    let mut groups = [String::new(), String::new()];
     for &f in fused_atoms {
+        let Some(&(_, d)) = dist.iter().find(|&&(x, _)| x == f) else {
+            continue;
+        };
         for nb in molecule.neighbors(f) {
             let x = nb.atom;
             if molecule.bonds()[nb.bond].in_ring
@@ -822,24 +861,47 @@ fn fused_ring_substituents(
             let Some(r) = recognize_with(library, matcher, x, f, &keep_out) else {
                 continue;
             };
-            if let Some(s_m) = r.entry.sigma_m {
-                sum += s_m;
-                push_group(&mut groups, &r.entry.name);
+            let (i, pos) = if d % 2 == 1 {
+                (1, Position::Para)
+            } else {
+                (0, Position::Meta)
+            };
+            if let Some((sigma, _)) = hammett_sigma(r.entry, pos, scale) {
+                sum[i] += sigma;
+                push_group(&mut groups[i], &r.entry.name);
             }
         }
     }
-    if groups.is_empty() {
-        return;
+    let parts = [
+        (
+            Counted::FusedSubstituents,
+            "substituents on the fused ring (",
+            "fused ring, out of conjugation (sigma_m)",
+            "their summed sigma_m",
+            k.fused_substituent_term,
+        ),
+        (
+            Counted::FusedConjugated,
+            "conjugated substituents on the fused ring (",
+            "fused ring, in conjugation (sigma_p)",
+            "their summed sigma_p",
+            k.fused_conjugated_term,
+        ),
+    ];
+    for (i, (what, label, position, on, per)) in parts.into_iter().enumerate() {
+        if groups[i].is_empty() {
+            continue;
+        }
+        push_coefficient_term(
+            account,
+            what,
+            concat(&[label, &groups[i], ")"]),
+            position,
+            on,
+            sum[i],
+            per,
+        );
     }
-    push_coefficient_term(
-        account,
-        Counted::FusedSubstituents,
-        concat(&["substituents on the fused ring (", &groups, ")"]),
-        "fused ring (sigma_m)",
-        "their summed sigma_m",
-        sum,
-        k.fused_substituent_term,
-    );
 }
 
 /// The ortho field or resonance term over the named ortho groups, when there are any.
