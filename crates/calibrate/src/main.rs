@@ -278,7 +278,7 @@ impl Fit {
 }
 
 /// Number of class corrections the fit sets besides parent and rho.
-const N_CORRECTIONS: usize = 11;
+const N_CORRECTIONS: usize = 12;
 
 /// The class corrections, in column order after parent and rho: what the scorer counts
 /// for each (`None`: the ortho substituents, flagged on their terms) and the field of
@@ -295,6 +295,7 @@ const CORRECTIONS: [(Option<Counted>, &str); N_CORRECTIONS] = [
     (Some(Counted::OrthoAlkyl), "ortho_alkyl_term"),
     (Some(Counted::FusedSubstituents), "fused_substituent_term"),
     (Some(Counted::FusedConjugated), "fused_conjugated_term"),
+    (Some(Counted::NAlkylBranch), "n_alkyl_term"),
 ];
 
 /// The class's corrections in [`CORRECTIONS`] order.
@@ -311,6 +312,7 @@ fn class_corrections(c: &SiteClass) -> [f64; N_CORRECTIONS] {
         c.ortho_alkyl_term,
         c.fused_substituent_term,
         c.fused_conjugated_term,
+        c.n_alkyl_term,
     ]
 }
 
@@ -328,6 +330,7 @@ fn set_class_corrections(c: &mut SiteClass, v: [f64; N_CORRECTIONS]) {
         c.ortho_alkyl_term,
         c.fused_substituent_term,
         c.fused_conjugated_term,
+        c.n_alkyl_term,
     ] = v;
 }
 

@@ -148,6 +148,11 @@ pub struct SiteClass {
     /// calibrated).
     #[serde(default)]
     pub fused_conjugated_term: f64,
+    /// Correction per carbon on the alpha carbons of the site's own N-alkyl groups
+    /// (aromatic scales with an exocyclic site: anilines; set by calibration, 0 when not
+    /// calibrated).
+    #[serde(default)]
+    pub n_alkyl_term: f64,
     /// Statistical factor (number of equivalent protons or positions the class counts);
     /// contributes -log10(factor) for acids and +log10(factor) for bases when not 1.
     #[serde(default = "one")]
@@ -271,6 +276,9 @@ pub struct Calibration {
     /// Fitted coefficient on the conjugated fused-ring substituents' summed sigma_p.
     #[serde(default)]
     pub fused_conjugated_term: Option<f64>,
+    /// Fitted correction per carbon on the site's N-alkyl alpha carbons.
+    #[serde(default)]
+    pub n_alkyl_term: Option<f64>,
     /// Number of measurements fitted.
     pub points: usize,
     /// Residual error of the fit (RMS, pKa units).

@@ -116,6 +116,10 @@ pub enum Counted {
     /// donor or acceptor conjugates with the site as from an ortho or para position: the
     /// count is their summed sigma_p of the class's scale (sigma_p+, sigma_p-).
     FusedConjugated,
+    /// Carbons on the alpha carbons of the N-alkyl groups of an exocyclic N site (anilines):
+    /// N-ethyl counts 1, N-isopropyl 2, N-tert-butyl 3. Bulkier N-alkyls twist the lone pair
+    /// out of conjugation with the ring (N,N-dimethylaniline 5.07, N,N-diethylaniline 6.56).
+    NAlkylBranch,
 }
 
 /// A scored site.
@@ -160,6 +164,7 @@ struct Constants<'l> {
     ortho_alkyl_term: f64,
     fused_substituent_term: f64,
     fused_conjugated_term: f64,
+    n_alkyl_term: f64,
     uncertainty: f64,
 }
 
@@ -234,6 +239,7 @@ fn constants(library: &Library, class_index: usize) -> Constants<'_> {
                 fused_conjugated_term: fit
                     .fused_conjugated_term
                     .unwrap_or(class.fused_conjugated_term),
+                n_alkyl_term: fit.n_alkyl_term.unwrap_or(class.n_alkyl_term),
                 // The class's cross-validated error, as a standard deviation (for normal errors
                 // sd = MAE * sqrt(pi / 2)); never below the residual of the fit itself.
                 uncertainty: (fit.cv_mae * 1.2533).max(fit.rmse).max(0.1),
@@ -255,6 +261,7 @@ fn constants(library: &Library, class_index: usize) -> Constants<'_> {
             ortho_alkyl_term: class.ortho_alkyl_term,
             fused_substituent_term: class.fused_substituent_term,
             fused_conjugated_term: class.fused_conjugated_term,
+            n_alkyl_term: class.n_alkyl_term,
             uncertainty: class.uncertainty,
         },
     }
@@ -701,6 +708,29 @@ fn hammett(
         k,
         account,
     );
+    if !site_in_ring {
+        // The site's own alkyl groups (an N-ethyl on an aniline N): the carbons on their
+        // alpha carbons.
+        let branches: usize = molecule
+            .neighbors(found.atom)
+            .iter()
+            .filter(|n| n.atom != anchor && is_plain_carbon(molecule, n.atom))
+            .map(|n| {
+                molecule
+                    .neighbors(n.atom)
+                    .iter()
+                    .filter(|m| m.atom != found.atom && molecule.atoms()[m.atom].element == 6)
+                    .count()
+            })
+            .sum();
+        push_counted(
+            account,
+            Counted::NAlkylBranch,
+            branches,
+            k.n_alkyl_term,
+            "carbon on the site's N-alkyl alpha carbons",
+        );
+    }
     push_counted(
         account,
         Counted::FusedAza,
