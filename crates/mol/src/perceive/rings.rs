@@ -209,10 +209,13 @@ fn shortest_path_into(
     touched.clear();
     touched.push(from);
     prev[from] = from;
+    // A list read from the front serves as the queue: nothing is ever taken off it.
     queue.clear();
-    queue.push_back(from);
+    queue.push(from);
+    let mut head = 0;
     let mut found = false;
-    'search: while let Some(v) = queue.pop_front() {
+    'search: while let Some(&v) = queue.get(head) {
+        head += 1;
         for nb in &m.neighbors[v] {
             if nb.bond == skip || !ring_bond[nb.bond] || prev[nb.atom] != usize::MAX {
                 continue;
@@ -223,7 +226,7 @@ fn shortest_path_into(
                 found = true;
                 break 'search;
             }
-            queue.push_back(nb.atom);
+            queue.push(nb.atom);
         }
     }
     if found {
@@ -245,7 +248,7 @@ fn shortest_path_into(
 /// The breadth-first search's buffers, borrowed from [`Scratch`].
 struct Search<'a> {
     prev: &'a mut [usize],
-    queue: &'a mut VecDeque<usize>,
+    queue: &'a mut Vec<usize>,
     touched: &'a mut Vec<usize>,
 }
 
@@ -285,7 +288,7 @@ fn path_to_root(parent: &[usize], mut v: usize) -> Vec<usize> {
 struct Scratch {
     prev: Vec<usize>,
     column: Vec<usize>,
-    queue: VecDeque<usize>,
+    queue: Vec<usize>,
     touched: Vec<usize>,
     /// Ring bonds, and the depth-first search that finds them.
     ring_bond: Vec<bool>,
