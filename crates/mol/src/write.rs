@@ -100,6 +100,10 @@ impl<'a> SmilesWriter<'a> {
         let mut out = String::with_capacity(m.input.len() + 16);
         let mut lowers = vec![false; m.components.len()];
         let mut places = vec![(0, 0); m.atoms.len()];
+        // Per atom, whether it is written without brackets, where the case test of its
+        // component worked that out already (every aromatic atom of a component written
+        // lower case).
+        let mut organic = vec![false; m.atoms.len()];
         let mut lower = false;
         for &op in &self.ops {
             match op {
@@ -107,12 +111,13 @@ impl<'a> SmilesWriter<'a> {
                     if k > 0 {
                         out.push('.');
                     }
-                    lower = aromatic_writable(&v, &m.components[k]);
+                    lower = aromatic_writable_noting(&v, &m.components[k], &mut organic);
                     lowers[k] = lower;
                 }
                 Op::Atom(i) => {
                     let from = out.len();
-                    atom_text(&v, i, lower, &mut out);
+                    let known = (lower && m.atoms[i].aromatic).then(|| organic[i]);
+                    atom_text_known(&v, i, lower, known, &mut out);
                     places[i] = (from, out.len());
                 }
                 Op::Bond(b) => out.push_str(bond_text(m, b, lower)),
@@ -201,6 +206,20 @@ impl View<'_> {
 /// infers the same hydrogens and the same Kekulé needs; if not it is written in Kekulé
 /// form, which the aromaticity model perceives the same way.
 fn aromatic_writable(v: &View, component: &[usize]) -> bool {
+    aromatic_writable_with(v, component, |_, _| {})
+}
+
+/// [`aromatic_writable`], noting in `organic` for each aromatic atom it looks at whether
+/// it is written without brackets in lower case ([`organic_form`]).
+fn aromatic_writable_noting(v: &View, component: &[usize], organic: &mut [bool]) -> bool {
+    aromatic_writable_with(v, component, |i, o| organic[i] = o)
+}
+
+fn aromatic_writable_with(
+    v: &View,
+    component: &[usize],
+    mut note: impl FnMut(usize, bool),
+) -> bool {
     let m = v.m;
     component.iter().all(|&i| {
         let a = &m.atoms[i];
@@ -213,7 +232,9 @@ fn aromatic_writable(v: &View, component: &[usize]) -> bool {
         let has_double = m.neighbors[i]
             .iter()
             .any(|n| m.bonds[n.bond].aromatic && m.bonds[n.bond].order == 2);
-        if organic_form(v, i, true) {
+        let organic = organic_form(v, i, true);
+        note(i, organic);
+        if organic {
             return true;
         }
         // In brackets the hydrogens are given; the free valence must still call for the
@@ -315,9 +336,14 @@ fn push_symbol(out: &mut String, element: u8, aromatic: bool) {
 }
 
 fn atom_text(v: &View, i: usize, lower: bool, out: &mut String) {
+    atom_text_known(v, i, lower, None, out);
+}
+
+/// [`atom_text`], with [`organic_form`] given where it is known already.
+fn atom_text_known(v: &View, i: usize, lower: bool, organic: Option<bool>, out: &mut String) {
     let a = &v.m.atoms[i];
     let aromatic = lower && a.aromatic;
-    if organic_form(v, i, lower) {
+    if organic.unwrap_or_else(|| organic_form(v, i, lower)) {
         push_symbol(out, a.element, aromatic);
         return;
     }
