@@ -67,7 +67,10 @@ fn perceive_rings_with(m: &mut Molecule, s: &mut Scratch) {
                 if !ring_bond[nb.bond] {
                     continue;
                 }
-                system_bonds.push(nb.bond);
+                // Each ring bond is met from both ends; kept from its lower one.
+                if a < nb.atom {
+                    system_bonds.push(nb.bond);
+                }
                 if system[nb.atom] == usize::MAX {
                     system[nb.atom] = id;
                     system_atoms.push(nb.atom);
@@ -75,17 +78,7 @@ fn perceive_rings_with(m: &mut Molecule, s: &mut Scratch) {
                 }
             }
         }
-        // Each ring bond was met from both ends.
-        let bonds = &mut system_bonds[bonds_from..];
-        bonds.sort_unstable();
-        let mut kept = 0;
-        for k in 0..bonds.len() {
-            if k == 0 || bonds[k] != bonds[kept - 1] {
-                bonds[kept] = bonds[k];
-                kept += 1;
-            }
-        }
-        system_bonds.truncate(bonds_from + kept);
+        system_bonds[bonds_from..].sort_unstable();
         systems.push((
             atoms_from,
             system_atoms.len(),
