@@ -564,9 +564,20 @@ fn validate(
             )));
         }
         seen.insert(&class.id, i);
-        let pattern = Pattern::parse(&class.pattern).map_err(|e| {
-            LibraryError::new(format!("{at}: pattern does not compile: {}", render(&e)))
-        })?;
+        // Compiled through the process-wide store, where the site index finds it again
+        // (compiling each class pattern twice was a good part of loading the library);
+        // only a pattern that does not compile is parsed again, for its error.
+        let pattern = match intern(&class.pattern) {
+            Some(p) => p,
+            None => {
+                return Err(match Pattern::parse(&class.pattern) {
+                    Err(e) => {
+                        LibraryError::new(format!("{at}: pattern does not compile: {}", render(&e)))
+                    }
+                    Ok(_) => LibraryError::new(format!("{at}: pattern does not compile")),
+                })
+            }
+        };
         let Some(site) = pattern.mapped(1) else {
             return Err(LibraryError::new(format!(
                 "{at}: pattern `{}` marks no site atom (atom map :1)",
