@@ -657,10 +657,14 @@ fn validate(
             )));
         }
         seen.insert(&entry.id, i);
-        if !entry.pattern.is_empty() {
-            Pattern::parse(&entry.pattern).map_err(|e| {
-                LibraryError::new(format!("{at}: pattern does not compile: {}", render(&e)))
-            })?;
+        // Through the store the substituent index reads, as for classes above.
+        if !entry.pattern.is_empty() && intern(&entry.pattern).is_none() {
+            if let Err(e) = Pattern::parse(&entry.pattern) {
+                return Err(LibraryError::new(format!(
+                    "{at}: pattern does not compile: {}",
+                    render(&e)
+                )));
+            }
         }
     }
     for fit in &library.calibration {
@@ -711,7 +715,7 @@ fn render(e: &pattern::PatternError) -> String {
 static INTERNED: Lazy<RwLock<HashMap<String, Option<&'static Pattern>>>> =
     Lazy::new(|| RwLock::new(HashMap::new()));
 
-fn intern(text: &str) -> Option<&'static Pattern> {
+pub(crate) fn intern(text: &str) -> Option<&'static Pattern> {
     {
         let map = INTERNED.read().unwrap_or_else(|e| e.into_inner());
         if let Some(p) = map.get(text) {
