@@ -594,9 +594,20 @@ fn validate(
             )));
         }
         seen.insert(&class.id, i);
-        let pattern = Pattern::parse(&class.pattern).map_err(|e| {
-            LibraryError::new(format!("{at}: pattern does not compile: {}", render(&e)))
-        })?;
+        // Compiled through the process-wide store, where the site index finds it again
+        // (compiling each class pattern twice was a good part of loading the library);
+        // only a pattern that does not compile is parsed again, for its error.
+        let pattern = match intern(&class.pattern) {
+            Some(p) => p,
+            None => {
+                return Err(match Pattern::parse(&class.pattern) {
+                    Err(e) => {
+                        LibraryError::new(format!("{at}: pattern does not compile: {}", render(&e)))
+                    }
+                    Ok(_) => LibraryError::new(format!("{at}: pattern does not compile")),
+                })
+            }
+        };
         let Some(site) = pattern.mapped(1) else {
             return Err(LibraryError::new(format!(
                 "{at}: pattern `{}` marks no site atom (atom map :1)",
@@ -676,10 +687,14 @@ fn validate(
             )));
         }
         seen.insert(&entry.id, i);
-        if !entry.pattern.is_empty() {
-            Pattern::parse(&entry.pattern).map_err(|e| {
-                LibraryError::new(format!("{at}: pattern does not compile: {}", render(&e)))
-            })?;
+        // Through the store the substituent index reads, as for classes above.
+        if !entry.pattern.is_empty() && intern(&entry.pattern).is_none() {
+            if let Err(e) = Pattern::parse(&entry.pattern) {
+                return Err(LibraryError::new(format!(
+                    "{at}: pattern does not compile: {}",
+                    render(&e)
+                )));
+            }
         }
     }
     for fit in &library.calibration {
@@ -730,7 +745,7 @@ fn render(e: &pattern::PatternError) -> String {
 static INTERNED: Lazy<RwLock<HashMap<String, Option<&'static Pattern>>>> =
     Lazy::new(|| RwLock::new(HashMap::new()));
 
-fn intern(text: &str) -> Option<&'static Pattern> {
+pub(crate) fn intern(text: &str) -> Option<&'static Pattern> {
     {
         let map = INTERNED.read().unwrap_or_else(|e| e.into_inner());
         if let Some(p) = map.get(text) {

@@ -201,16 +201,22 @@ const QUICK_DEGREE: usize = 4;
 /// Whether the site atoms are pairwise apart within [`QUICK_ROUNDS`] refinement rounds (of
 /// the refinement `mol::symmetry_classes` runs). `false` when they are not, or when the
 /// molecule is beyond what the quick rounds handle.
+///
+/// The rounds carry a 64-bit hash of each atom's refined key rather than a class number,
+/// so no round sorts the atoms: atoms with equal keys get equal hashes (by induction over
+/// the rounds: equal classes and equal multisets of neighbour classes and bonds hash the
+/// same), so site atoms whose hashes differ are truly apart. Two different keys may share
+/// a hash; then the sites look alike here and the full symmetry classes decide, which
+/// costs time but never changes the groups.
 fn quick_groups_apart(molecule: &Molecule, sites: &[FoundSite]) -> bool {
     let atoms = molecule.atoms();
     let n = atoms.len();
-    // Class numbers and bond kinds packed into one integer per atom below.
-    if n >= 1 << 16 || (0..n).any(|i| molecule.degree(i) > QUICK_DEGREE) {
+    if (0..n).any(|i| molecule.degree(i) > QUICK_DEGREE) {
         return false;
     }
-    // The starting invariant, packed so that integer order is tuple order: element,
-    // isotope, charge, degree, hydrogens (at most 255 in counts plus one per neighbour),
-    // aromaticity, ring membership.
+    // The starting invariant, packed into one integer: element, isotope, charge, degree,
+    // hydrogens (at most 255 in counts plus one per neighbour), aromaticity, ring
+    // membership.
     let explicit_h = atoms.iter().any(|a| a.element == 1);
     let invariant = |atom: usize| -> u64 {
         let a = &atoms[atom];
@@ -227,57 +233,70 @@ fn quick_groups_apart(molecule: &Molecule, sites: &[FoundSite]) -> bool {
             | (a.aromatic as u64) << 1
             | (a.ring_count > 0) as u64
     };
-    if apart(sites.iter().map(|s| invariant(s.atom)).collect()) {
+    if apart(sites.iter().map(|s| invariant(s.atom))) {
         return true;
     }
-    let mut keyed: Vec<(u128, u32)> = (0..n).map(|i| (invariant(i) as u128, i as u32)).collect();
-    let mut classes = vec![0u32; n];
-    ranks(&mut keyed, &mut classes);
+    let mut hashes: Vec<u64> = (0..n).map(|i| mix(invariant(i))).collect();
+    let mut next = vec![0u64; n];
     // Bond label per neighbour: order (4 for aromatic) and aromaticity, as the refinement
     // compares them.
-    let label = |b: &mol::Bond| -> u32 {
-        let order = if b.aromatic { 4 } else { b.order as u32 };
-        order << 1 | b.aromatic as u32
+    let label = |b: &mol::Bond| -> u64 {
+        let order = if b.aromatic { 4 } else { b.order as u64 };
+        order << 1 | b.aromatic as u64
     };
     for _ in 0..QUICK_ROUNDS {
-        for (i, slot) in keyed.iter_mut().enumerate() {
-            // Each neighbour as (class, bond label), 16 + 9 bits, sorted; the atom's own
-            // class leads. An atom's class fixes its degree, so the empty entries of
-            // atoms with fewer neighbours never meet an entry that decides anything.
-            let mut entries = [0u32; QUICK_DEGREE];
+        for (i, slot) in next.iter_mut().enumerate() {
+            // Each neighbour as one word from its hash and the bond, sorted; the atom's own
+            // hash leads. Atoms with equal keys have equal degrees, so the empty entries
+            // of atoms with fewer neighbours never meet an entry that decides anything.
+            let mut entries = [0u64; QUICK_DEGREE];
             for (e, nb) in entries.iter_mut().zip(molecule.neighbors(i)) {
-                *e = classes[nb.atom] << 9 | label(&molecule.bonds()[nb.bond]);
+                *e = mix(hashes[nb.atom] ^ label(&molecule.bonds()[nb.bond]));
             }
             entries.sort_unstable();
-            let packed = entries
+            *slot = entries
                 .iter()
-                .fold(classes[i] as u128, |k, &e| k << 25 | e as u128);
-            *slot = (packed, i as u32);
+                .fold(mix(hashes[i]), |h, &e| mix(h.rotate_left(23) ^ e));
         }
-        ranks(&mut keyed, &mut classes);
-        if apart(sites.iter().map(|s| classes[s.atom]).collect()) {
+        std::mem::swap(&mut hashes, &mut next);
+        if apart(sites.iter().map(|s| hashes[s.atom])) {
             return true;
         }
     }
     false
 }
 
-/// Whether no two keys are equal.
-fn apart<T: Ord>(mut keys: Vec<T>) -> bool {
-    keys.sort_unstable();
-    keys.windows(2).all(|w| w[0] != w[1])
+/// A 64-bit mixing function (the finalizer of SplitMix64, common practice): nearby inputs
+/// give unrelated outputs, so different keys rarely share a hash.
+fn mix(x: u64) -> u64 {
+    let mut z = x.wrapping_add(0x9e37_79b9_7f4a_7c15);
+    z = (z ^ (z >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
+    z = (z ^ (z >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
+    z ^ (z >> 31)
 }
 
-/// Class numbers by rank of key into `classes`: atoms with equal keys share one.
-fn ranks(keyed: &mut [(u128, u32)], classes: &mut [u32]) {
-    keyed.sort_unstable();
-    let mut class = 0u32;
-    for k in 0..keyed.len() {
-        if k > 0 && keyed[k].0 != keyed[k - 1].0 {
-            class += 1;
+/// Whether no two keys are equal.
+fn apart(keys: impl Iterator<Item = u64>) -> bool {
+    // Sites per molecule are few: a small list compared pairwise needs no allocation.
+    let mut few = [0u64; 16];
+    let mut len = 0;
+    let mut many: Vec<u64> = Vec::new();
+    for k in keys {
+        if len < few.len() {
+            if few[..len].contains(&k) {
+                return false;
+            }
+            few[len] = k;
+            len += 1;
+        } else {
+            if many.is_empty() {
+                many.extend_from_slice(&few);
+            }
+            many.push(k);
         }
-        classes[keyed[k].1 as usize] = class;
     }
+    many.sort_unstable();
+    many.windows(2).all(|w| w[0] != w[1])
 }
 
 /// Groups numbered from 0 in order of first appearance, sites on atoms of one symmetry

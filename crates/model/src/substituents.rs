@@ -63,11 +63,12 @@ static BUILTIN_IDS: Lazy<HashMap<&'static str, usize, BuildFx>> = Lazy::new(|| {
 /// there is no sensible nearest type (an unusual element, an anionic nitrogen or sulfur) or
 /// the indices are out of range.
 ///
-/// Patterns are compiled once per library (once per process for the built-in one, once per
-/// thread for others, keyed by their pattern texts and ids so that a user library or an
-/// edited one is compiled afresh) and indexed by the element and aromaticity their first
-/// atom can have; a pattern that does not compile is
-/// skipped here and reported by the library's own validation.
+/// Each distinct pattern text is compiled once per process (the library's checks and this
+/// index share the compiled patterns); the index is built once per library (once per
+/// process for the built-in one, once per thread for others, keyed by their pattern texts
+/// and ids so that a user library or an edited one is indexed afresh) by the element and
+/// aromaticity their first atom can have; a pattern that does not compile is skipped here
+/// and reported by the library's own validation.
 pub fn recognize<'a>(
     library: &'a Library,
     molecule: &Molecule,
@@ -308,7 +309,7 @@ fn carries_oxo(molecule: &Molecule, atom: usize, except: usize) -> bool {
 /// (`None` where a pattern does not compile: the loader reports those; recognition skips
 /// them) and, per (element, aromatic) of the first atom, the entries that can start there.
 struct SubstituentIndex {
-    compiled: Vec<Option<Pattern>>,
+    compiled: Vec<Option<&'static Pattern>>,
     /// Entry indices (ring members and non-compiling patterns left out), in entry order,
     /// at `element * 2 + aromatic`.
     by_first_atom: Vec<Vec<usize>>,
@@ -321,9 +322,10 @@ const INDEXED_ELEMENTS: usize = 128;
 
 impl SubstituentIndex {
     fn build(entries: &[SubstituentEntry]) -> SubstituentIndex {
-        let compiled: Vec<Option<Pattern>> = entries
+        // From the process-wide store, where the library's checks compiled them already.
+        let compiled: Vec<Option<&'static Pattern>> = entries
             .iter()
-            .map(|e| Pattern::parse(&e.pattern).ok())
+            .map(|e| crate::library::intern(&e.pattern))
             .collect();
         let all: Vec<usize> = (0..entries.len())
             .filter(|&i| !is_ring_member(&entries[i]) && compiled[i].is_some())

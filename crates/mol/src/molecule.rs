@@ -69,27 +69,41 @@ pub struct Neighbor {
     pub bond: usize,
 }
 
-/// Neighbour lists of all atoms, in bond order. One list per atom (rather than one flat
-/// list with offsets) because the pattern matcher reads them in its innermost loops, where
-/// a flat list's extra bounds checks cost more than the allocations they save; each list
-/// is allocated once at its final size.
+/// Neighbour lists of all atoms, in bond order, back to back in one list: atom `i`'s are
+/// `list[spans[i].0..spans[i].1]`. Two allocations per molecule (and per copy of one)
+/// instead of one per atom; the span of an atom is one load, and the slice is taken
+/// without a second bounds check (the spans are built here and always lie in the list), so
+/// the pattern matcher's innermost loops pay no more than with one list per atom.
 #[derive(Clone, Debug, Default, PartialEq)]
-pub(crate) struct Adjacency(Vec<Vec<Neighbor>>);
+pub(crate) struct Adjacency {
+    spans: Vec<(u32, u32)>,
+    list: Vec<Neighbor>,
+}
 
 impl Adjacency {
     /// The lists of `atoms` atoms joined by `bonds` (`(a, b)` per bond, in bond order).
     pub(crate) fn build(atoms: usize, bonds: impl Iterator<Item = (usize, usize)> + Clone) -> Self {
-        let mut degree = vec![0usize; atoms];
+        let mut spans = vec![(0u32, 0u32); atoms];
+        let mut count = 0u32;
         for (a, b) in bonds.clone() {
-            degree[a] += 1;
-            degree[b] += 1;
+            spans[a].1 += 1;
+            spans[b].1 += 1;
         }
-        let mut lists: Vec<Vec<Neighbor>> = degree.iter().map(|&d| Vec::with_capacity(d)).collect();
+        // Each span starts where the one before ends; `.1` counts up from the start as the
+        // list fills, and ends at the span's end.
+        for span in spans.iter_mut() {
+            let degree = span.1;
+            *span = (count, count);
+            count += degree;
+        }
+        let mut list = vec![Neighbor { atom: 0, bond: 0 }; count as usize];
         for (i, (a, b)) in bonds.enumerate() {
-            lists[a].push(Neighbor { atom: b, bond: i });
-            lists[b].push(Neighbor { atom: a, bond: i });
+            list[spans[a].1 as usize] = Neighbor { atom: b, bond: i };
+            spans[a].1 += 1;
+            list[spans[b].1 as usize] = Neighbor { atom: a, bond: i };
+            spans[b].1 += 1;
         }
-        Adjacency(lists)
+        Adjacency { spans, list }
     }
 }
 
@@ -97,7 +111,11 @@ impl std::ops::Index<usize> for Adjacency {
     type Output = [Neighbor];
     #[inline]
     fn index(&self, atom: usize) -> &[Neighbor] {
-        &self.0[atom]
+        let (start, end) = self.spans[atom];
+        debug_assert!(start <= end && end as usize <= self.list.len());
+        // SAFETY: `build` is the only place spans are made; each lies within `list` (the
+        // spans partition it) and `list` is never changed afterwards.
+        unsafe { self.list.get_unchecked(start as usize..end as usize) }
     }
 }
 

@@ -69,11 +69,12 @@ impl<'a> SmilesWriter<'a> {
     pub fn new(m: &'a Molecule) -> Self {
         let mut ops = Vec::with_capacity(3 * m.atoms.len() + m.components.len());
         let mut order = Vec::with_capacity(m.atoms.len());
-        let mut scratch = Scratch::new(m);
+        let mut scratch = Scratch::take(m);
         for (k, component) in m.components.iter().enumerate() {
             ops.push(Op::Component(k));
             walk_component(m, component, &mut ops, &mut order, &mut scratch);
         }
+        scratch.give_back();
         let mut w = SmilesWriter {
             m,
             ops,
@@ -99,6 +100,10 @@ impl<'a> SmilesWriter<'a> {
         let mut out = String::with_capacity(m.input.len() + 16);
         let mut lowers = vec![false; m.components.len()];
         let mut places = vec![(0, 0); m.atoms.len()];
+        // Per atom, whether it is written without brackets, where the case test of its
+        // component worked that out already (every aromatic atom of a component written
+        // lower case).
+        let mut organic = vec![false; m.atoms.len()];
         let mut lower = false;
         for &op in &self.ops {
             match op {
@@ -106,12 +111,13 @@ impl<'a> SmilesWriter<'a> {
                     if k > 0 {
                         out.push('.');
                     }
-                    lower = aromatic_writable(&v, &m.components[k]);
+                    lower = aromatic_writable_noting(&v, &m.components[k], &mut organic);
                     lowers[k] = lower;
                 }
                 Op::Atom(i) => {
                     let from = out.len();
-                    atom_text(&v, i, lower, &mut out);
+                    let known = (lower && m.atoms[i].aromatic).then(|| organic[i]);
+                    atom_text_known(&v, i, lower, known, &mut out);
                     places[i] = (from, out.len());
                 }
                 Op::Bond(b) => out.push_str(bond_text(m, b, lower)),
@@ -200,6 +206,20 @@ impl View<'_> {
 /// infers the same hydrogens and the same Kekulé needs; if not it is written in Kekulé
 /// form, which the aromaticity model perceives the same way.
 fn aromatic_writable(v: &View, component: &[usize]) -> bool {
+    aromatic_writable_with(v, component, |_, _| {})
+}
+
+/// [`aromatic_writable`], noting in `organic` for each aromatic atom it looks at whether
+/// it is written without brackets in lower case ([`organic_form`]).
+fn aromatic_writable_noting(v: &View, component: &[usize], organic: &mut [bool]) -> bool {
+    aromatic_writable_with(v, component, |i, o| organic[i] = o)
+}
+
+fn aromatic_writable_with(
+    v: &View,
+    component: &[usize],
+    mut note: impl FnMut(usize, bool),
+) -> bool {
     let m = v.m;
     component.iter().all(|&i| {
         let a = &m.atoms[i];
@@ -212,7 +232,9 @@ fn aromatic_writable(v: &View, component: &[usize]) -> bool {
         let has_double = m.neighbors[i]
             .iter()
             .any(|n| m.bonds[n.bond].aromatic && m.bonds[n.bond].order == 2);
-        if organic_form(v, i, true) {
+        let organic = organic_form(v, i, true);
+        note(i, organic);
+        if organic {
             return true;
         }
         // In brackets the hydrogens are given; the free valence must still call for the
@@ -314,9 +336,14 @@ fn push_symbol(out: &mut String, element: u8, aromatic: bool) {
 }
 
 fn atom_text(v: &View, i: usize, lower: bool, out: &mut String) {
+    atom_text_known(v, i, lower, None, out);
+}
+
+/// [`atom_text`], with [`organic_form`] given where it is known already.
+fn atom_text_known(v: &View, i: usize, lower: bool, organic: Option<bool>, out: &mut String) {
     let a = &v.m.atoms[i];
     let aromatic = lower && a.aromatic;
-    if organic_form(v, i, lower) {
+    if organic.unwrap_or_else(|| organic_form(v, i, lower)) {
         push_symbol(out, a.element, aromatic);
         return;
     }
@@ -368,8 +395,10 @@ enum Task {
     Text(&'static str),
 }
 
-/// Per-molecule arrays of the walk, allocated once for all components and left ready
-/// (`usize::MAX`, `false`, empty) for the next one.
+/// Per-molecule arrays of the walk, left ready (`usize::MAX`, `false`, empty) for the next
+/// component. Kept per thread between molecules: a record writes one molecule after
+/// another, and allocating the arrays afresh for each cost more than the walk.
+#[derive(Default)]
 struct Scratch {
     pre: Vec<usize>,
     is_closure: Vec<bool>,
@@ -387,37 +416,64 @@ struct Scratch {
     free: Vec<bool>,
     rings: Vec<usize>,
     freed: Vec<usize>,
+    /// Tree bonds as (parent, child, bond) in discovery order, and ring-closure bonds, of
+    /// the component being walked.
+    found: Vec<(usize, usize, usize)>,
+    closure_bonds: Vec<usize>,
+}
+
+thread_local! {
+    /// The arrays of the last walk on this thread.
+    static SPARE_SCRATCH: std::cell::RefCell<Option<Scratch>> =
+        const { std::cell::RefCell::new(None) };
 }
 
 impl Scratch {
-    fn new(m: &Molecule) -> Self {
+    /// The thread's arrays (or new ones), made ready for `m`. Every array is reset here,
+    /// so arrays from a walk that did not finish are as good as new ones.
+    fn take(m: &Molecule) -> Self {
+        let mut s = SPARE_SCRATCH
+            .try_with(|spare| spare.borrow_mut().take())
+            .ok()
+            .flatten()
+            .unwrap_or_default();
         let n = m.atoms.len();
         let nb = m.bonds.len();
-        let mut sorted = Vec::with_capacity(2 * nb);
-        let mut start = Vec::with_capacity(n + 1);
+        s.pre.clear();
+        s.pre.resize(n, usize::MAX);
+        s.is_closure.clear();
+        s.is_closure.resize(nb, false);
+        s.tree.clear();
+        s.tree.resize(nb, false);
+        s.digit_of.clear();
+        s.digit_of.resize(nb, usize::MAX);
+        s.sorted.clear();
+        s.start.clear();
         for v in 0..n {
-            start.push(sorted.len());
-            let from = sorted.len();
-            sorted.extend(m.neighbors[v].iter().map(|nb| (nb.atom, nb.bond)));
-            sorted[from..].sort_unstable();
+            s.start.push(s.sorted.len());
+            let from = s.sorted.len();
+            s.sorted
+                .extend(m.neighbors[v].iter().map(|nb| (nb.atom, nb.bond)));
+            let list = &mut s.sorted[from..];
+            // Most lists come in order already (bonds are numbered as written).
+            if !list.windows(2).all(|w| w[0] <= w[1]) {
+                list.sort_unstable();
+            }
         }
-        start.push(sorted.len());
-        Scratch {
-            pre: vec![usize::MAX; n],
-            is_closure: vec![false; nb],
-            tree: vec![false; nb],
-            digit_of: vec![usize::MAX; nb],
-            sorted,
-            start,
-            children: Vec::with_capacity(n),
-            child_range: vec![(0, 0); n],
-            closures: Vec::new(),
-            stack: Vec::new(),
-            tasks: Vec::new(),
-            free: Vec::new(),
-            rings: Vec::new(),
-            freed: Vec::new(),
+        s.start.push(s.sorted.len());
+        s.children.clear();
+        s.child_range.clear();
+        s.child_range.resize(n, (0, 0));
+        for c in &mut s.closures {
+            c.clear();
         }
+        s
+    }
+
+    /// Hands the arrays to the thread for the next walk.
+    fn give_back(self) {
+        // During thread teardown the slot may be gone; the arrays are then just freed.
+        let _ = SPARE_SCRATCH.try_with(|spare| *spare.borrow_mut() = Some(self));
     }
 }
 
@@ -439,8 +495,10 @@ fn walk_component(
     counter += 1;
     s.stack.clear();
     s.stack.push((root, 0));
-    let mut found: Vec<(usize, usize, usize)> = Vec::with_capacity(component.len());
-    let mut closure_bonds: Vec<usize> = Vec::new();
+    let mut found = std::mem::take(&mut s.found);
+    let mut closure_bonds = std::mem::take(&mut s.closure_bonds);
+    found.clear();
+    closure_bonds.clear();
     while let Some(&mut (at, ref mut k)) = s.stack.last_mut() {
         let list = &s.sorted[s.start[at]..s.start[at + 1]];
         if *k >= list.len() {
@@ -463,18 +521,23 @@ fn walk_component(
             closure_bonds.push(b);
         }
     }
-    // Children of each atom, in discovery order (a stable sort by parent keeps it).
+    // Children of each atom, in discovery order: counted per parent, then filled in the
+    // order found (the ranges of different parents may lie in any order).
+    for &(p, _, _) in &found {
+        s.child_range[p].1 += 1;
+    }
+    let mut next = 0;
+    for &a in component {
+        let count = s.child_range[a].1;
+        s.child_range[a] = (next, next);
+        next += count;
+    }
     s.children.clear();
-    found.sort_by_key(|&(p, _, _)| s.pre[p]);
-    let mut i = 0;
-    while i < found.len() {
-        let p = found[i].0;
-        let from = s.children.len();
-        while i < found.len() && found[i].0 == p {
-            s.children.push((found[i].1, found[i].2));
-            i += 1;
-        }
-        s.child_range[p] = (from, s.children.len());
+    s.children.resize(found.len(), (0, 0));
+    for &(p, w, b) in &found {
+        let range = &mut s.child_range[p];
+        s.children[range.1] = (w, b);
+        range.1 += 1;
     }
     // Ring-closure bonds at each of their two atoms, in the order found.
     let has_closures = !closure_bonds.is_empty();
@@ -577,6 +640,8 @@ fn walk_component(
         s.closures[x].clear();
         s.closures[y].clear();
     }
+    s.found = found;
+    s.closure_bonds = closure_bonds;
 }
 
 /// Ring numbers 1 to 9 as digits, 10 to 99 as `%nn`. SMILES has no number past 99; a

@@ -140,11 +140,61 @@ pub(crate) fn perceive_aromaticity(m: &mut Molecule) {
     if m.rings.is_empty() {
         return;
     }
-    let donors: Vec<Donor> = (0..m.atoms.len()).map(|i| donor(m, i)).collect();
+    let mut scratch = SPARE_SCRATCH
+        .try_with(|spare| spare.borrow_mut().take())
+        .ok()
+        .flatten()
+        .unwrap_or_default();
+    perceive_with(m, &mut scratch);
+    // During thread teardown the slot may be gone; the arrays are then just freed.
+    let _ = SPARE_SCRATCH.try_with(|spare| *spare.borrow_mut() = Some(scratch));
+}
+
+/// Arrays of the aromaticity perception, kept per thread between molecules (allocating
+/// them afresh for each molecule cost more than some of the counting); each is cleared
+/// and sized before use.
+#[derive(Default)]
+struct Scratch {
+    donors: Vec<Donor>,
+    rings: Vec<usize>,
+    bond_start: Vec<usize>,
+    bonds: Vec<usize>,
+    per_bond: Vec<usize>,
+    fill: Vec<usize>,
+    rings_of_bond: Vec<usize>,
+    fused_start: Vec<usize>,
+    fused: Vec<usize>,
+    aromatic_rings: Vec<bool>,
+    stamp: Vec<u32>,
+}
+
+thread_local! {
+    /// The arrays of the last aromaticity perception on this thread.
+    static SPARE_SCRATCH: std::cell::RefCell<Option<Scratch>> =
+        const { std::cell::RefCell::new(None) };
+}
+
+fn perceive_with(m: &mut Molecule, s: &mut Scratch) {
+    let Scratch {
+        donors,
+        rings,
+        bond_start,
+        bonds,
+        per_bond,
+        fill,
+        rings_of_bond,
+        fused_start,
+        fused,
+        aromatic_rings,
+        stamp,
+    } = s;
+    donors.clear();
+    donors.extend((0..m.atoms.len()).map(|i| donor(m, i)));
     // Candidate rings (index into `m.rings`), their ring bonds back to back in `bonds`.
-    let mut rings: Vec<usize> = Vec::with_capacity(m.rings.len());
-    let mut bond_start: Vec<usize> = vec![0];
-    let mut bonds: Vec<usize> = Vec::new();
+    rings.clear();
+    bond_start.clear();
+    bond_start.push(0);
+    bonds.clear();
     for (i, r) in m.rings.iter().enumerate() {
         if r.iter().any(|&a| donors[a] == Donor::No) {
             continue;
@@ -160,24 +210,27 @@ pub(crate) fn perceive_aromaticity(m: &mut Molecule) {
     let ring_bonds = |r: usize| &bonds[bond_start[r]..bond_start[r + 1]];
     // Fused: rings sharing a bond, found through the rings of each bond (counted, then
     // filled), each ring's list sorted and without repeats.
-    let mut per_bond = vec![0usize; m.bonds.len() + 1];
-    for &b in &bonds {
+    per_bond.clear();
+    per_bond.resize(m.bonds.len() + 1, 0);
+    for &b in bonds.iter() {
         per_bond[b + 1] += 1;
     }
     for b in 0..m.bonds.len() {
         per_bond[b + 1] += per_bond[b];
     }
-    let mut fill = per_bond.clone();
-    let mut rings_of_bond = vec![0usize; bonds.len()];
+    fill.clear();
+    fill.extend_from_slice(per_bond);
+    rings_of_bond.clear();
+    rings_of_bond.resize(bonds.len(), 0);
     for r in 0..k {
         for &b in ring_bonds(r) {
             rings_of_bond[fill[b]] = r;
             fill[b] += 1;
         }
     }
-    let mut fused_start: Vec<usize> = Vec::with_capacity(k + 1);
+    fused_start.clear();
     fused_start.push(0);
-    let mut fused: Vec<usize> = Vec::new();
+    fused.clear();
     for r in 0..k {
         let from = fused.len();
         for &b in ring_bonds(r) {
@@ -200,9 +253,11 @@ pub(crate) fn perceive_aromaticity(m: &mut Molecule) {
         fused_start.push(fused.len());
     }
     let fused_of = |r: usize| &fused[fused_start[r]..fused_start[r + 1]];
-    let mut aromatic_rings = vec![false; k];
+    aromatic_rings.clear();
+    aromatic_rings.resize(k, false);
     // Atoms of the combination being counted carry its stamp, so shared atoms count once.
-    let mut stamp = vec![0u32; m.atoms.len()];
+    stamp.clear();
+    stamp.resize(m.atoms.len(), 0);
     let mut current = 0u32;
     let mut count = |subset: &[usize], aromatic_rings: &mut [bool]| {
         if subset.iter().all(|&r| aromatic_rings[r]) {
@@ -225,12 +280,12 @@ pub(crate) fn perceive_aromaticity(m: &mut Molecule) {
         }
     };
     for r in 0..k {
-        count(&[r], &mut aromatic_rings);
+        count(&[r], aromatic_rings);
     }
     if MAX_COMBINATION >= 2 {
         for r in 0..k {
             for &o in fused_of(r).iter().filter(|&&o| o > r) {
-                count(&[r, o], &mut aromatic_rings);
+                count(&[r, o], aromatic_rings);
             }
         }
     }
@@ -240,7 +295,7 @@ pub(crate) fn perceive_aromaticity(m: &mut Molecule) {
             let f = fused_of(r);
             for x in 0..f.len() {
                 for y in x + 1..f.len() {
-                    count(&[r, f[x], f[y]], &mut aromatic_rings);
+                    count(&[r, f[x], f[y]], aromatic_rings);
                 }
             }
         }

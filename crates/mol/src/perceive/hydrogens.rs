@@ -58,6 +58,10 @@ pub(crate) fn implicit_hydrogens(m: &mut Molecule, written: &Written) -> Vec<boo
 /// Refuses atoms whose valence (Kekulé bond orders plus hydrogens) exceeds the most their
 /// element allows at their charge.
 pub(crate) fn check_valences(m: &Molecule) -> Result<(), Error> {
+    // Atoms without a valence rule (metals): most molecules have none, and then no
+    // neighbour needs looking at below.
+    let metal = |e: u8| e != 0 && allowed_valences(e, 0).is_none();
+    let any_metal = m.atoms.iter().any(|a| metal(a.element));
     for (i, a) in m.atoms.iter().enumerate() {
         let Some(allowed) = allowed_valences(a.element, a.charge) else {
             continue;
@@ -65,10 +69,11 @@ pub(crate) fn check_valences(m: &Molecule) -> Result<(), Error> {
         let Some(&max) = allowed.last() else { continue };
         // Bonds to metals are often coordinative (ferrocene, Grignards); no octet count
         // covers them, so such atoms are not checked.
-        if m.neighbors[i].iter().any(|n| {
-            let e = m.atoms[n.atom].element;
-            e != 0 && allowed_valences(e, 0).is_none()
-        }) {
+        if any_metal
+            && m.neighbors[i]
+                .iter()
+                .any(|n| metal(m.atoms[n.atom].element))
+        {
             continue;
         }
         let valence = bond_sum(m, i) + a.hydrogens as u32;

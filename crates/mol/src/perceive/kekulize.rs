@@ -1,6 +1,6 @@
 //! Kekulé bond orders for atoms written aromatic.
 
-use super::matching::{maximum_matching, Lists};
+use super::matching::{maximum_matching_in, Arrays, Lists};
 use crate::molecule::Molecule;
 use crate::{Error, ErrorKind};
 
@@ -10,11 +10,46 @@ use crate::{Error, ErrorKind};
 /// Fails with [`ErrorKind::Kekulize`] when no such assignment exists (e.g. `c1cccc1`, or
 /// pyrrole written without its `[nH]`).
 pub(crate) fn kekulize(m: &mut Molecule, needs_pi: &[bool]) -> Result<(), Error> {
-    let needy: Vec<usize> = (0..m.atoms.len()).filter(|&i| needs_pi[i]).collect();
-    if needy.is_empty() {
+    if !needs_pi.contains(&true) {
         return Ok(());
     }
-    let mut index = vec![usize::MAX; m.atoms.len()];
+    let mut scratch = SPARE_SCRATCH
+        .try_with(|spare| spare.borrow_mut().take())
+        .ok()
+        .flatten()
+        .unwrap_or_default();
+    let result = kekulize_with(m, needs_pi, &mut scratch);
+    // During thread teardown the slot may be gone; the arrays are then just freed.
+    let _ = SPARE_SCRATCH.try_with(|spare| *spare.borrow_mut() = Some(scratch));
+    result
+}
+
+/// Arrays of the Kekulé assignment, kept per thread between molecules (allocating them
+/// afresh for each molecule cost a good part of the work); each is cleared and sized
+/// before use.
+#[derive(Default)]
+struct Scratch {
+    needy: Vec<usize>,
+    index: Vec<usize>,
+    start: Vec<usize>,
+    fill: Vec<usize>,
+    items: Vec<usize>,
+    matching: Arrays,
+}
+
+thread_local! {
+    /// The arrays of the last Kekulé assignment on this thread.
+    static SPARE_SCRATCH: std::cell::RefCell<Option<Scratch>> =
+        const { std::cell::RefCell::new(None) };
+}
+
+fn kekulize_with(m: &mut Molecule, needs_pi: &[bool], s: &mut Scratch) -> Result<(), Error> {
+    let needy = &mut s.needy;
+    needy.clear();
+    needy.extend((0..m.atoms.len()).filter(|&i| needs_pi[i]));
+    let index = &mut s.index;
+    index.clear();
+    index.resize(m.atoms.len(), usize::MAX);
     for (k, &a) in needy.iter().enumerate() {
         index[a] = k;
     }
@@ -26,7 +61,9 @@ pub(crate) fn kekulize(m: &mut Molecule, needs_pi: &[bool]) -> Result<(), Error>
             .filter(|b| b.written_aromatic && needs_pi[b.a] && needs_pi[b.b])
             .map(|b| (index[b.a], index[b.b]))
     };
-    let mut start = vec![0usize; needy.len() + 1];
+    let mut start = std::mem::take(&mut s.start);
+    start.clear();
+    start.resize(needy.len() + 1, 0);
     for (a, b) in edges() {
         start[a + 1] += 1;
         start[b + 1] += 1;
@@ -34,8 +71,12 @@ pub(crate) fn kekulize(m: &mut Molecule, needs_pi: &[bool]) -> Result<(), Error>
     for v in 0..needy.len() {
         start[v + 1] += start[v];
     }
-    let mut fill = start.clone();
-    let mut items = vec![0usize; start[needy.len()]];
+    let fill = &mut s.fill;
+    fill.clear();
+    fill.extend_from_slice(&start);
+    let mut items = std::mem::take(&mut s.items);
+    items.clear();
+    items.resize(start[needy.len()], 0);
     for (a, b) in edges() {
         items[fill[a]] = b;
         fill[a] += 1;
@@ -43,8 +84,24 @@ pub(crate) fn kekulize(m: &mut Molecule, needs_pi: &[bool]) -> Result<(), Error>
         fill[b] += 1;
     }
     let adj = Lists { start, items };
-    let mate = maximum_matching(&adj);
-    if let Some(k) = mate.iter().position(Option::is_none) {
+    let result = assign(m, needs_pi, needy, index, &adj, &mut s.matching);
+    s.start = adj.start;
+    s.items = adj.items;
+    result
+}
+
+/// The double bonds from a maximum matching of the needy atoms, or the error when some
+/// atom is left without one.
+fn assign(
+    m: &mut Molecule,
+    needs_pi: &[bool],
+    needy: &[usize],
+    index: &[usize],
+    adj: &Lists,
+    arrays: &mut Arrays,
+) -> Result<(), Error> {
+    let mate = maximum_matching_in(adj, arrays);
+    if let Some(k) = mate.iter().position(|&w| w == usize::MAX) {
         // No single atom is to blame: the carets cover the aromatic system it sits in.
         let mut seen = vec![false; needy.len()];
         let mut stack = vec![k];
@@ -66,7 +123,7 @@ pub(crate) fn kekulize(m: &mut Molecule, needs_pi: &[bool]) -> Result<(), Error>
     for b in &mut m.bonds {
         if b.written_aromatic && needs_pi[b.a] && needs_pi[b.b] {
             let (ka, kb) = (index[b.a], index[b.b]);
-            if mate[ka] == Some(kb) {
+            if mate[ka] == kb {
                 b.order = 2;
             }
         }

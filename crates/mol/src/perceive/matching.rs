@@ -44,16 +44,57 @@ impl std::ops::Index<usize> for Lists {
 ///
 /// J. Edmonds, "Paths, trees, and flowers", Canad. J. Math. 1965, 17, 449-467 (blossom
 /// algorithm), in its O(V^3) breadth-first form.
+#[cfg(test)]
 pub(crate) fn maximum_matching(adj: &Lists) -> Vec<Option<usize>> {
+    let mut arrays = Arrays::default();
+    maximum_matching_in(adj, &mut arrays)
+        .iter()
+        .map(|&m| if m == NONE { None } else { Some(m) })
+        .collect()
+}
+
+/// The arrays of the search, kept by the caller between calls.
+#[derive(Default)]
+pub(crate) struct Arrays {
+    mate: Vec<usize>,
+    parent: Vec<usize>,
+    base: Vec<usize>,
+    used: Vec<bool>,
+    blossom: Vec<bool>,
+    queue: Vec<usize>,
+}
+
+/// As [`maximum_matching`], in `arrays`: `mate[v]` is the vertex matched to `v`, or
+/// `usize::MAX`.
+pub(crate) fn maximum_matching_in<'a>(adj: &Lists, arrays: &'a mut Arrays) -> &'a [usize] {
     let n = adj.len();
+    let Arrays {
+        mate,
+        parent,
+        base,
+        used,
+        blossom,
+        queue,
+    } = arrays;
+    mate.clear();
+    mate.resize(n, NONE);
+    parent.clear();
+    parent.resize(n, NONE);
+    base.clear();
+    base.extend(0..n);
+    used.clear();
+    used.resize(n, false);
+    blossom.clear();
+    blossom.resize(n, false);
+    queue.clear();
     let mut s = Search {
         adj,
-        mate: vec![NONE; n],
-        parent: vec![NONE; n],
-        base: (0..n).collect(),
-        used: vec![false; n],
-        blossom: vec![false; n],
-        queue: Vec::new(),
+        mate,
+        parent,
+        base,
+        used,
+        blossom,
+        queue,
     };
     // A greedy start leaves few vertices for the search.
     for v in 0..n {
@@ -77,20 +118,17 @@ pub(crate) fn maximum_matching(adj: &Lists) -> Vec<Option<usize>> {
             }
         }
     }
-    s.mate
-        .iter()
-        .map(|&m| if m == NONE { None } else { Some(m) })
-        .collect()
+    &arrays.mate
 }
 
 struct Search<'a> {
     adj: &'a Lists,
-    mate: Vec<usize>,
-    parent: Vec<usize>,
-    base: Vec<usize>,
-    used: Vec<bool>,
-    blossom: Vec<bool>,
-    queue: Vec<usize>,
+    mate: &'a mut Vec<usize>,
+    parent: &'a mut Vec<usize>,
+    base: &'a mut Vec<usize>,
+    used: &'a mut Vec<bool>,
+    blossom: &'a mut Vec<bool>,
+    queue: &'a mut Vec<usize>,
 }
 
 impl Search<'_> {

@@ -19,26 +19,40 @@ const HORTON_LIMIT: usize = 300;
 /// shortest linearly independent ones (Gaussian elimination over GF(2)). The number of
 /// rings is the cyclomatic number E - V + C.
 pub(crate) fn perceive_rings(m: &mut Molecule) {
+    let mut scratch = Scratch::take(m);
+    perceive_rings_with(m, &mut scratch);
+    scratch.give_back();
+}
+
+fn perceive_rings_with(m: &mut Molecule, s: &mut Scratch) {
     let n = m.atoms.len();
     for a in &mut m.atoms {
         a.ring_count = 0;
         a.smallest_ring = 0;
     }
-    let ring_bond = ring_bonds(m);
+    let mut ring_bond = std::mem::take(&mut s.ring_bond);
+    ring_bonds(m, s, &mut ring_bond);
     for (b, &r) in m.bonds.iter_mut().zip(&ring_bond) {
         b.in_ring = r;
     }
     if !ring_bond.iter().any(|&r| r) {
         m.rings = Vec::new();
+        s.ring_bond = ring_bond;
         return;
     }
     // Ring systems: components of the ring-bond subgraph, their atoms (in discovery order)
     // and bonds (sorted) back to back in two lists.
-    let mut system = vec![usize::MAX; n];
-    let mut system_atoms: Vec<usize> = Vec::with_capacity(n);
-    let mut system_bonds: Vec<usize> = Vec::with_capacity(2 * m.bonds.len());
-    let mut systems: Vec<(usize, usize, usize, usize)> = Vec::new();
-    let mut stack: Vec<usize> = Vec::new();
+    let mut system = std::mem::take(&mut s.system);
+    let mut system_atoms = std::mem::take(&mut s.system_atoms);
+    let mut system_bonds = std::mem::take(&mut s.system_bonds);
+    let mut systems = std::mem::take(&mut s.systems);
+    let mut stack = std::mem::take(&mut s.stack);
+    system.clear();
+    system.resize(n, usize::MAX);
+    system_atoms.clear();
+    system_bonds.clear();
+    systems.clear();
+    stack.clear();
     for start in 0..n {
         if system[start] != usize::MAX || !m.neighbors[start].iter().any(|nb| ring_bond[nb.bond]) {
             continue;
@@ -53,7 +67,10 @@ pub(crate) fn perceive_rings(m: &mut Molecule) {
                 if !ring_bond[nb.bond] {
                     continue;
                 }
-                system_bonds.push(nb.bond);
+                // Each ring bond is met from both ends; kept from its lower one.
+                if a < nb.atom {
+                    system_bonds.push(nb.bond);
+                }
                 if system[nb.atom] == usize::MAX {
                     system[nb.atom] = id;
                     system_atoms.push(nb.atom);
@@ -61,17 +78,7 @@ pub(crate) fn perceive_rings(m: &mut Molecule) {
                 }
             }
         }
-        // Each ring bond was met from both ends.
-        let bonds = &mut system_bonds[bonds_from..];
-        bonds.sort_unstable();
-        let mut kept = 0;
-        for k in 0..bonds.len() {
-            if k == 0 || bonds[k] != bonds[kept - 1] {
-                bonds[kept] = bonds[k];
-                kept += 1;
-            }
-        }
-        system_bonds.truncate(bonds_from + kept);
+        system_bonds[bonds_from..].sort_unstable();
         systems.push((
             atoms_from,
             system_atoms.len(),
@@ -85,15 +92,9 @@ pub(crate) fn perceive_rings(m: &mut Molecule) {
         .map(|&(a0, a1, b0, b1)| (b1 - b0 + 1).saturating_sub(a1 - a0))
         .sum();
     let mut rings = Vec::with_capacity(wanted);
-    let mut scratch = Scratch {
-        prev: vec![usize::MAX; n],
-        column: vec![usize::MAX; m.bonds.len()],
-        queue: VecDeque::new(),
-        touched: Vec::new(),
-    };
     for &(a0, a1, b0, b1) in &systems {
         let (atoms, bonds) = (&system_atoms[a0..a1], &system_bonds[b0..b1]);
-        rings.extend(system_rings(m, atoms, bonds, &ring_bond, &mut scratch));
+        system_rings(m, atoms, bonds, &ring_bond, s, &mut rings);
     }
     for ring in &rings {
         for &a in ring {
@@ -106,17 +107,32 @@ pub(crate) fn perceive_rings(m: &mut Molecule) {
         }
     }
     m.rings = rings;
+    s.ring_bond = ring_bond;
+    s.system = system;
+    s.system_atoms = system_atoms;
+    s.system_bonds = system_bonds;
+    s.systems = systems;
+    s.stack = stack;
 }
 
-/// Bonds on a cycle (not bridges), by an iterative low-link depth-first search.
-fn ring_bonds(m: &Molecule) -> Vec<bool> {
+/// Bonds on a cycle (not bridges), by an iterative low-link depth-first search, into
+/// `ring_bond`.
+fn ring_bonds(m: &Molecule, s: &mut Scratch, ring_bond: &mut Vec<bool>) {
     let n = m.atoms.len();
-    let mut order = vec![usize::MAX; n];
-    let mut low = vec![0usize; n];
-    let mut is_bridge = vec![false; m.bonds.len()];
+    let Scratch {
+        order, low, dfs, ..
+    } = s;
+    order.clear();
+    order.resize(n, usize::MAX);
+    low.clear();
+    low.resize(n, 0);
+    // Every bond a ring bond until found to be a bridge.
+    ring_bond.clear();
+    ring_bond.resize(m.bonds.len(), true);
     let mut counter = 0;
     // (atom, bond we came by, next neighbour index)
-    let mut stack: Vec<(usize, usize, usize)> = Vec::with_capacity(n);
+    let stack = dfs;
+    stack.clear();
     for root in 0..n {
         if order[root] != usize::MAX {
             continue;
@@ -145,13 +161,12 @@ fn ring_bonds(m: &Molecule) -> Vec<bool> {
                 if let Some(&(parent, _, _)) = stack.last() {
                     low[parent] = low[parent].min(low[v]);
                     if low[v] > order[parent] {
-                        is_bridge[via] = true;
+                        ring_bond[via] = false;
                     }
                 }
             }
         }
     }
-    is_bridge.iter().map(|b| !b).collect()
 }
 
 /// Shortest path from `from` to `to` over ring bonds of the system, not using bond `skip`;
@@ -187,10 +202,13 @@ fn shortest_path_into(
     touched.clear();
     touched.push(from);
     prev[from] = from;
+    // A list read from the front serves as the queue: nothing is ever taken off it.
     queue.clear();
-    queue.push_back(from);
+    queue.push(from);
+    let mut head = 0;
     let mut found = false;
-    'search: while let Some(v) = queue.pop_front() {
+    'search: while let Some(&v) = queue.get(head) {
+        head += 1;
         for nb in &m.neighbors[v] {
             if nb.bond == skip || !ring_bond[nb.bond] || prev[nb.atom] != usize::MAX {
                 continue;
@@ -201,7 +219,7 @@ fn shortest_path_into(
                 found = true;
                 break 'search;
             }
-            queue.push_back(nb.atom);
+            queue.push(nb.atom);
         }
     }
     if found {
@@ -223,7 +241,7 @@ fn shortest_path_into(
 /// The breadth-first search's buffers, borrowed from [`Scratch`].
 struct Search<'a> {
     prev: &'a mut [usize],
-    queue: &'a mut VecDeque<usize>,
+    queue: &'a mut Vec<usize>,
     touched: &'a mut Vec<usize>,
 }
 
@@ -255,52 +273,141 @@ fn path_to_root(parent: &[usize], mut v: usize) -> Vec<usize> {
     p
 }
 
-/// Scratch arrays over the whole molecule, allocated once and left all `usize::MAX`
-/// between ring systems, so many small systems cost no more than one big one.
+/// Arrays of the ring perception, kept per thread between molecules: a batch perceives
+/// one molecule after another, and allocating them afresh for each cost more than some of
+/// the work they hold. `prev` and `column` are all `usize::MAX` between ring systems, so
+/// many small systems cost no more than one big one.
+#[derive(Default)]
 struct Scratch {
     prev: Vec<usize>,
     column: Vec<usize>,
-    queue: VecDeque<usize>,
+    queue: Vec<usize>,
     touched: Vec<usize>,
+    /// Ring bonds, and the depth-first search that finds them.
+    ring_bond: Vec<bool>,
+    order: Vec<usize>,
+    low: Vec<usize>,
+    dfs: Vec<(usize, usize, usize)>,
+    /// Ring systems: system per atom, their atoms and bonds back to back, ranges.
+    system: Vec<usize>,
+    system_atoms: Vec<usize>,
+    system_bonds: Vec<usize>,
+    systems: Vec<(usize, usize, usize, usize)>,
+    stack: Vec<usize>,
+    /// Candidate cycles of a small system, and its reduced rows.
+    flat: Vec<usize>,
+    candidates: Vec<(usize, usize, u64)>,
+    canon: Vec<usize>,
+    rows: Vec<(u32, u64)>,
 }
 
+thread_local! {
+    /// The arrays of the last ring perception on this thread.
+    static SPARE_SCRATCH: std::cell::RefCell<Option<Scratch>> =
+        const { std::cell::RefCell::new(None) };
+}
+
+impl Scratch {
+    /// The thread's arrays (or new ones), ready for `m`: `prev` and `column` all
+    /// `usize::MAX` (set here, so arrays of a perception that did not finish do no harm).
+    fn take(m: &Molecule) -> Self {
+        let mut s = SPARE_SCRATCH
+            .try_with(|spare| spare.borrow_mut().take())
+            .ok()
+            .flatten()
+            .unwrap_or_default();
+        s.prev.clear();
+        s.prev.resize(m.atoms.len(), usize::MAX);
+        s.column.clear();
+        s.column.resize(m.bonds.len(), usize::MAX);
+        s
+    }
+
+    /// Hands the arrays to the thread for the next molecule.
+    fn give_back(self) {
+        // During thread teardown the slot may be gone; the arrays are then just freed.
+        let _ = SPARE_SCRATCH.try_with(|spare| *spare.borrow_mut() = Some(self));
+    }
+}
+
+/// The rings of one ring system, appended to `out`.
 fn system_rings(
     m: &Molecule,
     atoms: &[usize],
     bonds: &[usize],
     ring_bond: &[bool],
     scratch: &mut Scratch,
-) -> Vec<Vec<usize>> {
+    out: &mut Vec<Vec<usize>>,
+) {
     for (k, &b) in bonds.iter().enumerate() {
         scratch.column[b] = k;
     }
+    let Scratch {
+        prev,
+        column,
+        queue,
+        touched,
+        flat,
+        candidates,
+        canon,
+        rows,
+        ..
+    } = scratch;
     let mut search = Search {
-        prev: &mut scratch.prev,
-        queue: &mut scratch.queue,
-        touched: &mut scratch.touched,
+        prev,
+        queue,
+        touched,
     };
-    let rings = if atoms.len() == bonds.len() {
-        Some(vec![simple_cycle(m, atoms[0], ring_bond, atoms.len())])
+    let done = if atoms.len() == bonds.len() {
+        out.push(simple_cycle(m, atoms[0], ring_bond, atoms.len(), flat));
+        true
     } else if bonds.len() <= 64 {
-        small_system_rings(m, atoms, bonds, ring_bond, &mut search, &scratch.column)
+        let mut buffers = SmallBuffers {
+            flat,
+            candidates,
+            canon,
+            rows,
+        };
+        small_system_rings(
+            m,
+            atoms,
+            bonds,
+            ring_bond,
+            &mut search,
+            column,
+            &mut buffers,
+            out,
+        )
     } else {
-        None
+        false
     };
-    let rings = rings.unwrap_or_else(|| {
-        system_rings_with(m, atoms, bonds, ring_bond, &mut search, &scratch.column)
-    });
+    if !done {
+        out.extend(system_rings_with(
+            m,
+            atoms,
+            bonds,
+            ring_bond,
+            &mut search,
+            column,
+        ));
+    }
     for &b in bonds {
         scratch.column[b] = usize::MAX;
     }
-    rings
 }
 
 /// The one ring of a system with as many bonds as atoms (a single ring, fused to nothing):
-/// walked from `start` and put in canonical form, as the general path would choose it (its
-/// only candidate is that cycle).
-fn simple_cycle(m: &Molecule, start: usize, ring_bond: &[bool], size: usize) -> Vec<usize> {
-    let mut cycle = Vec::with_capacity(size);
-    cycle.push(start);
+/// walked from `start` (into `walk`) and put in canonical form, as the general path would
+/// choose it (its only candidate is that cycle).
+fn simple_cycle(
+    m: &Molecule,
+    start: usize,
+    ring_bond: &[bool],
+    size: usize,
+    walk: &mut Vec<usize>,
+) -> Vec<usize> {
+    walk.clear();
+    walk.push(start);
     let mut prev = usize::MAX;
     let mut v = start;
     loop {
@@ -310,20 +417,31 @@ fn simple_cycle(m: &Molecule, start: usize, ring_bond: &[bool], size: usize) -> 
             .map(|nb| nb.atom);
         match next {
             Some(w) if w != start => {
-                cycle.push(w);
+                walk.push(w);
                 prev = v;
                 v = w;
             }
             _ => break,
         }
     }
-    canonical(&cycle)
+    let mut cycle = Vec::with_capacity(size);
+    canonical_into(walk, &mut cycle);
+    cycle
+}
+
+/// The buffers [`small_system_rings`] works in, borrowed from [`Scratch`].
+struct SmallBuffers<'a> {
+    flat: &'a mut Vec<usize>,
+    candidates: &'a mut Vec<(usize, usize, u64)>,
+    canon: &'a mut Vec<usize>,
+    rows: &'a mut Vec<(u32, u64)>,
 }
 
 /// The rings of a system of at most 64 bonds, each bond set one `u64`: the same candidates,
-/// order and choice as [`system_rings_with`] without a vector per candidate. `None` when
-/// the shortest cycles through each bond do not give a full basis, which the general path
-/// (with Horton's candidates) then finds.
+/// order and choice as [`system_rings_with`] without a vector per candidate, appended to
+/// `out`. `false` (and `out` as it was) when the shortest cycles through each bond do not
+/// give a full basis, which the general path (with Horton's candidates) then finds.
+#[allow(clippy::too_many_arguments)]
 fn small_system_rings(
     m: &Molecule,
     atoms: &[usize],
@@ -331,15 +449,23 @@ fn small_system_rings(
     ring_bond: &[bool],
     search: &mut Search,
     column: &[usize],
-) -> Option<Vec<Vec<usize>>> {
+    buffers: &mut SmallBuffers,
+    out: &mut Vec<Vec<usize>>,
+) -> bool {
     let wanted = bonds.len() + 1 - atoms.len();
     // Candidate cycles back to back in `flat`, each as (start, end, bond set).
-    let mut flat: Vec<usize> = Vec::with_capacity(4 * bonds.len());
-    let mut candidates: Vec<(usize, usize, u64)> = Vec::with_capacity(bonds.len());
+    let SmallBuffers {
+        flat,
+        candidates,
+        canon,
+        rows,
+    } = buffers;
+    flat.clear();
+    candidates.clear();
     for &b in bonds {
         let (x, y) = (m.bonds[b].a, m.bonds[b].b);
         let begin = flat.len();
-        if shortest_path_into(m, x, y, b, ring_bond, search, &mut flat) {
+        if shortest_path_into(m, x, y, b, ring_bond, search, flat) {
             let v = bits64(m, &flat[begin..], column);
             if candidates.iter().any(|c| c.2 == v) {
                 flat.truncate(begin);
@@ -349,13 +475,13 @@ fn small_system_rings(
         }
     }
     if candidates.len() < wanted {
-        return None;
+        return false;
     }
     // Canonical forms, in place: the same bond set, read the same way however found.
-    let mut canon: Vec<usize> = Vec::with_capacity(flat.len());
-    for c in &mut candidates {
+    canon.clear();
+    for c in candidates.iter_mut() {
         let begin = canon.len();
-        canonical_into(&flat[c.0..c.1], &mut canon);
+        canonical_into(&flat[c.0..c.1], canon);
         *c = (begin, canon.len(), c.2);
     }
     candidates.sort_by(|a, b| {
@@ -363,13 +489,13 @@ fn small_system_rings(
             .cmp(&(b.1 - b.0))
             .then_with(|| canon[a.0..a.1].cmp(&canon[b.0..b.1]))
     });
-    let mut rows: Vec<(u32, u64)> = Vec::with_capacity(wanted);
-    let mut chosen = Vec::with_capacity(wanted);
-    for &(begin, end, mut v) in &candidates {
-        if chosen.len() == wanted {
+    rows.clear();
+    let first = out.len();
+    for &(begin, end, mut v) in candidates.iter() {
+        if out.len() - first == wanted {
             break;
         }
-        for &(pivot, row) in &rows {
+        for &(pivot, row) in rows.iter() {
             if v >> pivot & 1 == 1 {
                 v ^= row;
             }
@@ -380,9 +506,14 @@ fn small_system_rings(
         let pivot = v.trailing_zeros();
         let at = rows.partition_point(|&(p, _)| p < pivot);
         rows.insert(at, (pivot, v));
-        chosen.push(canon[begin..end].to_vec());
+        out.push(canon[begin..end].to_vec());
     }
-    (chosen.len() == wanted).then_some(chosen)
+    if out.len() - first == wanted {
+        true
+    } else {
+        out.truncate(first);
+        false
+    }
 }
 
 /// The bond set of a cycle as one word (systems of at most 64 bonds).

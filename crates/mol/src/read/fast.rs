@@ -16,6 +16,9 @@ use crate::Span;
 /// Nothing open on a ring number.
 const CLOSED: usize = usize::MAX;
 
+/// Ring-closure bonds up to this many are checked for repeats one by one.
+const FEW_CLOSURES: usize = 8;
+
 // <smiles> ::= <atom> <body>*
 // <body> ::= <branch> | <split> | <union>
 // <branch> ::= "(" <bond>? <smiles> ")"
@@ -38,6 +41,9 @@ pub(crate) fn read_fast(smiles: &str) -> Option<Written> {
     let mut open_atom = [CLOSED; 100];
     let mut open_symbol = [Symbol::Elided; 100];
     let mut opens = 0usize;
+    // Ring-closure bonds by index into `bonds`, the first few: only they can repeat a bond.
+    let mut closures = [0usize; FEW_CLOSURES];
+    let mut closure_count = 0usize;
     let mut i = 0usize;
     // The bond into the next atom: `None` for the first atom of a part (after `.` or at the
     // start), which roots a new chain.
@@ -107,6 +113,10 @@ pub(crate) fn read_fast(smiles: &str) -> Option<Written> {
                             if other == head {
                                 return None;
                             }
+                            if closure_count < FEW_CLOSURES {
+                                closures[closure_count] = bonds.len();
+                            }
+                            closure_count += 1;
                             bonds.push((other.min(head), other.max(head), merged));
                         }
                     }
@@ -126,11 +136,26 @@ pub(crate) fn read_fast(smiles: &str) -> Option<Written> {
     if !branches.is_empty() || opens != 0 || atoms.is_empty() {
         return None;
     }
-    // Two bonds between one pair of atoms are an error the full reader names.
-    let mut pairs: Vec<(usize, usize)> = bonds.iter().map(|&(a, b, _)| (a, b)).collect();
-    pairs.sort_unstable();
-    if pairs.windows(2).any(|w| w[0] == w[1]) {
-        return None;
+    // Two bonds between one pair of atoms are an error the full reader names. A chain bond
+    // always leads to a new atom, so a repeat involves a ring-closure bond: a few of those
+    // are looked for among the bonds, many are found by sorting all pairs.
+    if closure_count <= FEW_CLOSURES {
+        let repeated = closures[..closure_count].iter().any(|&c| {
+            let (a, b, _) = bonds[c];
+            bonds
+                .iter()
+                .enumerate()
+                .any(|(k, &(x, y, _))| k != c && x == a && y == b)
+        });
+        if repeated {
+            return None;
+        }
+    } else {
+        let mut pairs: Vec<(usize, usize)> = bonds.iter().map(|&(a, b, _)| (a, b)).collect();
+        pairs.sort_unstable();
+        if pairs.windows(2).any(|w| w[0] == w[1]) {
+            return None;
+        }
     }
     Some(Written {
         atoms,
