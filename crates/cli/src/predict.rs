@@ -93,8 +93,7 @@ pub struct PredictJob {
 /// drops the record there, so the single writer thread only copies bytes: it neither holds
 /// back the others nor frees, one allocation at a time, memory that other threads took.
 pub enum Estimated {
-    /// The record, for the table and CSV/TSV writers (and for JSON Lines if serializing it
-    /// in the worker failed: the writer then tries again and reports the error).
+    /// The record, for the table and CSV/TSV writers.
     Record(Record),
     /// The record as JSON text (no line end), and whether it failed.
     Json {
@@ -163,18 +162,14 @@ impl PredictJob {
         // Records run to a few kilobytes (terms carry their sources): one allocation of that
         // size rather than a buffer doubling up to it.
         let mut text = Vec::with_capacity(8192);
-        match serde_json::to_writer(&mut text, &record) {
-            Ok(()) => {
-                // The text waits for the writer, up to a few chunks of it: give back the
-                // unused capacity (glibc shrinks in place, without a copy) so that waiting
-                // costs what the text weighs, not 8 KiB a record.
-                text.shrink_to_fit();
-                Estimated::Json {
-                    text,
-                    failed: record.failed(),
-                }
-            }
-            Err(_) => Estimated::Record(record),
+        crate::json::write_record(&mut text, &record);
+        // The text waits for the writer, up to a few chunks of it: give back the unused
+        // capacity (the allocator shrinks in place, without a copy) so that waiting costs
+        // what the text weighs, not 8 KiB a record.
+        text.shrink_to_fit();
+        Estimated::Json {
+            text,
+            failed: record.failed(),
         }
     }
 }
@@ -230,7 +225,11 @@ impl<W: Write + Send> Sink<Estimated> for Jsonl<W> {
     fn write(&mut self, _item: &Item, done: &Estimated) -> io::Result<()> {
         match done {
             Estimated::Json { text, .. } => self.out.write_all(text)?,
-            Estimated::Record(record) => serde_json::to_writer(&mut self.out, record)?,
+            Estimated::Record(record) => {
+                let mut text = Vec::with_capacity(8192);
+                crate::json::write_record(&mut text, record);
+                self.out.write_all(&text)?
+            }
         }
         self.out.write_all(b"\n")
     }
