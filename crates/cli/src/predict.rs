@@ -159,19 +159,31 @@ impl PredictJob {
         if !self.json {
             return Estimated::Record(record);
         }
-        // Records run to a few kilobytes (terms carry their sources): one allocation of that
-        // size rather than a buffer doubling up to it.
-        let mut text = Vec::with_capacity(8192);
-        crate::json::write_record(&mut text, &record);
-        // The text waits for the writer, up to a few chunks of it: give back the unused
-        // capacity (the allocator shrinks in place, without a copy) so that waiting costs
-        // what the text weighs, not 8 KiB a record.
-        text.shrink_to_fit();
+        // The record is written into a buffer this thread keeps (warm in cache, grown once
+        // to the largest record) and copied once into a text of its exact size, which waits
+        // for the writer: one allocation of what the text weighs, on memory this thread
+        // has just freed, instead of a fresh 8 KiB block shrunk afterwards.
+        let text = SCRATCH.with(|scratch| {
+            let mut scratch = scratch.borrow_mut();
+            scratch.clear();
+            crate::json::write_record(&mut scratch, &record);
+            let text = scratch.to_vec();
+            // A rare giant record (a long peptide) does not pin its size on the thread.
+            if scratch.capacity() > 1 << 20 {
+                *scratch = Vec::with_capacity(1 << 14);
+            }
+            text
+        });
         Estimated::Json {
             text,
             failed: record.failed(),
         }
     }
+}
+
+thread_local! {
+    /// Each worker's buffer for the JSON text of a record.
+    static SCRATCH: std::cell::RefCell<Vec<u8>> = std::cell::RefCell::new(Vec::with_capacity(1 << 14));
 }
 
 /// The record of an input that failed before it reached the library.
