@@ -10,6 +10,9 @@
 //! are all floating-point numbers, so the text cannot drift from what serde_json writes.
 //! The tests compare the two on real records.
 
+use std::borrow::Cow;
+use std::cell::RefCell;
+
 use pkarta::model::{Kind, Term};
 use pkarta::{Record, SiteReport, SpeciesReport};
 use serde::Serializer as _;
@@ -101,11 +104,11 @@ fn sites(out: &mut Vec<u8>, sites: &[SiteReport]) {
 
 fn term(out: &mut Vec<u8>, t: &Term) {
     out.extend_from_slice(b"{\"label\":");
-    string(out, &t.label);
+    text(out, &t.label);
     out.extend_from_slice(b",\"contribution\":");
     float(out, t.contribution);
     out.extend_from_slice(b",\"source\":");
-    string(out, &t.source);
+    text(out, &t.source);
     // As `skip_serializing_if = "Option::is_none"` on the type.
     if let Some(sigma) = t.sigma {
         out.extend_from_slice(b",\"sigma\":");
@@ -117,7 +120,7 @@ fn term(out: &mut Vec<u8>, t: &Term) {
     }
     if let Some(position) = &t.position {
         out.extend_from_slice(b",\"position\":");
-        string(out, position);
+        text(out, position);
     }
     out.push(b'}');
 }
@@ -173,6 +176,44 @@ fn unsigned(out: &mut Vec<u8>, mut n: u64) {
         }
     }
     out.extend_from_slice(&buf[i..]);
+}
+
+/// A term's text. Texts lent for the life of the program (the built-in library's, see
+/// `model::Text`) never change, so each is checked for escapes once per thread: a small
+/// table keyed by where the text lies remembers those found clean. Term sources are
+/// hundreds of bytes, and the same few hundred of them come back in every batch.
+fn text(out: &mut Vec<u8>, t: &Cow<'static, str>) {
+    let Cow::Borrowed(s) = t else {
+        return string(out, t);
+    };
+    const SLOTS: usize = 1024;
+    thread_local! {
+        static CLEAN: RefCell<Vec<(usize, usize)>> = const { RefCell::new(Vec::new()) };
+    }
+    let key = (s.as_ptr() as usize, s.len());
+    let slot = (key.0 >> 3 ^ key.0 >> 13 ^ key.1) % SLOTS;
+    let known = CLEAN.with(|clean| {
+        let mut clean = clean.borrow_mut();
+        if clean.is_empty() {
+            clean.resize(SLOTS, (0, 0));
+        }
+        if clean[slot] == key {
+            return true;
+        }
+        if needs_escape(s.as_bytes()) {
+            return false;
+        }
+        clean[slot] = key;
+        true
+    });
+    if known {
+        out.reserve(s.len() + 2);
+        out.push(b'"');
+        out.extend_from_slice(s.as_bytes());
+        out.push(b'"');
+    } else {
+        string(out, s);
+    }
 }
 
 /// A JSON string: copied whole between quotes when no byte of it needs escaping, else
