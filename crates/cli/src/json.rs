@@ -159,8 +159,36 @@ fn float(out: &mut Vec<u8>, x: f64) {
         out.extend_from_slice(b"null");
         return;
     }
-    // Writing to a Vec cannot fail.
-    let _ = serde_json::ser::CompactFormatter.write_f64(out, x);
+    // The same few hundred values (rho and sigma of the library's classes and entries,
+    // parent values, uncertainties, the pH) come back in record after record: their text,
+    // as serde_json's formatter wrote it, is kept per thread in a small table by bit pattern.
+    const SLOTS: usize = 512;
+    thread_local! {
+        static WRITTEN: RefCell<Vec<(u64, u8, [u8; 24])>> = const { RefCell::new(Vec::new()) };
+    }
+    let bits = x.to_bits();
+    let slot = (bits.wrapping_mul(0x9e37_79b9_7f4a_7c15) >> 40) as usize % SLOTS;
+    WRITTEN.with(|written| {
+        let mut written = written.borrow_mut();
+        if written.is_empty() {
+            // No finite number has the bits of this NaN: the empty slots match nothing.
+            written.resize(SLOTS, (f64::NAN.to_bits(), 0, [0; 24]));
+        }
+        let (key, len, text) = &mut written[slot];
+        if *key == bits {
+            out.extend_from_slice(&text[..usize::from(*len)]);
+            return;
+        }
+        let start = out.len();
+        // Writing to a Vec cannot fail.
+        let _ = serde_json::ser::CompactFormatter.write_f64(out, x);
+        let new = &out[start..];
+        if new.len() <= text.len() {
+            text[..new.len()].copy_from_slice(new);
+            *len = new.len() as u8;
+            *key = bits;
+        }
+    });
 }
 
 /// An integer in decimal, as `itoa` (and so serde_json) writes it.
@@ -311,6 +339,27 @@ mod tests {
         record.species[0].charge = i32::MIN;
         record.warnings.push("\u{1}\u{1f}\u{7f} control".into());
         check(&record);
+    }
+
+    #[test]
+    fn kept_numbers_are_written_as_serde_json_writes_them() {
+        // Many more values than slots, each written three times, so that slots are filled,
+        // hit and overwritten; the extremes of the format among them.
+        let mut values = vec![0.0, -0.0, 1e300, -2.2250738585072014e-308, 5e-324, 7.4, 0.1];
+        let mut x: u64 = 12345;
+        for _ in 0..5000 {
+            x = x.wrapping_mul(6_364_136_223_846_793_005).wrapping_add(1);
+            values.push(f64::from_bits(x));
+            values.push((x >> 40) as f64 / 1000.0 - 4.0);
+        }
+        for round in 0..3 {
+            for &v in &values {
+                let mut ours = Vec::new();
+                float(&mut ours, v);
+                let theirs = serde_json::to_vec(&v).unwrap();
+                assert_eq!(ours, theirs, "{v:e}, round {round}");
+            }
+        }
     }
 
     #[test]
