@@ -112,23 +112,27 @@ pub fn align(rows: &[Vec<String>], right: &[usize], indent: &str) -> String {
             widths[i] = widths[i].max(cell.chars().count());
         }
     }
-    let mut out = String::new();
+    let line_width = indent.len() + widths.iter().sum::<usize>() + 2 * columns + 1;
+    let mut out = String::with_capacity(rows.len() * line_width);
+    // Each line is written straight into `out` and its trailing blanks cut off there.
     for row in rows {
-        let mut line = String::from(indent);
+        let start = out.len();
+        out.push_str(indent);
         for (i, cell) in row.iter().enumerate() {
             if i > 0 {
-                line.push_str("  ");
+                out.push_str("  ");
             }
             let pad = widths[i] - cell.chars().count();
             if right.contains(&i) {
-                line.push_str(&" ".repeat(pad));
-                line.push_str(cell);
+                out.extend(std::iter::repeat(' ').take(pad));
+                out.push_str(cell);
             } else {
-                line.push_str(cell);
-                line.push_str(&" ".repeat(pad));
+                out.push_str(cell);
+                out.extend(std::iter::repeat(' ').take(pad));
             }
         }
-        out.push_str(line.trim_end());
+        let kept = out[start..].trim_end().len();
+        out.truncate(start + kept);
         out.push('\n');
     }
     out
