@@ -58,7 +58,7 @@ pub enum TermRole {
 }
 
 /// A text of a term. Scoring with the built-in library lends out texts that live as long as
-/// the program (the library's own, and those joined from them once, see [`Texts`]), so that
+/// the program (the library's own, and those joined from them once per class and entry), so that
 /// the terms of a site cost no allocation for their labels and long sources; a user's
 /// library gives each term its own copy.
 pub type Text = Cow<'static, str>;
