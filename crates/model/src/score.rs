@@ -289,8 +289,23 @@ fn numbered(number: usize, name: &str) -> String {
 /// are rarely larger; larger numbers are written out for each term).
 const NUMBERED_KEPT: usize = 12;
 
-/// Number of [`Counted`] kinds.
+/// Number of [`Counted`] kinds: slots per class for their sources.
 const COUNTED_KINDS: usize = 7;
+
+/// The slot of a [`Counted`] kind among a class's [`COUNTED_KINDS`]. Exhaustive on
+/// purpose: a new kind does not compile until it has a slot of its own (two kinds sharing
+/// one would lend one's source to the other).
+fn counted_slot(what: Counted) -> usize {
+    match what {
+        Counted::FusedAza => 0,
+        Counted::RingOxo => 1,
+        Counted::OrthoField => 2,
+        Counted::OrthoHbond => 3,
+        Counted::OrthoResonance => 4,
+        Counted::AzaPair => 5,
+        Counted::AlkylBranch => 6,
+    }
+}
 
 /// The texts of terms that scoring with the built-in library joins from the library's own
 /// texts, each made the first time a site needs it and then lent to every term that uses
@@ -408,10 +423,12 @@ impl Texts {
 
     /// The source of a class correction; `make` writes it (from the class's constants).
     fn counted_source(&self, what: Counted, make: impl FnOnce() -> String) -> Text {
+        let slot = counted_slot(what);
         self.kept(
             |t| {
-                t.counted_source
-                    .get(self.class * COUNTED_KINDS + what as usize)
+                (slot < COUNTED_KINDS)
+                    .then(|| t.counted_source.get(self.class * COUNTED_KINDS + slot))
+                    .flatten()
             },
             make,
         )
