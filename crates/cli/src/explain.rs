@@ -133,8 +133,8 @@ fn site_text(n: usize, site: &SiteReport, outside: bool, elements: &[String]) ->
             format!("[{}]", i + 1)
         };
         rows.push(vec![
-            t.label.clone(),
-            t.position.clone().unwrap_or_default(),
+            t.label.to_string(),
+            t.position.as_deref().unwrap_or_default().to_string(),
             t.sigma.map(num).unwrap_or_default(),
             t.rho.map(num).unwrap_or_default(),
             format!("{:+.2}", t.contribution).replace("-0.00", "+0.00"),

@@ -14,6 +14,7 @@ mod flags;
 mod fmt;
 mod input;
 mod inspect;
+mod json;
 mod library;
 mod predict;
 mod progress;

@@ -93,8 +93,7 @@ pub struct PredictJob {
 /// drops the record there, so the single writer thread only copies bytes: it neither holds
 /// back the others nor frees, one allocation at a time, memory that other threads took.
 pub enum Estimated {
-    /// The record, for the table and CSV/TSV writers (and for JSON Lines if serializing it
-    /// in the worker failed: the writer then tries again and reports the error).
+    /// The record, for the table and CSV/TSV writers.
     Record(Record),
     /// The record as JSON text (no line end), and whether it failed.
     Json {
@@ -160,23 +159,31 @@ impl PredictJob {
         if !self.json {
             return Estimated::Record(record);
         }
-        // Records run to a few kilobytes (terms carry their sources): one allocation of that
-        // size rather than a buffer doubling up to it.
-        let mut text = Vec::with_capacity(8192);
-        match serde_json::to_writer(&mut text, &record) {
-            Ok(()) => {
-                // The text waits for the writer, up to a few chunks of it: give back the
-                // unused capacity (glibc shrinks in place, without a copy) so that waiting
-                // costs what the text weighs, not 8 KiB a record.
-                text.shrink_to_fit();
-                Estimated::Json {
-                    text,
-                    failed: record.failed(),
-                }
+        // The record is written into a buffer this thread keeps (warm in cache, grown once
+        // to the largest record) and copied once into a text of its exact size, which waits
+        // for the writer: one allocation of what the text weighs, on memory this thread
+        // has just freed, instead of a fresh 8 KiB block shrunk afterwards.
+        let text = SCRATCH.with(|scratch| {
+            let mut scratch = scratch.borrow_mut();
+            scratch.clear();
+            crate::json::write_record(&mut scratch, &record);
+            let text = scratch.to_vec();
+            // A rare giant record (a long peptide) does not pin its size on the thread.
+            if scratch.capacity() > 1 << 20 {
+                *scratch = Vec::with_capacity(1 << 14);
             }
-            Err(_) => Estimated::Record(record),
+            text
+        });
+        Estimated::Json {
+            text,
+            failed: record.failed(),
         }
     }
+}
+
+thread_local! {
+    /// Each worker's buffer for the JSON text of a record.
+    static SCRATCH: std::cell::RefCell<Vec<u8>> = std::cell::RefCell::new(Vec::with_capacity(1 << 14));
 }
 
 /// The record of an input that failed before it reached the library.
@@ -230,7 +237,11 @@ impl<W: Write + Send> Sink<Estimated> for Jsonl<W> {
     fn write(&mut self, _item: &Item, done: &Estimated) -> io::Result<()> {
         match done {
             Estimated::Json { text, .. } => self.out.write_all(text)?,
-            Estimated::Record(record) => serde_json::to_writer(&mut self.out, record)?,
+            Estimated::Record(record) => {
+                let mut text = Vec::with_capacity(8192);
+                crate::json::write_record(&mut text, record);
+                self.out.write_all(&text)?
+            }
         }
         self.out.write_all(b"\n")
     }

@@ -8,7 +8,7 @@ mod sites;
 mod substituents;
 
 pub use library::{Calibration, Kind, Library, LibraryError, Scale, SiteClass, SubstituentEntry};
-pub use score::{interactions, score_sites, Counted, Site, Term, TermRole};
+pub use score::{interactions, score_sites, Counted, Site, Term, TermRole, Text};
 pub use sites::{find_sites, FoundSite};
 pub use substituents::{entry_by_id, is_ring_member, recognize, recognize_with, Recognized};
 

@@ -12,6 +12,7 @@
 
 use std::borrow::Cow;
 use std::collections::VecDeque;
+use std::sync::OnceLock;
 
 use mol::{Hybridization, Molecule};
 use once_cell::sync::Lazy;
@@ -56,15 +57,21 @@ pub enum TermRole {
     Correction,
 }
 
+/// A text of a term. Scoring with the built-in library lends out texts that live as long as
+/// the program (the library's own, and those joined from them once per class and entry), so that
+/// the terms of a site cost no allocation for their labels and long sources; a user's
+/// library gives each term its own copy.
+pub type Text = Cow<'static, str>;
+
 /// One term of an estimate. The terms of a site add up to its pKa exactly.
 #[derive(Clone, Debug, Serialize, PartialEq)]
 pub struct Term {
     /// What the term is, e.g. `parent: aliphatic carboxylic acid`, `para-NO2`.
-    pub label: String,
+    pub label: Text,
     /// Its contribution to the pKa.
     pub contribution: f64,
     /// Where its constants come from.
-    pub source: String,
+    pub source: Text,
     /// The substituent constant used (attenuated for chains), where one applies.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub sigma: Option<f64>,
@@ -73,7 +80,7 @@ pub struct Term {
     pub rho: Option<f64>,
     /// `ortho`, `meta`, `para`, or the number of bonds from the anchor along a chain.
     #[serde(skip_serializing_if = "Option::is_none")]
-    pub position: Option<String>,
+    pub position: Option<Text>,
     /// What the term stands for.
     #[serde(skip)]
     pub role: TermRole,
@@ -310,6 +317,218 @@ fn numbered(number: usize, name: &str) -> String {
     concat(&[decimal(number, &mut [0; 20]), "-", name])
 }
 
+/// Ring numbers whose `{number}-{name}` labels are kept for the built-in library (site rings
+/// are rarely larger; larger numbers are written out for each term).
+const NUMBERED_KEPT: usize = 12;
+
+/// Number of [`Counted`] kinds: slots per class for their sources.
+const COUNTED_KINDS: usize = 11;
+
+/// The slot of a [`Counted`] kind among a class's [`COUNTED_KINDS`]. Exhaustive on
+/// purpose: a new kind does not compile until it has a slot of its own (two kinds sharing
+/// one would lend one's source to the other).
+fn counted_slot(what: Counted) -> usize {
+    match what {
+        Counted::FusedAza => 0,
+        Counted::RingOxo => 1,
+        Counted::OrthoField => 2,
+        Counted::OrthoHbond => 3,
+        Counted::OrthoResonance => 4,
+        Counted::AzaPair => 5,
+        Counted::AlkylBranch => 6,
+        Counted::OrthoAlkyl => 7,
+        Counted::FusedSubstituents => 8,
+        Counted::FusedConjugated => 9,
+        Counted::NAlkylBranch => 10,
+    }
+}
+
+/// The texts of terms that scoring with the built-in library joins from the library's own
+/// texts, each made the first time a site needs it and then lent to every term that uses
+/// it: the sources run to hundreds of bytes and were copied into every term (callgrind over
+/// MOSES molecules: a few thousand instructions a molecule to build and free them). Each
+/// slot stands for one class and/or one entry, whose texts cannot change, so what a slot
+/// holds does not depend on which site made it.
+struct BuiltinTexts {
+    classes: usize,
+    entries: usize,
+    /// Per class: `parent: {name}`.
+    parent_label: Vec<OnceLock<Box<str>>>,
+    /// Per class: where its parent value comes from.
+    parent_source: Vec<OnceLock<Box<str>>>,
+    /// Per class: the source of its ortho correction.
+    ortho_source: Vec<OnceLock<Box<str>>>,
+    /// Per class: `statistical factor {factor}`.
+    statistical_label: Vec<OnceLock<Box<str>>>,
+    /// Per class and [`Counted`] kind: the source of the class correction.
+    counted_source: Vec<OnceLock<Box<str>>>,
+    /// Per class and entry: the source of a substituent term (sigma and rho).
+    substituent_source: Vec<OnceLock<Box<str>>>,
+    /// Per entry: [`cite`].
+    cite: Vec<OnceLock<Box<str>>>,
+    /// Per ring number below [`NUMBERED_KEPT`] and entry: [`numbered`].
+    numbered: Vec<OnceLock<Box<str>>>,
+    /// Per ring number below [`NUMBERED_KEPT`] and entry: the ortho correction's label.
+    ortho_label: Vec<OnceLock<Box<str>>>,
+}
+
+static BUILTIN_TEXTS: Lazy<BuiltinTexts> = Lazy::new(|| {
+    let library = Library::builtin();
+    let (classes, entries) = (library.classes.len(), library.substituents.len());
+    let slots = |n: usize| (0..n).map(|_| OnceLock::new()).collect();
+    BuiltinTexts {
+        classes,
+        entries,
+        parent_label: slots(classes),
+        parent_source: slots(classes),
+        ortho_source: slots(classes),
+        statistical_label: slots(classes),
+        counted_source: slots(classes * COUNTED_KINDS),
+        substituent_source: slots(classes * entries),
+        cite: slots(entries),
+        numbered: slots(NUMBERED_KEPT * entries),
+        ortho_label: slots(NUMBERED_KEPT * entries),
+    }
+});
+
+/// Where the texts of one site's terms come from: kept ones for the built-in library,
+/// fresh copies for any other.
+#[derive(Clone, Copy)]
+struct Texts {
+    builtin: Option<&'static BuiltinTexts>,
+    /// The site's class.
+    class: usize,
+}
+
+impl Texts {
+    fn new(library: &Library, class: usize) -> Texts {
+        let builtin = std::ptr::eq(library, Library::builtin()).then(|| &*BUILTIN_TEXTS);
+        Texts {
+            builtin: builtin.filter(|t| class < t.classes),
+            class,
+        }
+    }
+
+    /// The text kept in the slot `slot` picks (made by `make` the first time), or `make`'s
+    /// text where there is no such slot.
+    fn kept(
+        &self,
+        slot: impl FnOnce(&'static BuiltinTexts) -> Option<&'static OnceLock<Box<str>>>,
+        make: impl FnOnce() -> String,
+    ) -> Text {
+        match self.builtin.and_then(slot) {
+            Some(cell) => Cow::Borrowed(&**cell.get_or_init(|| make().into_boxed_str())),
+            None => Cow::Owned(make()),
+        }
+    }
+
+    /// Index of `entry` in the built-in library, when scoring with it.
+    fn entry(&self, entry: &SubstituentEntry) -> Option<usize> {
+        self.builtin?;
+        let list = &Library::builtin().substituents;
+        let offset =
+            (entry as *const SubstituentEntry as usize).checked_sub(list.as_ptr() as usize)?;
+        let i = offset / std::mem::size_of::<SubstituentEntry>().max(1);
+        (i < list.len() && std::ptr::eq(&list[i], entry)).then_some(i)
+    }
+
+    fn parent_label(&self, class: &SiteClass) -> Text {
+        self.kept(
+            |t| t.parent_label.get(self.class),
+            || concat(&["parent: ", &class.name]),
+        )
+    }
+
+    fn parent_source(&self, source: &str) -> Text {
+        self.kept(|t| t.parent_source.get(self.class), || source.to_string())
+    }
+
+    fn ortho_source(&self, rho_source: &str) -> Text {
+        self.kept(
+            |t| t.ortho_source.get(self.class),
+            || concat(&["ortho term of the class: ", rho_source]),
+        )
+    }
+
+    fn statistical_label(&self, factor: f64) -> Text {
+        self.kept(
+            |t| t.statistical_label.get(self.class),
+            || format!("statistical factor {factor}"),
+        )
+    }
+
+    /// The source of a class correction; `make` writes it (from the class's constants).
+    fn counted_source(&self, what: Counted, make: impl FnOnce() -> String) -> Text {
+        let slot = counted_slot(what);
+        self.kept(
+            |t| {
+                (slot < COUNTED_KINDS)
+                    .then(|| t.counted_source.get(self.class * COUNTED_KINDS + slot))
+                    .flatten()
+            },
+            make,
+        )
+    }
+
+    fn substituent_source(&self, entry: &SubstituentEntry, rho_source: &str) -> Text {
+        let i = self.entry(entry);
+        self.kept(
+            |t| t.substituent_source.get(self.class * t.entries + i?),
+            || {
+                concat(&[
+                    "sigma: ",
+                    &entry.source,
+                    if entry.from_memory {
+                        " (from memory)"
+                    } else {
+                        ""
+                    },
+                    "; rho: ",
+                    rho_source,
+                ])
+            },
+        )
+    }
+
+    fn cite(&self, entry: &SubstituentEntry) -> Text {
+        let i = self.entry(entry);
+        self.kept(|t| t.cite.get(i?), || cite(entry))
+    }
+
+    /// The entry's name, as the label of a chain substituent.
+    fn name(&self, entry: &SubstituentEntry) -> Text {
+        match self.entry(entry) {
+            Some(i) => Cow::Borrowed(&Library::builtin().substituents[i].name),
+            None => Cow::Owned(entry.name.clone()),
+        }
+    }
+
+    /// [`numbered`]: the entry named by its ring position.
+    fn numbered(&self, number: usize, entry: &SubstituentEntry) -> Text {
+        let i = self.entry(entry);
+        self.kept(
+            |t| {
+                t.numbered
+                    .get((number < NUMBERED_KEPT).then_some(number * t.entries + i?)?)
+            },
+            || numbered(number, &entry.name),
+        )
+    }
+
+    /// The label of the ortho correction for the entry at ring position `number`, whose
+    /// numbered name is `name`.
+    fn ortho_label(&self, number: usize, entry: &SubstituentEntry, name: &str) -> Text {
+        let i = self.entry(entry);
+        self.kept(
+            |t| {
+                t.ortho_label
+                    .get((number < NUMBERED_KEPT).then_some(number * t.entries + i?)?)
+            },
+            || concat(&["ortho correction (", name, ")"]),
+        )
+    }
+}
+
 /// Terms a site's list is first given room for, so that most sites never move theirs.
 /// Measured with callgrind over the MOSES sample: 7 cost least; 8 makes a block large
 /// enough that the system allocator sorts its free lists on every site.
@@ -319,6 +538,8 @@ const TERMS_RESERVED: usize = 7;
 struct Account<'l> {
     /// Where the class's rho comes from, cited beside each sigma.
     rho_source: &'l str,
+    /// Where the texts of the terms come from.
+    texts: Texts,
     terms: Vec<Term>,
     warnings: Vec<String>,
     approximate: usize,
@@ -327,26 +548,16 @@ struct Account<'l> {
 impl Account<'_> {
     fn substituent(
         &mut self,
-        label: String,
+        label: Text,
         sigma: f64,
         rho: f64,
-        position: String,
+        position: Text,
         entry: &SubstituentEntry,
     ) {
         self.terms.push(Term {
             label,
             contribution: -rho * sigma,
-            source: concat(&[
-                "sigma: ",
-                &entry.source,
-                if entry.from_memory {
-                    " (from memory)"
-                } else {
-                    ""
-                },
-                "; rho: ",
-                self.rho_source,
-            ]),
+            source: self.texts.substituent_source(entry, self.rho_source),
             sigma: Some(sigma),
             rho: Some(rho),
             position: Some(position),
@@ -368,17 +579,19 @@ fn cite(entry: &SubstituentEntry) -> String {
 fn score_one(library: &Library, matcher: &mut Matcher<'_>, found: &FoundSite) -> Site {
     let class = &library.classes[found.class];
     let k = constants(library, found.class);
+    let texts = Texts::new(library, found.class);
     let mut account = Account {
         rho_source: &k.rho_source,
+        texts,
         // Room for the terms of a typical site, so that they are not moved as they come.
         terms: Vec::with_capacity(TERMS_RESERVED),
         warnings: Vec::new(),
         approximate: 0,
     };
     account.terms.push(Term {
-        label: concat(&["parent: ", &class.name]),
+        label: texts.parent_label(class),
         contribution: k.parent,
-        source: String::from(&*k.parent_source),
+        source: texts.parent_source(&k.parent_source),
         sigma: None,
         rho: None,
         position: None,
@@ -409,9 +622,9 @@ fn score_one(library: &Library, matcher: &mut Matcher<'_>, found: &FoundSite) ->
             Kind::Base => 1.0,
         };
         account.terms.push(Term {
-            label: format!("statistical factor {}", class.statistical_factor),
+            label: texts.statistical_label(class.statistical_factor),
             contribution: sign * class.statistical_factor.log10(),
-            source: "statistical factor of the class (common practice)".into(),
+            source: Cow::Borrowed("statistical factor of the class (common practice)"),
             sigma: None,
             rho: None,
             position: None,
@@ -583,7 +796,7 @@ fn hammett(
                 pos,
                 class.scale,
                 k.rho,
-                numbered(number, &entry.name),
+                account.texts.numbered(number, entry),
                 false,
             );
         }
@@ -633,7 +846,7 @@ fn hammett(
                         pos,
                         class.scale,
                         k.rho,
-                        numbered(number, &entry.name),
+                        account.texts.numbered(number, entry),
                         false,
                     ),
                     None => account
@@ -659,7 +872,7 @@ fn hammett(
                     if ortho && r.entry.walk {
                         ortho_alkyl += 1;
                     }
-                    let name = numbered(number, &r.entry.name);
+                    let name = account.texts.numbered(number, r.entry);
                     if ortho {
                         if let Some((s_i, _)) = sigma_inductive(r.entry) {
                             ortho_field += s_i;
@@ -673,12 +886,12 @@ fn hammett(
                     // Built before the name moves into the substituent's term; listed after
                     // it.
                     let correction = (ortho && k.ortho_term != 0.0).then(|| Term {
-                        label: concat(&["ortho correction (", &name, ")"]),
+                        label: account.texts.ortho_label(number, r.entry, &name),
                         contribution: k.ortho_term,
-                        source: concat(&["ortho term of the class: ", &k.rho_source]),
+                        source: account.texts.ortho_source(&k.rho_source),
                         sigma: None,
                         rho: None,
-                        position: Some("ortho".into()),
+                        position: Some(Cow::Borrowed("ortho")),
                         role: TermRole::Correction,
                         ortho_substituent: false,
                         counted: None,
@@ -812,23 +1025,28 @@ fn hammett(
 fn push_coefficient_term(
     account: &mut Account,
     what: Counted,
-    label: String,
-    position: &str,
+    label: Text,
+    position: &'static str,
     on: &str,
     sum: f64,
     per: f64,
 ) {
+    let rho_source = account.rho_source;
     account.terms.push(Term {
         label,
         contribution: per * sum,
         source: if per == 0.0 {
-            "class correction, not calibrated for this class (0)".into()
+            Cow::Borrowed("class correction, not calibrated for this class (0)")
         } else {
-            concat(&["class coefficient on ", on, ": ", account.rho_source])
+            // The text depends on the class (its coefficient's source) and on `what`
+            // alone: each kind is always scored on the same scale `on`.
+            account.texts.counted_source(what, || {
+                concat(&["class coefficient on ", on, ": ", rho_source])
+            })
         },
         sigma: Some(sum),
         rho: Some(-per),
-        position: Some(position.into()),
+        position: Some(Cow::Borrowed(position)),
         role: TermRole::Correction,
         ortho_substituent: false,
         counted: Some((what, sum)),
@@ -925,7 +1143,7 @@ fn fused_ring_substituents(
         push_coefficient_term(
             account,
             what,
-            concat(&[label, &groups[i], ")"]),
+            concat(&[label, &groups[i], ")"]).into(),
             position,
             on,
             sum[i],
@@ -941,7 +1159,7 @@ fn push_ortho_sum(
     what: Counted,
     part: &str,
     on: &str,
-    position: &str,
+    position: &'static str,
     sum: f64,
     groups: &str,
     per: f64,
@@ -949,7 +1167,7 @@ fn push_ortho_sum(
     if groups.is_empty() {
         return;
     }
-    let label = concat(&["ortho ", part, " (", groups, ")"]);
+    let label = Cow::Owned(concat(&["ortho ", part, " (", groups, ")"]));
     push_coefficient_term(account, what, label, position, on, sum, per);
 }
 
@@ -978,12 +1196,16 @@ fn push_counted(account: &mut Account, what: Counted, count: usize, per: f64, la
         return;
     }
     account.terms.push(Term {
-        label: concat(&[decimal(count, &mut [0; 20]), " x ", label]),
+        label: Cow::Owned(concat(&[decimal(count, &mut [0; 20]), " x ", label])),
         contribution: per * count as f64,
         source: if per == 0.0 {
-            "class correction, not calibrated for this class (0)".into()
+            Cow::Borrowed("class correction, not calibrated for this class (0)")
         } else {
-            format!("class correction {per:+.2} each: {}", account.rho_source)
+            // `per` is the class's value for `what`: the slot fixes it.
+            let rho_source = account.rho_source;
+            account.texts.counted_source(what, || {
+                format!("class correction {per:+.2} each: {rho_source}")
+            })
         },
         sigma: None,
         rho: None,
@@ -1000,18 +1222,14 @@ fn push_hammett(
     pos: Position,
     scale: Scale,
     rho: f64,
-    label: String,
+    label: Text,
     ortho_substituent: bool,
 ) {
     match hammett_sigma(entry, pos, scale) {
         Some((sigma, which)) => {
-            let position = if pos == Position::Ortho {
-                // The method's ortho treatment: sigma-para stands in for the ortho constant,
-                // and the class's ortho term (added separately) carries the proximity effect.
-                concat(&["ortho (", which, " as ortho)"])
-            } else {
-                concat(&[pos.name(), " (", which, ")"])
-            };
+            // The method's ortho treatment: sigma-para stands in for the ortho constant, and
+            // the class's ortho term (added separately) carries the proximity effect.
+            let position = hammett_position(pos, which);
             account.substituent(label, sigma, rho, position, entry);
             if let Some(t) = account.terms.last_mut() {
                 t.ortho_substituent = ortho_substituent;
@@ -1025,6 +1243,27 @@ fn push_hammett(
             ));
         }
     }
+}
+
+/// The position text of a Hammett term: `ortho (sigma_p as ortho)`, `meta (sigma_m)`...
+/// for the constant `which` (one of [`hammett_sigma`]'s names).
+fn hammett_position(pos: Position, which: &'static str) -> Text {
+    Cow::Borrowed(match (pos, which) {
+        (Position::Ortho, "sigma_p") => "ortho (sigma_p as ortho)",
+        (Position::Ortho, "sigma_p-") => "ortho (sigma_p- as ortho)",
+        (Position::Ortho, "sigma_p+") => "ortho (sigma_p+ as ortho)",
+        (Position::Ortho, "sigma_m") => "ortho (sigma_m as ortho)",
+        (Position::Meta, "sigma_m") => "meta (sigma_m)",
+        (Position::Meta, "sigma_p") => "meta (sigma_p)",
+        (Position::Meta, "sigma_p-") => "meta (sigma_p-)",
+        (Position::Meta, "sigma_p+") => "meta (sigma_p+)",
+        (Position::Para, "sigma_p") => "para (sigma_p)",
+        (Position::Para, "sigma_p-") => "para (sigma_p-)",
+        (Position::Para, "sigma_p+") => "para (sigma_p+)",
+        (Position::Para, "sigma_m") => "para (sigma_m)",
+        (Position::Ortho, _) => return Cow::Owned(concat(&["ortho (", which, " as ortho)"])),
+        _ => return Cow::Owned(concat(&[pos.name(), " (", which, ")"])),
+    })
 }
 
 /// The inductive constant of an entry and whether it was derived: Charton's tabulated
@@ -1045,18 +1284,18 @@ fn sigma_inductive(entry: &SubstituentEntry) -> Option<(f64, bool)> {
 }
 
 /// An ortho substituent beside a ring-member site, scored by its inductive constant.
-fn push_ortho_inductive(account: &mut Account, entry: &SubstituentEntry, rho: f64, label: String) {
+fn push_ortho_inductive(account: &mut Account, entry: &SubstituentEntry, rho: f64, label: Text) {
     match sigma_inductive(entry) {
         Some((sigma, derived)) => {
             account.substituent(
                 label,
                 sigma,
                 rho,
-                if derived {
-                    "ortho (sigma_I = (3 sigma_m - sigma_p) / 2)".into()
+                Cow::Borrowed(if derived {
+                    "ortho (sigma_I = (3 sigma_m - sigma_p) / 2)"
                 } else {
-                    "ortho (sigma_I)".into()
-                },
+                    "ortho (sigma_I)"
+                }),
                 entry,
             );
             if let Some(t) = account.terms.last_mut() {
@@ -1106,6 +1345,20 @@ fn derived_label(entry: &SubstituentEntry) -> &'static str {
         " (sigma* from sigma_I = 0.45 sigma*(XCH2))"
     } else {
         " (sigma* from sigma_I = (3 sigma_m - sigma_p) / 2, sigma_I = 0.45 sigma*(XCH2))"
+    }
+}
+
+/// The position text of a chain term `depth` saturated carbons out (`1 bond`, `2 bonds`...),
+/// with how its sigma* was derived where it was.
+fn taft_position(depth: usize, derived: Option<&'static str>) -> Text {
+    const PLAIN: [&str; 5] = ["1 bond", "2 bonds", "3 bonds", "4 bonds", "5 bonds"];
+    match (PLAIN.get(depth), derived) {
+        (Some(&plain), None) => Cow::Borrowed(plain),
+        _ => Cow::Owned(concat(&[
+            decimal(depth + 1, &mut [0; 20]),
+            if depth == 0 { " bond" } else { " bonds" },
+            derived.unwrap_or(""),
+        ])),
     }
 }
 
@@ -1174,22 +1427,31 @@ fn taft(
     if anchor != found.atom {
         let h = molecule.total_hydrogens(anchor);
         if h > 0 {
+            let texts = account.texts;
             let (sigma, source) = match entry_by_id(library, "hydrogen")
-                .and_then(|e| e.sigma_star.map(|s| (s, cite(e))))
+                .and_then(|e| e.sigma_star.map(|s| (s, texts.cite(e))))
             {
                 Some(x) => x,
                 None => (
                     SIGMA_STAR_H,
-                    "Taft 1956, sigma*(H) = 0.49 (from memory)".to_string(),
+                    Cow::Borrowed("Taft 1956, sigma*(H) = 0.49 (from memory)"),
                 ),
             };
             account.terms.push(Term {
-                label: concat(&[decimal(h, &mut [0; 20]), " H on the reaction centre"]),
+                label: match h {
+                    1 => Cow::Borrowed("1 H on the reaction centre"),
+                    2 => Cow::Borrowed("2 H on the reaction centre"),
+                    3 => Cow::Borrowed("3 H on the reaction centre"),
+                    _ => Cow::Owned(concat(&[
+                        decimal(h, &mut [0; 20]),
+                        " H on the reaction centre",
+                    ])),
+                },
                 contribution: -k.rho * sigma * h as f64,
                 source,
                 sigma: Some(sigma * h as f64),
                 rho: Some(k.rho),
-                position: Some("1 bond".into()),
+                position: Some(Cow::Borrowed("1 bond")),
                 role: TermRole::Substituent,
                 ortho_substituent: false,
                 counted: None,
@@ -1268,10 +1530,11 @@ fn taft(
                 let s = methyl.and_then(|e| e.sigma_star_ch2).unwrap_or(-0.10)
                     * TAFT_FALLOFF.powi(depth as i32 - 1);
                 alkyl += s;
+                let texts = account.texts;
                 alkyl_source.get_or_insert_with(|| {
-                    methyl
-                        .map(cite)
-                        .unwrap_or_else(|| "Taft 1956, sigma*(CH3CH2) = -0.10 (from memory)".into())
+                    methyl.map(|e| texts.cite(e)).unwrap_or(Cow::Borrowed(
+                        "Taft 1956, sigma*(CH3CH2) = -0.10 (from memory)",
+                    ))
                 });
             }
             if depth + 1 <= TAFT_MAX_DEPTH {
@@ -1307,14 +1570,10 @@ fn taft(
         }
         match taft_sigma(r.entry, depth) {
             Some((sigma, derived)) => account.substituent(
-                r.entry.name.clone(),
+                account.texts.name(r.entry),
                 sigma,
                 k.rho,
-                concat(&[
-                    decimal(depth + 1, &mut [0; 20]),
-                    if depth == 0 { " bond" } else { " bonds" },
-                    if derived { derived_label(r.entry) } else { "" },
-                ]),
+                taft_position(depth, derived.then(|| derived_label(r.entry))),
                 r.entry,
             ),
             None => {
@@ -1327,12 +1586,12 @@ fn taft(
     }
     if alkyl != 0.0 {
         account.terms.push(Term {
-            label: "alkyl branches along the chain".into(),
+            label: Cow::Borrowed("alkyl branches along the chain"),
             contribution: -k.rho * alkyl,
             source: alkyl_source.unwrap_or_default(),
             sigma: Some(alkyl),
             rho: Some(k.rho),
-            position: Some("2 bonds and beyond".into()),
+            position: Some(Cow::Borrowed("2 bonds and beyond")),
             role: TermRole::Substituent,
             ortho_substituent: false,
             counted: None,
@@ -1345,7 +1604,7 @@ fn taft(
         push_coefficient_term(
             account,
             Counted::AlkylBranch,
-            "solvation offset of the alkyl branches".into(),
+            Cow::Borrowed("solvation offset of the alkyl branches"),
             "2 bonds and beyond",
             "the alkyl sigma*",
             alkyl,

@@ -259,9 +259,18 @@ pub(crate) fn analyze(library: &model::Library, input: &str) -> Result<Analysis,
             .collect();
         &copied
     };
-    let w = model::interactions(library, &parent, coupled);
+    let mut w = model::interactions(library, &parent, coupled);
     let nw = window.len();
-    let interaction: Vec<Vec<f64>> = w[..nw].iter().map(|row| row[..nw].to_vec()).collect();
+    // Fixed charges shift the window's sites (both charged: w > 0 for like charges).
+    let shifts: Vec<f64> = (0..nw)
+        .map(|k| (nw..coupled.len()).map(|j| w[k][j]).sum())
+        .collect();
+    // Without fixed sites (the common case) the matrix is the window's as it is.
+    let interaction: Vec<Vec<f64>> = if nw == w.len() {
+        std::mem::take(&mut w)
+    } else {
+        w[..nw].iter().map(|row| row[..nw].to_vec()).collect()
+    };
     let fixed_charge: i32 = fixed
         .iter()
         .map(|&i| {
@@ -280,9 +289,8 @@ pub(crate) fn analyze(library: &model::Library, input: &str) -> Result<Analysis,
             .enumerate()
             .map(|(k, &i)| {
                 let s = &sites[i];
-                // Both charged: w > 0 for like charges; an acid's pKa rises by w, a base's
-                // falls by w.
-                let shift: f64 = (nw..coupled.len()).map(|j| w[k][j]).sum();
+                // An acid's pKa rises by the shift, a base's falls by it.
+                let shift = shifts[k];
                 speciation::SiteInput {
                     kind: match s.kind {
                         model::Kind::Acid => speciation::Kind::Acid,

@@ -130,8 +130,16 @@ impl Group {
         let n = self.len();
         debug_assert!(n < 32);
         let mut acc = vec![Accumulator::new(); n + 1];
-        let mut heaps: Vec<BinaryHeap<Candidate>> =
-            vec![BinaryHeap::with_capacity(keep + 1); n + 1];
+        let total: u64 = 1u64 << n;
+        // With no more states than are kept, every one is kept: one list, no heaps (the
+        // common case of a few sites). The reader sorts them, so their order is free.
+        let keep_all = total <= keep as u64;
+        let mut all: Vec<Candidate> = Vec::with_capacity(if keep_all { total as usize } else { 0 });
+        let mut heaps: Vec<BinaryHeap<Candidate>> = if keep_all {
+            Vec::new()
+        } else {
+            vec![BinaryHeap::with_capacity(keep + 1); n + 1]
+        };
         // Local fields: change of log weight when site i goes from neutral to charged, given
         // the other sites; a base going charged also regains the proton its neutral form
         // had lost, which `state_log_weight` books as +pKa.
@@ -144,19 +152,25 @@ impl Group {
         let mut mask: u32 = 0;
         let mut lw = self.state_log_weight(0);
         let mut lost = self.lost(0);
-        let total: u64 = 1u64 << n;
         let mut k: u64 = 0;
         loop {
             acc[lost].push(lw);
-            let heap = &mut heaps[lost];
-            if heap.len() < keep {
+            if keep_all {
+                all.push(Candidate {
+                    mask,
+                    log_w: lw,
+                    lost,
+                });
+            } else if heaps[lost].len() < keep {
+                let heap = &mut heaps[lost];
                 heap.push(Candidate {
                     mask,
                     log_w: lw,
                     lost,
                 });
-            } else if let Some(weakest) = heap.peek() {
+            } else if let Some(weakest) = heaps[lost].peek() {
                 if lw > weakest.log_w {
+                    let heap = &mut heaps[lost];
                     heap.pop();
                     heap.push(Candidate {
                         mask,
@@ -209,7 +223,11 @@ impl Group {
             }
         }
         let log_g = acc.iter().map(Accumulator::log10).collect();
-        let candidates = heaps.into_iter().flat_map(BinaryHeap::into_vec).collect();
+        let candidates = if keep_all {
+            all
+        } else {
+            heaps.into_iter().flat_map(BinaryHeap::into_vec).collect()
+        };
         Table { log_g, candidates }
     }
 }

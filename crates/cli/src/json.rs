@@ -1,0 +1,390 @@
+//! JSON Lines records written directly, byte for byte what `serde_json::to_writer` writes
+//! for the derived `Serialize` of [`Record`] (field order, `null`s, the skipped term fields,
+//! number formatting), without going through serde.
+//!
+//! Why: a record runs to a few kilobytes, most of it the source texts of its terms, and
+//! serde_json looks up every byte of every string in its escape table. Callgrind over 2,000
+//! MOSES molecules put that at about 44,000 instructions a molecule, a sixth of the whole
+//! `predict`. Here strings are checked eight bytes at a time and copied whole when nothing
+//! in them needs escaping (nearly always); a string that does is handed to serde_json, as
+//! are all floating-point numbers, so the text cannot drift from what serde_json writes.
+//! The tests compare the two on real records.
+
+use std::borrow::Cow;
+use std::cell::RefCell;
+
+use pkarta::model::{Kind, Term};
+use pkarta::{Record, SiteReport, SpeciesReport};
+use serde::Serializer as _;
+use serde_json::ser::Formatter as _;
+
+/// Appends `record` as one line of JSON (without the line end).
+pub fn write_record(out: &mut Vec<u8>, record: &Record) {
+    out.extend_from_slice(b"{\"input\":");
+    string(out, &record.input);
+    out.extend_from_slice(b",\"id\":");
+    opt_string(out, record.id.as_deref());
+    out.extend_from_slice(b",\"smiles\":");
+    opt_string(out, record.smiles.as_deref());
+    out.extend_from_slice(b",\"sites\":");
+    sites(out, &record.sites);
+    out.extend_from_slice(b",\"sites_outside_window\":");
+    sites(out, &record.sites_outside_window);
+    out.extend_from_slice(b",\"macro_pka\":[");
+    for (i, &p) in record.macro_pka.iter().enumerate() {
+        if i > 0 {
+            out.push(b',');
+        }
+        float(out, p);
+    }
+    out.extend_from_slice(b"],\"ph\":");
+    float(out, record.ph);
+    out.extend_from_slice(b",\"charge_at_ph\":");
+    opt_float(out, record.charge_at_ph);
+    out.extend_from_slice(b",\"species\":[");
+    for (i, sp) in record.species.iter().enumerate() {
+        if i > 0 {
+            out.push(b',');
+        }
+        species(out, sp);
+    }
+    out.extend_from_slice(b"],\"isoelectric_point\":");
+    opt_float(out, record.isoelectric_point);
+    out.extend_from_slice(b",\"warnings\":[");
+    for (i, w) in record.warnings.iter().enumerate() {
+        if i > 0 {
+            out.push(b',');
+        }
+        string(out, w);
+    }
+    out.extend_from_slice(b"],\"error\":");
+    match &record.error {
+        Some(e) => {
+            out.extend_from_slice(b"{\"message\":");
+            string(out, &e.message);
+            out.push(b'}');
+        }
+        None => out.extend_from_slice(b"null"),
+    }
+    out.push(b'}');
+}
+
+fn sites(out: &mut Vec<u8>, sites: &[SiteReport]) {
+    out.push(b'[');
+    for (i, s) in sites.iter().enumerate() {
+        if i > 0 {
+            out.push(b',');
+        }
+        out.extend_from_slice(b"{\"atom\":");
+        unsigned(out, s.atom as u64);
+        out.extend_from_slice(match s.kind {
+            Kind::Acid => b",\"kind\":\"acid\",\"pka\":",
+            Kind::Base => b",\"kind\":\"base\",\"pka\":",
+        });
+        float(out, s.pka);
+        out.extend_from_slice(b",\"uncertainty\":");
+        float(out, s.uncertainty);
+        out.extend_from_slice(b",\"group\":");
+        unsigned(out, s.group as u64);
+        out.extend_from_slice(b",\"class\":");
+        string(out, &s.class);
+        out.extend_from_slice(b",\"class_name\":");
+        string(out, &s.class_name);
+        out.extend_from_slice(b",\"terms\":[");
+        for (j, t) in s.terms.iter().enumerate() {
+            if j > 0 {
+                out.push(b',');
+            }
+            term(out, t);
+        }
+        out.extend_from_slice(b"]}");
+    }
+    out.push(b']');
+}
+
+fn term(out: &mut Vec<u8>, t: &Term) {
+    out.extend_from_slice(b"{\"label\":");
+    text(out, &t.label);
+    out.extend_from_slice(b",\"contribution\":");
+    float(out, t.contribution);
+    out.extend_from_slice(b",\"source\":");
+    text(out, &t.source);
+    // As `skip_serializing_if = "Option::is_none"` on the type.
+    if let Some(sigma) = t.sigma {
+        out.extend_from_slice(b",\"sigma\":");
+        float(out, sigma);
+    }
+    if let Some(rho) = t.rho {
+        out.extend_from_slice(b",\"rho\":");
+        float(out, rho);
+    }
+    if let Some(position) = &t.position {
+        out.extend_from_slice(b",\"position\":");
+        text(out, position);
+    }
+    out.push(b'}');
+}
+
+fn species(out: &mut Vec<u8>, sp: &SpeciesReport) {
+    out.extend_from_slice(b"{\"smiles\":");
+    string(out, &sp.smiles);
+    out.extend_from_slice(b",\"charge\":");
+    if sp.charge < 0 {
+        out.push(b'-');
+    }
+    unsigned(out, u64::from(sp.charge.unsigned_abs()));
+    out.extend_from_slice(b",\"fraction\":");
+    float(out, sp.fraction);
+    out.push(b'}');
+}
+
+fn opt_string(out: &mut Vec<u8>, s: Option<&str>) {
+    match s {
+        Some(s) => string(out, s),
+        None => out.extend_from_slice(b"null"),
+    }
+}
+
+fn opt_float(out: &mut Vec<u8>, x: Option<f64>) {
+    match x {
+        Some(x) => float(out, x),
+        None => out.extend_from_slice(b"null"),
+    }
+}
+
+/// A number as serde_json writes an `f64`: `null` when not finite, else its shortest
+/// round-trip form, by serde_json's own formatter.
+fn float(out: &mut Vec<u8>, x: f64) {
+    if !x.is_finite() {
+        out.extend_from_slice(b"null");
+        return;
+    }
+    // The same few hundred values (rho and sigma of the library's classes and entries,
+    // parent values, uncertainties, the pH) come back in record after record: their text,
+    // as serde_json's formatter wrote it, is kept per thread in a small table by bit pattern.
+    const SLOTS: usize = 512;
+    thread_local! {
+        static WRITTEN: RefCell<Vec<(u64, u8, [u8; 24])>> = const { RefCell::new(Vec::new()) };
+    }
+    let bits = x.to_bits();
+    let slot = (bits.wrapping_mul(0x9e37_79b9_7f4a_7c15) >> 40) as usize % SLOTS;
+    WRITTEN.with(|written| {
+        let mut written = written.borrow_mut();
+        if written.is_empty() {
+            // No finite number has the bits of this NaN: the empty slots match nothing.
+            written.resize(SLOTS, (f64::NAN.to_bits(), 0, [0; 24]));
+        }
+        let (key, len, text) = &mut written[slot];
+        if *key == bits {
+            out.extend_from_slice(&text[..usize::from(*len)]);
+            return;
+        }
+        let start = out.len();
+        // Writing to a Vec cannot fail.
+        let _ = serde_json::ser::CompactFormatter.write_f64(out, x);
+        let new = &out[start..];
+        if new.len() <= text.len() {
+            text[..new.len()].copy_from_slice(new);
+            *len = new.len() as u8;
+            *key = bits;
+        }
+    });
+}
+
+/// An integer in decimal, as `itoa` (and so serde_json) writes it.
+fn unsigned(out: &mut Vec<u8>, mut n: u64) {
+    let mut buf = [0u8; 20];
+    let mut i = buf.len();
+    loop {
+        i -= 1;
+        buf[i] = b'0' + (n % 10) as u8;
+        n /= 10;
+        if n == 0 {
+            break;
+        }
+    }
+    out.extend_from_slice(&buf[i..]);
+}
+
+/// A term's text. Texts lent for the life of the program (the built-in library's, see
+/// `model::Text`) never change, so each is checked for escapes once per thread: a small
+/// table keyed by where the text lies remembers those found clean. Term sources are
+/// hundreds of bytes, and the same few hundred of them come back in every batch.
+fn text(out: &mut Vec<u8>, t: &Cow<'static, str>) {
+    let Cow::Borrowed(s) = t else {
+        return string(out, t);
+    };
+    const SLOTS: usize = 1024;
+    thread_local! {
+        static CLEAN: RefCell<Vec<(usize, usize)>> = const { RefCell::new(Vec::new()) };
+    }
+    let key = (s.as_ptr() as usize, s.len());
+    let slot = (key.0 >> 3 ^ key.0 >> 13 ^ key.1) % SLOTS;
+    let known = CLEAN.with(|clean| {
+        let mut clean = clean.borrow_mut();
+        if clean.is_empty() {
+            clean.resize(SLOTS, (0, 0));
+        }
+        if clean[slot] == key {
+            return true;
+        }
+        if needs_escape(s.as_bytes()) {
+            return false;
+        }
+        clean[slot] = key;
+        true
+    });
+    if known {
+        out.reserve(s.len() + 2);
+        out.push(b'"');
+        out.extend_from_slice(s.as_bytes());
+        out.push(b'"');
+    } else {
+        string(out, s);
+    }
+}
+
+/// A JSON string: copied whole between quotes when no byte of it needs escaping, else
+/// written by serde_json.
+fn string(out: &mut Vec<u8>, s: &str) {
+    if needs_escape(s.as_bytes()) {
+        // Writing to a Vec cannot fail.
+        let _ = (&mut serde_json::Serializer::new(&mut *out)).serialize_str(s);
+        return;
+    }
+    out.reserve(s.len() + 2);
+    out.push(b'"');
+    out.extend_from_slice(s.as_bytes());
+    out.push(b'"');
+}
+
+/// Whether any byte is one JSON escapes: a control character (below 0x20), `"` or `\`.
+///
+/// # Reference
+///
+/// The word-at-a-time byte tests ("determine if a word has a zero byte", "has a byte less
+/// than n") of S. E. Anderson, *Bit Twiddling Hacks*, Stanford (from memory): exact for the
+/// question whether any byte matches, which is all that is asked here.
+fn needs_escape(bytes: &[u8]) -> bool {
+    const ONES: u64 = 0x0101_0101_0101_0101;
+    const HIGH: u64 = 0x8080_8080_8080_8080;
+    // The top bit of each byte that is below 0x20, `"` or `\` (and perhaps of bytes after
+    // such a byte, through the borrow: never without one).
+    let marks = |w: u64| {
+        let quote = w ^ (ONES * u64::from(b'"'));
+        let backslash = w ^ (ONES * u64::from(b'\\'));
+        (w.wrapping_sub(ONES * 0x20) & !w)
+            | (quote.wrapping_sub(ONES) & !quote)
+            | (backslash.wrapping_sub(ONES) & !backslash)
+    };
+    let word = |b: &[u8]| {
+        let mut w = [0u8; 8];
+        w.copy_from_slice(b);
+        u64::from_le_bytes(w)
+    };
+    // Two words a step and one test of both: strings here are mostly long and clean.
+    let mut chunks = bytes.chunks_exact(16);
+    for chunk in &mut chunks {
+        if (marks(word(&chunk[..8])) | marks(word(&chunk[8..]))) & HIGH != 0 {
+            return true;
+        }
+    }
+    chunks
+        .remainder()
+        .iter()
+        .any(|&b| b < 0x20 || b == b'"' || b == b'\\')
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn check(record: &Record) {
+        let mut ours = Vec::new();
+        write_record(&mut ours, record);
+        let theirs = serde_json::to_vec(record).unwrap();
+        assert_eq!(
+            String::from_utf8_lossy(&ours),
+            String::from_utf8_lossy(&theirs)
+        );
+    }
+
+    #[test]
+    fn records_are_written_as_serde_json_writes_them() {
+        let options = pkarta::Options::default();
+        // Sites in and out of the window, zwitterions, a salt, a permanent charge, terms with
+        // and without sigma/rho/position, warnings, SMILES with backslashes, a parse error
+        // whose message runs over several lines, an empty input and non-ASCII text.
+        for (smiles, id) in [
+            ("NCC(=O)O", Some("glycine")),
+            ("OC(=O)c1ccc(cc1)[N+](=O)[O-]", None),
+            ("CC[NH+](CC)CC.[Cl-]", Some("a \"quoted\" name\twith a tab")),
+            ("OS(=O)(=O)c1ccccc1", None),
+            ("C[N+](C)(C)CC(=O)O", None),
+            ("F/C=C\\C(=O)O", Some("back\\slash")),
+            ("NCCCC(N)C(=O)O", Some("é ü 中")),
+            ("CC(C)(C)C(=O)O", None),
+            ("c1ccncc1", None),
+            ("C1CC", Some("unclosed ring")),
+            ("", None),
+            ("Oc1ccc(Cl)cc1C(F)(F)F", None),
+        ] {
+            check(&pkarta::estimate(smiles, id, &options));
+        }
+        let mut record = pkarta::estimate("CC(=O)O", None, &options);
+        record.charge_at_ph = Some(f64::NAN);
+        record.isoelectric_point = Some(f64::INFINITY);
+        record.ph = -0.0;
+        record.macro_pka = vec![1e300, -2.5e-7, 0.1 + 0.2, 4.0];
+        record.species[0].charge = i32::MIN;
+        record.warnings.push("\u{1}\u{1f}\u{7f} control".into());
+        check(&record);
+    }
+
+    #[test]
+    fn kept_numbers_are_written_as_serde_json_writes_them() {
+        // Many more values than slots, each written three times, so that slots are filled,
+        // hit and overwritten; the extremes of the format among them.
+        let mut values = vec![0.0, -0.0, 1e300, -2.2250738585072014e-308, 5e-324, 7.4, 0.1];
+        let mut x: u64 = 12345;
+        for _ in 0..5000 {
+            x = x.wrapping_mul(6_364_136_223_846_793_005).wrapping_add(1);
+            values.push(f64::from_bits(x));
+            values.push((x >> 40) as f64 / 1000.0 - 4.0);
+        }
+        for round in 0..3 {
+            for &v in &values {
+                let mut ours = Vec::new();
+                float(&mut ours, v);
+                let theirs = serde_json::to_vec(&v).unwrap();
+                assert_eq!(ours, theirs, "{v:e}, round {round}");
+            }
+        }
+    }
+
+    #[test]
+    fn escape_test_finds_each_byte_at_each_offset() {
+        for bad in (0u8..0x20).chain([b'"', b'\\']) {
+            for len in 1..40 {
+                for at in 0..len {
+                    let mut v = vec![b'a'; len];
+                    v[at] = bad;
+                    assert!(needs_escape(&v), "byte {bad:#x} at {at} of {len}");
+                }
+            }
+        }
+        let good: Vec<u8> = (0x20u8..=0xff)
+            .filter(|&b| b != b'"' && b != b'\\')
+            .collect();
+        for b in &good {
+            assert!(!needs_escape(&[*b; 17]), "byte {b:#x}");
+        }
+        for start in 0..good.len() {
+            assert!(
+                !needs_escape(&good[start..]),
+                "from byte {:#x}",
+                good[start]
+            );
+        }
+    }
+}
