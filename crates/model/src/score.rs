@@ -1084,8 +1084,7 @@ fn fused_ring_substituents(
         head += 1;
         for nb in molecule.neighbors(a) {
             let b = nb.atom;
-            if (ring.contains(&b) || fused_atoms.contains(&b))
-                && !dist.iter().any(|&(x, _)| x == b)
+            if (ring.contains(&b) || fused_atoms.contains(&b)) && !dist.iter().any(|&(x, _)| x == b)
             {
                 dist.push((b, d + 1));
             }
