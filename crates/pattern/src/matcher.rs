@@ -335,6 +335,12 @@ impl<'a> Search<'a> {
     /// condition, so it only cuts branches that hold no match, and matches are found in the
     /// same order; it spares walking a ring or chain around an anchor that lacks what the
     /// pattern needs further on.
+    ///
+    /// With one pattern neighbour ahead it answers true without looking: the search tries
+    /// that neighbour itself soon after, and on the first 2,000 MOSES test molecules
+    /// (callgrind, site finding) looking cost about 2,000 instructions per molecule more
+    /// than the branches it cut saved. The check only ever cut branches, so skipping it
+    /// changes no match and no order.
     #[inline]
     fn ahead_ok(
         &mut self,
@@ -344,13 +350,16 @@ impl<'a> Search<'a> {
         assign: &[usize],
         avoid: &[usize],
     ) -> bool {
+        let ahead = &graph.ahead[at];
+        if ahead.len() < 2 {
+            return true;
+        }
         let molecule = self.molecule;
         let bonds = molecule.bonds();
         let features = &mut self.memo.features;
-        let ahead = &graph.ahead[at];
         let neighbors = molecule.neighbors(atom);
         let free = |nb: &mol::Neighbor| !assign.contains(&nb.atom) && !avoid.contains(&nb.atom);
-        if ahead.len() < 2 || ahead.len() > HALL_AHEAD || neighbors.len() > 32 {
+        if ahead.len() > HALL_AHEAD || neighbors.len() > 32 {
             return ahead.iter().all(|&(next, mask)| {
                 neighbors.iter().any(|nb| {
                     mask >> bond_kind(&bonds[nb.bond]) & 1 != 0
