@@ -241,12 +241,12 @@ impl<'a> Search<'a> {
                 if known != 0 {
                     return known == 2;
                 }
-                let holds = self.atom_matches(&graph.atoms[at].expr, atom);
+                let holds = self.atom_matches(&graph.residual[at], atom);
                 // The evaluation may have grown the table: look the cell up again.
                 *self.memo.atom_cell(id, atom) = if holds { 2 } else { 1 };
                 holds
             }
-            _ => self.atom_matches(&graph.atoms[at].expr, atom),
+            _ => self.atom_matches(&graph.residual[at], atom),
         }
     }
 
