@@ -64,6 +64,9 @@ pub(crate) struct Graph {
     /// `[nX2;+0;$(...)]` walks only `$(...)`. Where the filter is the whole answer nothing is
     /// walked anyway.
     pub(crate) residual: Vec<Expr<AtomPrim>>,
+    /// Per pattern atom, whether its answers are worth keeping per molecule atom: not when
+    /// what is left is one environment (or its negation), whose own answers are kept.
+    pub(crate) keep_answers: Vec<bool>,
     /// Pattern bonds per atom: a molecule atom with fewer neighbours cannot sit there.
     pub(crate) min_degree: Vec<usize>,
     /// Process-wide id per atom expression (the same expression in any pattern has the same
@@ -159,7 +162,14 @@ impl Graph {
             .collect();
         let filters = filters(&atoms, &bonds, &bond_masks, &min_degree, &[]);
         let census = census(&filters);
-        let residual = atoms.iter().map(|a| residual(&a.expr)).collect();
+        let residual: Vec<Expr<AtomPrim>> = atoms.iter().map(|a| residual(&a.expr)).collect();
+        let keep_answers = residual
+            .iter()
+            .map(|r| {
+                !matches!(r, Expr::Prim(AtomPrim::Recursive(_)))
+                    && !matches!(r, Expr::Not(e) if matches!(**e, Expr::Prim(AtomPrim::Recursive(_))))
+            })
+            .collect();
         let ahead = adjacency
             .iter()
             .enumerate()
@@ -183,6 +193,7 @@ impl Graph {
             min_degree,
             expr_ids: Vec::new(),
             residual,
+            keep_answers,
         }
     }
 }

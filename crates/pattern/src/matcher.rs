@@ -236,7 +236,7 @@ impl<'a> Search<'a> {
             return true;
         }
         match graph.expr_ids.get(at) {
-            Some(&id) if self.memo.keep_atoms => {
+            Some(&id) if self.memo.keep_atoms && graph.keep_answers[at] => {
                 let known = *self.memo.atom_cell(id, atom);
                 if known != 0 {
                     return known == 2;
