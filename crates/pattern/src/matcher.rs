@@ -220,8 +220,10 @@ impl<'a> Search<'a> {
     }
 
     /// Whether molecule atom `atom` can sit on pattern atom `at`: the filter first, the
-    /// expression only when the filter cannot decide.
-    #[inline]
+    /// expression only when the filter cannot decide. The filter part is inlined into the
+    /// search, the walk kept apart: most tests end at the filter, and a call saving the
+    /// registers the walk needs cost them more than the test.
+    #[inline(always)]
     fn atom_ok(&mut self, graph: &Graph, at: usize, atom: usize) -> bool {
         let filter = &graph.filters[at];
         if !filter.admits_features(&self.memo.features.get(self.molecule, atom)) {
@@ -235,6 +237,12 @@ impl<'a> Search<'a> {
         if filter.exact {
             return true;
         }
+        self.atom_walk(graph, at, atom)
+    }
+
+    /// The part of [`Search::atom_ok`] past the filter: the expression, through the memo.
+    #[inline(never)]
+    fn atom_walk(&mut self, graph: &Graph, at: usize, atom: usize) -> bool {
         match graph.expr_ids.get(at) {
             Some(&id) if self.memo.keep_atoms && graph.keep_answers[at] => {
                 let known = *self.memo.atom_cell(id, atom);
