@@ -124,7 +124,7 @@ fn count(value: usize) -> u8 {
 
 /// One atom's values, each as the bit it sets in the filter masks. The exact values that
 /// matter beyond the caps are read from the molecule.
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+#[derive(Clone, Copy, Debug, Default)]
 pub(crate) struct AtomFeatures {
     /// [`element_bit`].
     pub(crate) element_bit: u8,
@@ -161,13 +161,11 @@ fn signature(molecule: &Molecule, atom: usize) -> u64 {
         })
 }
 
-/// Three words instead of one per field: the keys are looked up once per atom in site
-/// finding, where a hasher round per byte field was a good part of the lookup. Every
-/// field goes in whole, so equal values hash alike and values that differ feed the hasher
-/// different words.
-impl std::hash::Hash for AtomFeatures {
-    fn hash<H: std::hash::Hasher>(&self, state: &mut H) {
-        state.write_u64(u64::from_le_bytes([
+impl AtomFeatures {
+    /// The eight small values as one word.
+    #[inline]
+    fn packed(&self) -> u64 {
+        u64::from_le_bytes([
             self.element_bit,
             self.charge_bit,
             self.total_h,
@@ -176,7 +174,29 @@ impl std::hash::Hash for AtomFeatures {
             self.connectivity,
             self.ring_count,
             self.smallest_ring,
-        ]));
+        ])
+    }
+}
+
+/// Three comparisons instead of ten, as for the hash below.
+impl PartialEq for AtomFeatures {
+    #[inline]
+    fn eq(&self, other: &AtomFeatures) -> bool {
+        self.packed() == other.packed()
+            && self.neighbors == other.neighbors
+            && self.far == other.far
+    }
+}
+
+impl Eq for AtomFeatures {}
+
+/// Three words instead of one per field: the keys are looked up once per atom in site
+/// finding, where a hasher round per byte field was a good part of the lookup. Every
+/// field goes in whole, so equal values hash alike and values that differ feed the hasher
+/// different words.
+impl std::hash::Hash for AtomFeatures {
+    fn hash<H: std::hash::Hasher>(&self, state: &mut H) {
+        state.write_u64(self.packed());
         state.write_u64(self.neighbors);
         state.write_u64(self.far);
     }
