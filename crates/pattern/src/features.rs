@@ -334,9 +334,13 @@ impl FeatureTable {
         far.resize(n, SIGNATURE_ALWAYS);
         explicit_h.clear();
         explicit_h.resize(n, 0);
+        let class =
+            |t: &mol::Atom| ELEMENT_CLASS[element_bit(t.element, t.aromatic) as usize] as u32;
         for b in molecule.bonds() {
-            signatures[b.a] |= neighbor_bit(&atoms[b.b], b);
-            signatures[b.b] |= neighbor_bit(&atoms[b.a], b);
+            // `neighbor_bit` both ways, the bond's group worked out once.
+            let group = BOND_GROUP[crate::filter::bond_kind(b) as usize] as u32;
+            signatures[b.a] |= signature_bit(class(&atoms[b.b]), group);
+            signatures[b.b] |= signature_bit(class(&atoms[b.a]), group);
             explicit_h[b.a] += (atoms[b.b].element == 1) as usize;
             explicit_h[b.b] += (atoms[b.a].element == 1) as usize;
         }
