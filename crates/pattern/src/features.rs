@@ -124,7 +124,7 @@ fn count(value: usize) -> u8 {
 
 /// One atom's values, each as the bit it sets in the filter masks. The exact values that
 /// matter beyond the caps are read from the molecule.
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash)]
+#[derive(Clone, Copy, Debug, Default)]
 pub(crate) struct AtomFeatures {
     /// [`element_bit`].
     pub(crate) element_bit: u8,
@@ -159,6 +159,47 @@ fn signature(molecule: &Molecule, atom: usize) -> u64 {
         .fold(SIGNATURE_ALWAYS, |sig, nb| {
             sig | neighbor_bit(&atoms[nb.atom], &bonds[nb.bond])
         })
+}
+
+impl AtomFeatures {
+    /// The eight small values as one word.
+    #[inline]
+    fn packed(&self) -> u64 {
+        u64::from_le_bytes([
+            self.element_bit,
+            self.charge_bit,
+            self.total_h,
+            self.implicit_h,
+            self.degree,
+            self.connectivity,
+            self.ring_count,
+            self.smallest_ring,
+        ])
+    }
+}
+
+/// Three comparisons instead of ten, as for the hash below.
+impl PartialEq for AtomFeatures {
+    #[inline]
+    fn eq(&self, other: &AtomFeatures) -> bool {
+        self.packed() == other.packed()
+            && self.neighbors == other.neighbors
+            && self.far == other.far
+    }
+}
+
+impl Eq for AtomFeatures {}
+
+/// Three words instead of one per field: the keys are looked up once per atom in site
+/// finding, where a hasher round per byte field was a good part of the lookup. Every
+/// field goes in whole, so equal values hash alike and values that differ feed the hasher
+/// different words.
+impl std::hash::Hash for AtomFeatures {
+    fn hash<H: std::hash::Hasher>(&self, state: &mut H) {
+        state.write_u64(self.packed());
+        state.write_u64(self.neighbors);
+        state.write_u64(self.far);
+    }
 }
 
 impl AtomFeatures {
@@ -293,9 +334,13 @@ impl FeatureTable {
         far.resize(n, SIGNATURE_ALWAYS);
         explicit_h.clear();
         explicit_h.resize(n, 0);
+        let class =
+            |t: &mol::Atom| ELEMENT_CLASS[element_bit(t.element, t.aromatic) as usize] as u32;
         for b in molecule.bonds() {
-            signatures[b.a] |= neighbor_bit(&atoms[b.b], b);
-            signatures[b.b] |= neighbor_bit(&atoms[b.a], b);
+            // `neighbor_bit` both ways, the bond's group worked out once.
+            let group = BOND_GROUP[crate::filter::bond_kind(b) as usize] as u32;
+            signatures[b.a] |= signature_bit(class(&atoms[b.b]), group);
+            signatures[b.b] |= signature_bit(class(&atoms[b.a]), group);
             explicit_h[b.a] += (atoms[b.b].element == 1) as usize;
             explicit_h[b.b] += (atoms[b.a].element == 1) as usize;
         }
@@ -349,6 +394,63 @@ impl FeatureTable {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Keeps the words a value feeds a hasher.
+    #[derive(Default)]
+    struct Words(Vec<u64>);
+
+    impl std::hash::Hasher for Words {
+        fn finish(&self) -> u64 {
+            0
+        }
+        fn write(&mut self, bytes: &[u8]) {
+            self.0.extend(bytes.iter().map(|&b| b as u64));
+        }
+        fn write_u64(&mut self, n: u64) {
+            self.0.push(n);
+        }
+    }
+
+    fn words(f: &AtomFeatures) -> Vec<u64> {
+        let mut w = Words::default();
+        std::hash::Hash::hash(f, &mut w);
+        w.0
+    }
+
+    #[test]
+    fn atoms_that_differ_in_any_value_feed_the_hasher_different_words() {
+        let m = mol::parse("CC(=O)[O-].c1ccncc1[NH3+]").expect("reads");
+        let base = AtomFeatures::of(&m, 1);
+        assert_eq!(words(&base), words(&AtomFeatures::of(&m, 1)));
+        let changes: [fn(&mut AtomFeatures); 10] = [
+            |f| f.element_bit += 1,
+            |f| f.charge_bit += 1,
+            |f| f.total_h += 1,
+            |f| f.implicit_h += 1,
+            |f| f.degree += 1,
+            |f| f.connectivity += 1,
+            |f| f.ring_count += 1,
+            |f| f.smallest_ring += 1,
+            |f| f.neighbors ^= 1,
+            |f| f.far ^= 1,
+        ];
+        for (i, change) in changes.iter().enumerate() {
+            let mut other = base;
+            change(&mut other);
+            assert_ne!(other, base, "change {i}");
+            assert_ne!(words(&other), words(&base), "change {i}");
+        }
+        // Every atom of a molecule whose atoms all differ.
+        let all: Vec<Vec<u64>> = (0..m.atoms().len())
+            .map(|a| words(&AtomFeatures::of(&m, a)))
+            .collect();
+        for a in 0..all.len() {
+            for b in 0..all.len() {
+                let same = AtomFeatures::of(&m, a) == AtomFeatures::of(&m, b);
+                assert_eq!(all[a] == all[b], same, "atoms {a} and {b}");
+            }
+        }
+    }
 
     #[test]
     fn the_table_reads_every_atom_as_a_single_read_does() {

@@ -56,8 +56,17 @@ pub(crate) struct Graph {
     /// admit alone, how many of them (each needs an atom of its own).
     pub(crate) census: Vec<(u8, u16)>,
     /// Per pattern atom, its neighbours placed after it, with the bond kinds between:
-    /// where the search looks ahead.
+    /// where the search looks ahead (at the root).
     pub(crate) ahead: Vec<Vec<(usize, u16)>>,
+    /// Per pattern atom, what is left of its expression to walk once its filter has
+    /// passed: a conjunction without the operands the filter decides exactly (an atom
+    /// passing the filter lies in each one's box, which is exactly where it holds), so
+    /// `[nX2;+0;$(...)]` walks only `$(...)`. Where the filter is the whole answer nothing is
+    /// walked anyway.
+    pub(crate) residual: Vec<Expr<AtomPrim>>,
+    /// Per pattern atom, whether its answers are worth keeping per molecule atom: not when
+    /// what is left is one environment (or its negation), whose own answers are kept.
+    pub(crate) keep_answers: Vec<bool>,
     /// Pattern bonds per atom: a molecule atom with fewer neighbours cannot sit there.
     pub(crate) min_degree: Vec<usize>,
     /// Process-wide id per atom expression (the same expression in any pattern has the same
@@ -153,6 +162,14 @@ impl Graph {
             .collect();
         let filters = filters(&atoms, &bonds, &bond_masks, &min_degree, &[]);
         let census = census(&filters);
+        let residual: Vec<Expr<AtomPrim>> = atoms.iter().map(|a| residual(&a.expr)).collect();
+        let keep_answers = residual
+            .iter()
+            .map(|r| {
+                !matches!(r, Expr::Prim(AtomPrim::Recursive(_)))
+                    && !matches!(r, Expr::Not(e) if matches!(**e, Expr::Prim(AtomPrim::Recursive(_))))
+            })
+            .collect();
         let ahead = adjacency
             .iter()
             .enumerate()
@@ -175,7 +192,32 @@ impl Graph {
             ahead,
             min_degree,
             expr_ids: Vec::new(),
+            residual,
+            keep_answers,
         }
+    }
+}
+
+/// `expr` without the conjunction operands its own filter decides exactly (see
+/// `Graph::residual`). The filter of a pattern atom only ever narrows its expression's
+/// box (pattern bonds, neighbours), so passing it still puts the atom in each such
+/// operand's box. Operands keep their order.
+fn residual(expr: &Expr<AtomPrim>) -> Expr<AtomPrim> {
+    match expr {
+        Expr::And(es) if es.len() > 1 => {
+            let rest: Vec<Expr<AtomPrim>> = es
+                .iter()
+                .filter(|e| !AtomFilter::new(e).exact)
+                .cloned()
+                .collect();
+            if rest.is_empty() {
+                // The whole is then exact as well; an empty conjunction holds.
+                Expr::And(Vec::new())
+            } else {
+                Expr::and(rest)
+            }
+        }
+        _ => expr.clone(),
     }
 }
 
@@ -264,4 +306,43 @@ fn census(filters: &[AtomFilter]) -> Vec<(u8, u16)> {
         }
     }
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn residual_of(text: &str) -> Expr<AtomPrim> {
+        let (graph, _) = crate::parse::parse(text).expect("parses");
+        graph.residual[graph.root].clone()
+    }
+
+    #[test]
+    fn residual_keeps_only_what_the_filter_cannot_decide() {
+        assert_eq!(
+            residual_of("[nX2;+0;$(n1ccccc1)]"),
+            Expr::Prim(AtomPrim::Recursive(0))
+        );
+        // Two environments stay, in order, the counts and charge go.
+        let r = residual_of("[OX2;+0;!$(O-C=O);!$(O-a)]");
+        let Expr::And(rest) = r else {
+            panic!("a conjunction: {r:?}")
+        };
+        assert_eq!(rest.len(), 2);
+        assert!(rest.iter().all(|e| matches!(e, Expr::Not(_))));
+        // A disjunction mixing an environment with a count is not one box: kept whole.
+        let r = residual_of("[C;$(C=O),X4]");
+        assert!(matches!(r, Expr::Or(_)), "{r:?}");
+        // A mass number has no projection: its operand (`13C`, one conjunction) is kept
+        // whole, the hydrogen count goes.
+        let r = residual_of("[13C;H3]");
+        let carbon = AtomPrim::Element {
+            number: 6,
+            aromatic: Some(false),
+        };
+        assert_eq!(
+            r,
+            Expr::And(vec![Expr::Prim(AtomPrim::Isotope(13)), Expr::Prim(carbon)])
+        );
+    }
 }

@@ -180,6 +180,14 @@ mod tests {
                 "[#6;X3](=O)~*~*~[#7]",
                 "[N;!$(N-C=O);!$(N-S)]",
                 "C(~*)(~*)(~*)~*",
+                // Conjunctions the filter decides in part (`Graph::residual`).
+                "[C;H2;!$(C=O)]",
+                "[N;H1,H2;+0;$(N-c)]",
+                "[c;R1;!$(c:n)]:c",
+                "[O;X2;!$(O-C=O);H0]",
+                "[#6;!$(*=*);X4;H3]",
+                "[$(C=O),$(C#N);X3,X2;!R]",
+                "[!#1;!$(*~[#7,#8]);D2]~[D1]",
             ]
             .iter()
             .map(|s| s.to_string()),
