@@ -302,6 +302,32 @@ impl Microstates {
             .collect()
     }
 
+    /// [`Microstates::top_states`] for a system of one group (most are): the same steps
+    /// on the same numbers, without the lists that combine groups.
+    fn one_group_top_states(&self, ph: f64, keep: usize, cut: f64) -> Vec<(f64, u32)> {
+        let t = &self.tables[0];
+        let lz = logsum::sum(t.log_g.iter().enumerate().map(|(p, &g)| g + p as f64 * ph));
+        let mut own: Vec<(f64, u32)> = t
+            .candidates
+            .iter()
+            .map(|c| (c.log_w + c.lost as f64 * ph - lz, c.mask))
+            .collect();
+        own.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)));
+        own.truncate(keep);
+        // As `top_states` adds each to the empty state's 0 (which makes -0 into +0) and
+        // sorts again.
+        for x in &mut own {
+            x.0 += 0.0;
+        }
+        own.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)));
+        let mut kept = 0;
+        while kept < own.len() && kept < keep && (kept == 0 || own[kept].0 >= cut) {
+            kept += 1;
+        }
+        own.truncate(kept);
+        own
+    }
+
     fn species_from_masks(&self, masks: &[u32], log_fraction: f64) -> Microspecies {
         let mut charged = vec![false; self.n];
         let mut charge = self.base_charge;
@@ -320,11 +346,17 @@ impl Microstates {
 
     /// Microspecies at `ph` as listed in [`Speciation::species`].
     pub fn species(&self, ph: f64) -> Vec<Microspecies> {
-        let top = self.top_states(ph, MAX_SPECIES, MIN_FRACTION.log10());
-        let mut out: Vec<Microspecies> = top
-            .iter()
-            .map(|(f, masks)| self.species_from_masks(masks, *f))
-            .collect();
+        let mut out: Vec<Microspecies> = if self.tables.len() == 1 {
+            self.one_group_top_states(ph, MAX_SPECIES, MIN_FRACTION.log10())
+                .iter()
+                .map(|&(f, mask)| self.species_from_masks(std::slice::from_ref(&mask), f))
+                .collect()
+        } else {
+            self.top_states(ph, MAX_SPECIES, MIN_FRACTION.log10())
+                .iter()
+                .map(|(f, masks)| self.species_from_masks(masks, *f))
+                .collect()
+        };
         // Equal fractions (symmetry-equivalent microstates) list in site order.
         out.sort_by(|a, b| {
             b.fraction
@@ -395,10 +427,9 @@ impl Microstates {
 /// isoelectric point bit for bit the one that bisection on [`Microstates::charge`] alone
 /// finds, over 3,000 random systems of up to 18 sites and 3,000 of up to 4.)
 struct QuickCharge {
-    /// `10^(log_g[p] + 7 p - max)`, p = 0..=n: the largest is 1.
-    b: Vec<f64>,
-    /// `p * b[p]`.
-    pb: Vec<f64>,
+    /// `(b[p], p * b[p])` with `b[p] = 10^(log_g[p] + 7 p - max)`, p = 0..=n (the largest
+    /// `b` is 1), side by side for the Horner loop.
+    b: Vec<(f64, f64)>,
     /// Charge of the fully protonated form.
     top: f64,
     /// Quick values within this of 0 are not trusted with the sign.
@@ -433,13 +464,18 @@ impl QuickCharge {
             .map(|(p, &g)| g + p as f64 * Self::PH0)
             .collect();
         let max = exponents.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-        let b: Vec<f64> = exponents.iter().map(|&e| exp10(e - max)).collect();
-        let pb = b.iter().enumerate().map(|(p, &x)| p as f64 * x).collect();
+        let b = exponents
+            .iter()
+            .enumerate()
+            .map(|(p, &e)| {
+                let x = exp10(e - max);
+                (x, p as f64 * x)
+            })
+            .collect();
         let n = degree as f64;
         let t = log_g.iter().fold(0.0, |m: f64, g| m.max(g.abs())) + 16.0 * n;
         Some(Self {
             b,
-            pb,
             top: f64::from(states.base_charge) + states.bases as f64,
             margin: Self::MARGIN_PER_N_T * n * t,
         })
@@ -453,7 +489,7 @@ impl QuickCharge {
     /// The charge at the pH where `y = 10^(pH - 7)`.
     fn charge_at(&self, y: f64) -> f64 {
         let (mut z, mut lost) = (0.0, 0.0);
-        for (&b, &pb) in self.b.iter().zip(&self.pb).rev() {
+        for &(b, pb) in self.b.iter().rev() {
             z = z * y + b;
             lost = lost * y + pb;
         }
@@ -726,6 +762,63 @@ mod tests {
         let all = m.top_states(5.0, 16, f64::NEG_INFINITY);
         let total: f64 = all.iter().map(|(f, _)| exp10(*f)).sum();
         assert!((total - 1.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn one_group_top_states_are_those_of_the_general_walk() {
+        // Coupled sites (one group) of 1 to 7 sites, at several pH: the short way lists the
+        // very states, fractions bit for bit, that the walk over groups lists.
+        let mut state: u64 = 0x1234_5678_9abc_def1;
+        let mut next = move || {
+            state = state
+                .wrapping_mul(6_364_136_223_846_793_005)
+                .wrapping_add(1_442_695_040_888_963_407);
+            (state >> 11) as f64 / (1u64 << 53) as f64
+        };
+        for case in 0..300 {
+            let n = 1 + (next() * 7.0) as usize;
+            let sites: Vec<SiteInput> = (0..n)
+                .map(|_| {
+                    let pka = -2.0 + 18.0 * next();
+                    if next() < 0.5 {
+                        acid(pka)
+                    } else {
+                        base(pka)
+                    }
+                })
+                .collect();
+            let mut interaction = vec![vec![0.0; n]; n];
+            for i in 0..n {
+                for j in (i + 1)..n {
+                    let w = 0.1 + next();
+                    interaction[i][j] = w;
+                    interaction[j][i] = w;
+                }
+            }
+            let m = Microstates::new(&System {
+                sites,
+                interaction,
+                base_charge: 0,
+            })
+            .unwrap();
+            assert_eq!(m.tables.len(), 1, "case {case}");
+            for ph in [0.0, 4.5, 7.4, 12.0] {
+                for keep in [1, 3, 16] {
+                    let cut = MIN_FRACTION.log10();
+                    let general: Vec<(u64, Vec<u32>)> = m
+                        .top_states(ph, keep, cut)
+                        .into_iter()
+                        .map(|(f, masks)| (f.to_bits(), masks))
+                        .collect();
+                    let short: Vec<(u64, Vec<u32>)> = m
+                        .one_group_top_states(ph, keep, cut)
+                        .into_iter()
+                        .map(|(f, mask)| (f.to_bits(), vec![mask]))
+                        .collect();
+                    assert_eq!(general, short, "case {case} pH {ph} keep {keep}");
+                }
+            }
+        }
     }
 
     #[test]
