@@ -386,6 +386,22 @@ impl Microstates {
         exp10(lf)
     }
 
+    /// [`Microstates::speciation`] of a system used once: its constants and method are
+    /// handed over rather than copied.
+    pub(crate) fn into_speciation(self, ph: f64) -> Result<Speciation, SpeciationError> {
+        check_ph(ph)?;
+        let charge_at_ph = self.charge(ph);
+        let species = self.species(ph);
+        Ok(Speciation {
+            macro_pka: self.macro_pka,
+            ph,
+            charge_at_ph,
+            species,
+            isoelectric_point: self.isoelectric_point,
+            method: self.method,
+        })
+    }
+
     /// The full result at `ph`.
     pub fn speciation(&self, ph: f64) -> Result<Speciation, SpeciationError> {
         check_ph(ph)?;
