@@ -50,6 +50,9 @@ pub struct SmilesWriter<'a> {
     plain_lower: Vec<bool>,
     /// Per atom: where its text sits in `plain`.
     plain_atom: Vec<(usize, usize)>,
+    /// Per component: where its ops start in `ops` (at its `Op::Component`), and where its
+    /// text sits in `plain` (without the `.` before it).
+    plain_component: Vec<(usize, usize, usize)>,
 }
 
 /// One step of the written walk.
@@ -70,7 +73,9 @@ impl<'a> SmilesWriter<'a> {
         let mut ops = Vec::with_capacity(3 * m.atoms.len() + m.components.len());
         let mut order = Vec::with_capacity(m.atoms.len());
         let mut scratch = Scratch::take(m);
+        let mut component_ops = Vec::with_capacity(m.components.len());
         for (k, component) in m.components.iter().enumerate() {
+            component_ops.push(ops.len());
             ops.push(Op::Component(k));
             walk_component(m, component, &mut ops, &mut order, &mut scratch);
         }
@@ -82,16 +87,24 @@ impl<'a> SmilesWriter<'a> {
             plain: String::new(),
             plain_lower: Vec::new(),
             plain_atom: Vec::new(),
+            plain_component: Vec::new(),
         };
-        let (plain, plain_lower, plain_atom) = w.write_plain();
+        let (plain, plain_lower, plain_atom, texts) = w.write_plain();
         w.plain = plain;
         w.plain_lower = plain_lower;
         w.plain_atom = plain_atom;
+        w.plain_component = component_ops
+            .into_iter()
+            .zip(texts)
+            .map(|(op, (from, to))| (op, from, to))
+            .collect();
         w
     }
 
-    /// The SMILES with no protons moved, each component's case and each atom's place.
-    fn write_plain(&self) -> (String, Vec<bool>, Vec<(usize, usize)>) {
+    /// The SMILES with no protons moved, each component's case, each atom's place and each
+    /// component's place.
+    #[allow(clippy::type_complexity)]
+    fn write_plain(&self) -> (String, Vec<bool>, Vec<(usize, usize)>, Vec<(usize, usize)>) {
         let v = View {
             m: self.m,
             edits: &[],
@@ -99,6 +112,7 @@ impl<'a> SmilesWriter<'a> {
         let m = self.m;
         let mut out = String::with_capacity(m.input.len() + 16);
         let mut lowers = vec![false; m.components.len()];
+        let mut texts: Vec<(usize, usize)> = Vec::with_capacity(m.components.len());
         let mut places = vec![(0, 0); m.atoms.len()];
         // Per atom, whether it is written without brackets, where the case test of its
         // component worked that out already (every aromatic atom of a component written
@@ -108,9 +122,13 @@ impl<'a> SmilesWriter<'a> {
         for &op in &self.ops {
             match op {
                 Op::Component(k) => {
+                    if let Some(last) = texts.last_mut() {
+                        last.1 = out.len();
+                    }
                     if k > 0 {
                         out.push('.');
                     }
+                    texts.push((out.len(), out.len()));
                     lower = aromatic_writable_noting(&v, &m.components[k], &mut organic);
                     lowers[k] = lower;
                 }
@@ -125,7 +143,10 @@ impl<'a> SmilesWriter<'a> {
                 Op::Digit(d) => push_digit(&mut out, d),
             }
         }
-        (out, lowers, places)
+        if let Some(last) = texts.last_mut() {
+            last.1 = out.len();
+        }
+        (out, lowers, places, texts)
     }
 
     /// For each atom in the order written, its index in the molecule.
@@ -142,37 +163,48 @@ impl<'a> SmilesWriter<'a> {
         let v = View { m: self.m, edits };
         let m = self.m;
         let mut out = String::with_capacity(self.plain.len() + 8);
-        let mut lower = false;
-        // Whether the component is written in the same case as with no protons moved: then
-        // an atom whose protons do not move reads as it does there.
-        let mut same_case = true;
-        for &op in &self.ops {
-            match op {
-                Op::Component(k) => {
-                    if k > 0 {
-                        out.push('.');
-                    }
-                    let touched = edits
-                        .iter()
-                        .any(|&(a, _)| m.atoms.get(a).is_some_and(|x| x.component == k));
-                    lower = if touched {
-                        aromatic_writable(&v, &m.components[k])
-                    } else {
-                        self.plain_lower[k]
-                    };
-                    same_case = lower == self.plain_lower[k];
+        let in_component = |a: usize, k: usize| m.atoms.get(a).is_some_and(|x| x.component == k);
+        for (k, &(op_from, text_from, text_to)) in self.plain_component.iter().enumerate() {
+            if k > 0 {
+                out.push('.');
+            }
+            // A component with no protons moved reads as it does with none moved anywhere.
+            if !edits.iter().any(|&(a, _)| in_component(a, k)) {
+                out.push_str(&self.plain[text_from..text_to]);
+                continue;
+            }
+            let lower = aromatic_writable(&v, &m.components[k]);
+            if lower == self.plain_lower[k] {
+                // Written in the same case as with no protons moved: bonds, ring digits and
+                // the atoms whose protons do not move read as they do there, so the text is
+                // the plain one with the moved atoms rewritten, taken in the order written.
+                let mut cursor = text_from;
+                while let Some((from, a)) = edits
+                    .iter()
+                    .filter(|&&(a, _)| in_component(a, k))
+                    .map(|&(a, _)| (self.plain_atom[a].0, a))
+                    .filter(|&(from, _)| from >= cursor)
+                    .min()
+                {
+                    out.push_str(&self.plain[cursor..from]);
+                    atom_text(&v, a, lower, &mut out);
+                    cursor = self.plain_atom[a].1;
                 }
-                Op::Atom(i) => {
-                    if same_case && !edits.iter().any(|&(a, _)| a == i) {
-                        let (from, to) = self.plain_atom[i];
-                        out.push_str(&self.plain[from..to]);
-                    } else {
-                        atom_text(&v, i, lower, &mut out);
-                    }
+                out.push_str(&self.plain[cursor..text_to]);
+                continue;
+            }
+            let op_to = self
+                .plain_component
+                .get(k + 1)
+                .map_or(self.ops.len(), |c| c.0);
+            for &op in &self.ops[op_from + 1..op_to] {
+                match op {
+                    Op::Component(_) => {}
+                    Op::Atom(i) => atom_text(&v, i, lower, &mut out),
+                    Op::Bond(b) => out.push_str(bond_text(m, b, lower)),
+                    Op::Text(t) => out.push_str(t),
+                    Op::Digit(d) => push_digit(&mut out, d),
                 }
-                Op::Bond(b) => out.push_str(bond_text(m, b, lower)),
-                Op::Text(t) => out.push_str(t),
-                Op::Digit(d) => push_digit(&mut out, d),
             }
         }
         out

@@ -232,6 +232,5 @@ pub fn speciate(system: &System, ph: f64) -> Speciation {
 
 /// Speciates the system at `ph`, or says what is wrong with the input.
 pub fn try_speciate(system: &System, ph: f64) -> Result<Speciation, SpeciationError> {
-    let states = Microstates::new(system)?;
-    states.speciation(ph)
+    Microstates::new(system)?.into_speciation(ph)
 }

@@ -57,6 +57,12 @@ pub(crate) fn convolve(a: &[f64], b: &[f64]) -> Vec<f64> {
     if a.is_empty() || b.is_empty() {
         return Vec::new();
     }
+    // The product's start, `[0]` times one group (most systems have one): each coefficient
+    // gets one push, `x = 0 + y`, which leaves `scaled = 0 * 10^-inf + 1 = 1`, and reads
+    // back as `x + log10(1)`. Written out, without the powers and logarithms.
+    if a.len() == 1 && a[0].to_bits() == 0f64.to_bits() && b.iter().all(|y| y.is_finite()) {
+        return b.iter().map(|&y| (0.0 + y) + 0.0).collect();
+    }
     let mut out = vec![Accumulator::new(); a.len() + b.len() - 1];
     for (i, &x) in a.iter().enumerate() {
         for (j, &y) in b.iter().enumerate() {
@@ -86,6 +92,25 @@ mod tests {
         }
         let direct = (0.1f64 + 100.0 + 10f64.powf(0.5) + 100.0).log10();
         assert!((acc.log10() - direct).abs() < 1e-12);
+    }
+
+    #[test]
+    fn convolve_from_one_is_bit_for_bit_the_general_product() {
+        let acc_way = |b: &[f64]| -> Vec<u64> {
+            let mut out = vec![Accumulator::new(); b.len()];
+            for (j, &y) in b.iter().enumerate() {
+                out[j].push(0.0 + y);
+            }
+            out.iter().map(|a| a.log10().to_bits()).collect()
+        };
+        for b in [
+            vec![0.0, -3.7, -9.25, -20.5],
+            vec![-0.0, 1e-300, -1e300, 123.456],
+            vec![5.0],
+        ] {
+            let short: Vec<u64> = convolve(&[0.0], &b).iter().map(|x| x.to_bits()).collect();
+            assert_eq!(short, acc_way(&b), "{b:?}");
+        }
     }
 
     #[test]

@@ -1,5 +1,7 @@
 //! A system prepared for evaluation at any pH.
 
+use std::cmp::Ordering;
+
 use crate::cluster::partition;
 use crate::enumerate::{Group, Table};
 use crate::logsum::{self, exp10};
@@ -175,14 +177,22 @@ impl Microstates {
             return None;
         }
         let (mut lo, mut hi) = PI_RANGE;
-        let (c_lo, c_hi) = (self.charge(lo), self.charge(hi));
+        let quick = QuickCharge::new(self);
+        // `y = 10^(pH - 7)` at the two ends: the midpoint's is their geometric mean, one
+        // square root instead of a power of ten per step (see `QuickCharge`).
+        let (mut y_lo, mut y_hi) = match &quick {
+            Some(_) => (QuickCharge::y(lo), QuickCharge::y(hi)),
+            None => (f64::NAN, f64::NAN),
+        };
         // The charge must really change sign across the range. A molecule that is only
         // basic tends to charge 0 at high pH without crossing it, and rounding in the
         // proton count can leave its charge at -1e-16 there: that is no isoelectric point.
-        if !(c_lo > PI_CHARGE_TOLERANCE && c_hi < -PI_CHARGE_TOLERANCE) {
+        let q = quick.as_ref();
+        if !(self.compare_charge(q, lo, y_lo, PI_CHARGE_TOLERANCE) == Some(Ordering::Greater)
+            && self.compare_charge(q, hi, y_hi, -PI_CHARGE_TOLERANCE) == Some(Ordering::Less))
+        {
             return None;
         }
-        let quick = QuickCharge::new(self);
         // The mean charge falls strictly with pH (its slope is -ln10 times the variance of
         // the proton count), so bisection on the sign converges to the one root.
         for _ in 0..200 {
@@ -190,24 +200,42 @@ impl Microstates {
             if mid <= lo || mid >= hi {
                 break;
             }
-            // The quick value decides only where it is far enough from 0 that `charge`
-            // must have the same sign; nearer the root `charge` itself decides, so the
-            // bisection takes the very steps it takes with `charge` alone.
-            let positive = match quick.as_ref().map(|q| q.charge(mid)) {
-                Some(c) if c > QuickCharge::MARGIN => true,
-                Some(c) if c < -QuickCharge::MARGIN => false,
-                _ => self.charge(mid) > 0.0,
-            };
-            if positive {
+            let y = (y_lo * y_hi).sqrt();
+            if self.compare_charge(q, mid, y, 0.0) == Some(Ordering::Greater) {
                 lo = mid;
+                y_lo = y;
             } else {
                 hi = mid;
+                y_hi = y;
             }
             if hi - lo < 1e-12 {
                 break;
             }
         }
         Some(0.5 * (lo + hi))
+    }
+
+    /// How [`Microstates::charge`] at `ph` compares with `threshold`, `y` being
+    /// `10^(ph - 7)` for the quick charge. The quick value decides only where it is far
+    /// enough from `threshold` that `charge` must compare the same way; nearer, `charge`
+    /// itself decides, so the answer is always the one `charge` gives.
+    fn compare_charge(
+        &self,
+        quick: Option<&QuickCharge>,
+        ph: f64,
+        y: f64,
+        threshold: f64,
+    ) -> Option<Ordering> {
+        if let Some(q) = quick {
+            let c = q.charge_at(y);
+            if c > threshold + q.margin {
+                return Some(Ordering::Greater);
+            }
+            if c < threshold - q.margin {
+                return Some(Ordering::Less);
+            }
+        }
+        self.charge(ph).partial_cmp(&threshold)
     }
 
     /// log10 of each group's partition function at `ph`.
@@ -274,6 +302,32 @@ impl Microstates {
             .collect()
     }
 
+    /// [`Microstates::top_states`] for a system of one group (most are): the same steps
+    /// on the same numbers, without the lists that combine groups.
+    fn one_group_top_states(&self, ph: f64, keep: usize, cut: f64) -> Vec<(f64, u32)> {
+        let t = &self.tables[0];
+        let lz = logsum::sum(t.log_g.iter().enumerate().map(|(p, &g)| g + p as f64 * ph));
+        let mut own: Vec<(f64, u32)> = t
+            .candidates
+            .iter()
+            .map(|c| (c.log_w + c.lost as f64 * ph - lz, c.mask))
+            .collect();
+        own.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)));
+        own.truncate(keep);
+        // As `top_states` adds each to the empty state's 0 (which makes -0 into +0) and
+        // sorts again.
+        for x in &mut own {
+            x.0 += 0.0;
+        }
+        own.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)));
+        let mut kept = 0;
+        while kept < own.len() && kept < keep && (kept == 0 || own[kept].0 >= cut) {
+            kept += 1;
+        }
+        own.truncate(kept);
+        own
+    }
+
     fn species_from_masks(&self, masks: &[u32], log_fraction: f64) -> Microspecies {
         let mut charged = vec![false; self.n];
         let mut charge = self.base_charge;
@@ -292,11 +346,17 @@ impl Microstates {
 
     /// Microspecies at `ph` as listed in [`Speciation::species`].
     pub fn species(&self, ph: f64) -> Vec<Microspecies> {
-        let top = self.top_states(ph, MAX_SPECIES, MIN_FRACTION.log10());
-        let mut out: Vec<Microspecies> = top
-            .iter()
-            .map(|(f, masks)| self.species_from_masks(masks, *f))
-            .collect();
+        let mut out: Vec<Microspecies> = if self.tables.len() == 1 {
+            self.one_group_top_states(ph, MAX_SPECIES, MIN_FRACTION.log10())
+                .iter()
+                .map(|&(f, mask)| self.species_from_masks(std::slice::from_ref(&mask), f))
+                .collect()
+        } else {
+            self.top_states(ph, MAX_SPECIES, MIN_FRACTION.log10())
+                .iter()
+                .map(|(f, masks)| self.species_from_masks(masks, *f))
+                .collect()
+        };
         // Equal fractions (symmetry-equivalent microstates) list in site order.
         out.sort_by(|a, b| {
             b.fraction
@@ -326,6 +386,22 @@ impl Microstates {
         exp10(lf)
     }
 
+    /// [`Microstates::speciation`] of a system used once: its constants and method are
+    /// handed over rather than copied.
+    pub(crate) fn into_speciation(self, ph: f64) -> Result<Speciation, SpeciationError> {
+        check_ph(ph)?;
+        let charge_at_ph = self.charge(ph);
+        let species = self.species(ph);
+        Ok(Speciation {
+            macro_pka: self.macro_pka,
+            ph,
+            charge_at_ph,
+            species,
+            isoelectric_point: self.isoelectric_point,
+            method: self.method,
+        })
+    }
+
     /// The full result at `ph`.
     pub fn speciation(&self, ph: f64) -> Result<Speciation, SpeciationError> {
         check_ph(ph)?;
@@ -341,31 +417,42 @@ impl Microstates {
 }
 
 /// The mean charge over [`PI_RANGE`] from the binding polynomial in `y = 10^(pH - 7)`,
-/// evaluated by Horner's rule: one power of ten per pH instead of two per coefficient (and
-/// a logarithm) in [`Microstates::charge`]. The isoelectric-point bisection evaluates the
-/// charge some 45 times a molecule; this answers the steps where the charge is farther
-/// than [`QuickCharge::MARGIN`] from 0 (most of them where the charge curve is steep at the
-/// root, few where it is flat, as between an amide O and an alcohol).
+/// evaluated by Horner's rule: no power of ten per pH (the bisection passes `y` as the
+/// geometric mean of its ends' values) instead of two per coefficient (and a logarithm) in
+/// [`Microstates::charge`]. The isoelectric-point bisection evaluates the charge some 45
+/// times a molecule; this answers the steps where the charge is farther than
+/// [`QuickCharge::margin`] from 0 (most of them where the charge curve is steep at the
+/// root, fewer where it is flat, as between an amide O and an alcohol), and nearly always
+/// the two tests at the ends of the range that come first.
 ///
 /// Both evaluate the same stored `log_g`. Rounding a few ulp in exponents of magnitude up
 /// to `T = max |log_g| + 16 n` gives each weight a relative error of about `3e-15 T` in
-/// either evaluation, so each mean proton count is within `n * 3e-15 * T` of the exact one:
-/// with at most 16 protons and `|log_g|` at most 1000, the two together stay below 1e-10,
-/// a tenth of [`QuickCharge::MARGIN`], and a quick value beyond the margin has the sign that
-/// [`Microstates::charge`] computes. (The unit test sees them agree on every step of 3,000
-/// random systems down to a margin of 1e-12, and disagree at 1e-14.)
+/// either evaluation, so each mean proton count is within `n * 3e-15 * T` of the exact one.
+/// The margin is ten times the two together, `6e-14 n T`, worked out for each system:
+/// with at most 16 protons and `|log_g|` at most 1000 it is at most 1.2e-9, and for a
+/// typical molecule (4 protons, `T` near 100) some 2e-11, which leaves fewer steps to
+/// [`Microstates::charge`]. A quick value beyond the margin has the sign that
+/// [`Microstates::charge`] computes.
+///
+/// `y` from square roots: every bisection point is `-2 + 18 k / 2^j` with `j` at most 45,
+/// exact in a double, so each midpoint's `y` is exactly the geometric mean of its ends'
+/// and the one rounding of the product and of the root add some 2e-16 to its relative
+/// error per step: after the 45 steps at most 1e-14 beyond that of `10^(pH - 7)` itself,
+/// which moves a mean proton count by at most `n^2 / 4` times that, below `48e-15 n^2`,
+/// the part of `n * 3e-15 * T` that `T >= 16 n` already books. (The unit tests see the
+/// isoelectric point bit for bit the one that bisection on [`Microstates::charge`] alone
+/// finds, over 3,000 random systems of up to 18 sites and 3,000 of up to 4.)
 struct QuickCharge {
-    /// `10^(log_g[p] + 7 p - max)`, p = 0..=n: the largest is 1.
-    b: Vec<f64>,
-    /// `p * b[p]`.
-    pb: Vec<f64>,
+    /// `(b[p], p * b[p])` with `b[p] = 10^(log_g[p] + 7 p - max)`, p = 0..=n (the largest
+    /// `b` is 1), side by side for the Horner loop.
+    b: Vec<(f64, f64)>,
     /// Charge of the fully protonated form.
     top: f64,
+    /// Quick values within this of 0 are not trusted with the sign.
+    margin: f64,
 }
 
 impl QuickCharge {
-    /// Quick values within this of 0 are not trusted with the sign.
-    const MARGIN: f64 = 1e-9;
     /// The middle of [`PI_RANGE`]: `y` stays within `10^±9`.
     const PH0: f64 = 7.0;
     /// Longest polynomial (protons) taken: `y^16` stays within `10^±144`, so neither the
@@ -373,6 +460,8 @@ impl QuickCharge {
     const MAX_DEGREE: usize = 16;
     /// Largest `|log_g|` taken, which bounds the rounding of the exponents.
     const MAX_LOG_G: f64 = 1000.0;
+    /// The margin per proton and per unit of `T` (see the type's docs).
+    const MARGIN_PER_N_T: f64 = 6e-14;
 
     fn new(states: &Microstates) -> Option<Self> {
         let log_g = &states.log_g;
@@ -391,19 +480,32 @@ impl QuickCharge {
             .map(|(p, &g)| g + p as f64 * Self::PH0)
             .collect();
         let max = exponents.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-        let b: Vec<f64> = exponents.iter().map(|&e| exp10(e - max)).collect();
-        let pb = b.iter().enumerate().map(|(p, &x)| p as f64 * x).collect();
+        let b = exponents
+            .iter()
+            .enumerate()
+            .map(|(p, &e)| {
+                let x = exp10(e - max);
+                (x, p as f64 * x)
+            })
+            .collect();
+        let n = degree as f64;
+        let t = log_g.iter().fold(0.0, |m: f64, g| m.max(g.abs())) + 16.0 * n;
         Some(Self {
             b,
-            pb,
             top: f64::from(states.base_charge) + states.bases as f64,
+            margin: Self::MARGIN_PER_N_T * n * t,
         })
     }
 
-    fn charge(&self, ph: f64) -> f64 {
-        let y = exp10(ph - Self::PH0);
+    /// `y` at `ph`.
+    fn y(ph: f64) -> f64 {
+        exp10(ph - Self::PH0)
+    }
+
+    /// The charge at the pH where `y = 10^(pH - 7)`.
+    fn charge_at(&self, y: f64) -> f64 {
         let (mut z, mut lost) = (0.0, 0.0);
-        for (&b, &pb) in self.b.iter().zip(&self.pb).rev() {
+        for &(b, pb) in self.b.iter().rev() {
             z = z * y + b;
             lost = lost * y + pb;
         }
@@ -523,7 +625,23 @@ mod tests {
     fn quick_charge_leaves_the_isoelectric_point_bit_for_bit_unchanged() {
         // Pseudo-random systems (a fixed linear congruential sequence): 1 to 18 sites, pKa
         // across and beyond the window, couplings of either sign, some fixed charge.
-        let mut state: u64 = 0x9e37_79b9_7f4a_7c15;
+        let with_point = compare_isoelectric_points(0x9e37_79b9_7f4a_7c15, 18);
+        // Enough of them have an isoelectric point for the comparison to mean something.
+        assert!(with_point > 500, "{with_point} of 3000");
+    }
+
+    #[test]
+    fn quick_charge_with_the_smallest_margins_leaves_the_isoelectric_point_unchanged() {
+        // Few sites and small `log_g` give the smallest margins (a few 1e-12).
+        let with_point = compare_isoelectric_points(0x2545_f491_4f6c_dd1d, 4);
+        assert!(with_point > 500, "{with_point} of 3000");
+    }
+
+    /// Over 3,000 pseudo-random systems of 1 to `max_sites` sites, checks that the
+    /// isoelectric point is bit for bit the one bisection on the exact charge finds; returns
+    /// how many have one.
+    fn compare_isoelectric_points(seed: u64, max_sites: usize) -> usize {
+        let mut state: u64 = seed;
         let mut next = move || {
             state = state
                 .wrapping_mul(6_364_136_223_846_793_005)
@@ -532,7 +650,7 @@ mod tests {
         };
         let mut with_point = 0;
         for case in 0..3000 {
-            let n = 1 + (next() * 18.0) as usize;
+            let n = 1 + (next() * max_sites as f64) as usize;
             let sites: Vec<SiteInput> = (0..n)
                 .map(|_| {
                     let pka = -6.0 + 28.0 * next();
@@ -567,8 +685,7 @@ mod tests {
             );
             with_point += usize::from(expected.is_some());
         }
-        // Enough of them have an isoelectric point for the comparison to mean something.
-        assert!(with_point > 500, "{with_point} of 3000");
+        with_point
     }
 
     #[test]
@@ -661,6 +778,63 @@ mod tests {
         let all = m.top_states(5.0, 16, f64::NEG_INFINITY);
         let total: f64 = all.iter().map(|(f, _)| exp10(*f)).sum();
         assert!((total - 1.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn one_group_top_states_are_those_of_the_general_walk() {
+        // Coupled sites (one group) of 1 to 7 sites, at several pH: the short way lists the
+        // very states, fractions bit for bit, that the walk over groups lists.
+        let mut state: u64 = 0x1234_5678_9abc_def1;
+        let mut next = move || {
+            state = state
+                .wrapping_mul(6_364_136_223_846_793_005)
+                .wrapping_add(1_442_695_040_888_963_407);
+            (state >> 11) as f64 / (1u64 << 53) as f64
+        };
+        for case in 0..300 {
+            let n = 1 + (next() * 7.0) as usize;
+            let sites: Vec<SiteInput> = (0..n)
+                .map(|_| {
+                    let pka = -2.0 + 18.0 * next();
+                    if next() < 0.5 {
+                        acid(pka)
+                    } else {
+                        base(pka)
+                    }
+                })
+                .collect();
+            let mut interaction = vec![vec![0.0; n]; n];
+            for i in 0..n {
+                for j in (i + 1)..n {
+                    let w = 0.1 + next();
+                    interaction[i][j] = w;
+                    interaction[j][i] = w;
+                }
+            }
+            let m = Microstates::new(&System {
+                sites,
+                interaction,
+                base_charge: 0,
+            })
+            .unwrap();
+            assert_eq!(m.tables.len(), 1, "case {case}");
+            for ph in [0.0, 4.5, 7.4, 12.0] {
+                for keep in [1, 3, 16] {
+                    let cut = MIN_FRACTION.log10();
+                    let general: Vec<(u64, Vec<u32>)> = m
+                        .top_states(ph, keep, cut)
+                        .into_iter()
+                        .map(|(f, masks)| (f.to_bits(), masks))
+                        .collect();
+                    let short: Vec<(u64, Vec<u32>)> = m
+                        .one_group_top_states(ph, keep, cut)
+                        .into_iter()
+                        .map(|(f, mask)| (f.to_bits(), vec![mask]))
+                        .collect();
+                    assert_eq!(general, short, "case {case} pH {ph} keep {keep}");
+                }
+            }
+        }
     }
 
     #[test]
