@@ -1078,18 +1078,9 @@ fn fused_ring_substituents(
     keep_out.extend_from_slice(avoid);
     keep_out.extend_from_slice(fused_atoms);
     // Bonds from the anchor through the site's ring and the fused rings.
-    let mut dist: Vec<(usize, usize)> = vec![(anchor, 0)];
-    let mut head = 0;
-    while let Some(&(a, d)) = dist.get(head) {
-        head += 1;
-        for nb in molecule.neighbors(a) {
-            let b = nb.atom;
-            if (ring.contains(&b) || fused_atoms.contains(&b)) && !dist.iter().any(|&(x, _)| x == b)
-            {
-                dist.push((b, d + 1));
-            }
-        }
-    }
+    let dist = distances_within(molecule, anchor, |b| {
+        ring.contains(&b) || fused_atoms.contains(&b)
+    });
     let mut sum = [0.0; 2];
     let mut groups = [String::new(), String::new()];
     for &f in fused_atoms {
@@ -1370,6 +1361,28 @@ fn is_plain_carbon(molecule: &Molecule, atom: usize) -> bool {
     a.element == 6 && a.charge == 0 && !a.aromatic && a.hybridization == Hybridization::Sp3
 }
 
+/// Bond distances from `start` to the atoms reached through atoms that `inside` admits,
+/// breadth-first, as (atom, distance) in the order reached (`start` first, at 0). For the
+/// small atom sets of one site (a pattern, a ring and its fused rings).
+fn distances_within(
+    molecule: &Molecule,
+    start: usize,
+    inside: impl Fn(usize) -> bool,
+) -> Vec<(usize, usize)> {
+    let mut dist: Vec<(usize, usize)> = vec![(start, 0)];
+    let mut head = 0;
+    while let Some(&(a, d)) = dist.get(head) {
+        head += 1;
+        for nb in molecule.neighbors(a) {
+            let b = nb.atom;
+            if inside(b) && !dist.iter().any(|&(x, _)| x == b) {
+                dist.push((b, d + 1));
+            }
+        }
+    }
+    dist
+}
+
 /// Atoms bonded to the saturated carbons of a Taft class's own pattern (not the anchor),
 /// outside the pattern, as walk entries (atom, the pattern carbon it hangs from, depth),
 /// deepest first. Distances run through the pattern's atoms from the anchor; entries beyond
@@ -1385,17 +1398,8 @@ fn parent_carbon_branches(
     if matched.len() < 2 || !matched.contains(&anchor) {
         return out;
     }
-    // Breadth-first over the pattern's atoms only.
-    let mut dist: Vec<(usize, usize)> = vec![(anchor, 0)];
-    let mut head = 0;
-    while let Some(&(a, d)) = dist.get(head) {
-        head += 1;
-        for nb in molecule.neighbors(a) {
-            if matched.contains(&nb.atom) && !dist.iter().any(|&(b, _)| b == nb.atom) {
-                dist.push((nb.atom, d + 1));
-            }
-        }
-    }
+    // Through the pattern's atoms only.
+    let dist = distances_within(molecule, anchor, |b| matched.contains(&b));
     for &(c, d) in &dist[1..] {
         if d > TAFT_MAX_DEPTH || !is_plain_carbon(molecule, c) {
             continue;
