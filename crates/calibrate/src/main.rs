@@ -298,40 +298,35 @@ const CORRECTIONS: [(Option<Counted>, &str); N_CORRECTIONS] = [
     (Some(Counted::NAlkylBranch), "n_alkyl_term"),
 ];
 
+/// The fields of `SiteClass` that hold the class corrections, in [`CORRECTIONS`] order, as
+/// one array expression: read as a value or assigned to, so the list is written once.
+macro_rules! correction_fields {
+    ($c:expr) => {
+        [
+            $c.ortho_term,
+            $c.fused_aza_term,
+            $c.ring_oxo_term,
+            $c.ortho_field_term,
+            $c.ortho_hbond_term,
+            $c.ortho_resonance_term,
+            $c.aza_pair_term,
+            $c.alkyl_term,
+            $c.ortho_alkyl_term,
+            $c.fused_substituent_term,
+            $c.fused_conjugated_term,
+            $c.n_alkyl_term,
+        ]
+    };
+}
+
 /// The class's corrections in [`CORRECTIONS`] order.
 fn class_corrections(c: &SiteClass) -> [f64; N_CORRECTIONS] {
-    [
-        c.ortho_term,
-        c.fused_aza_term,
-        c.ring_oxo_term,
-        c.ortho_field_term,
-        c.ortho_hbond_term,
-        c.ortho_resonance_term,
-        c.aza_pair_term,
-        c.alkyl_term,
-        c.ortho_alkyl_term,
-        c.fused_substituent_term,
-        c.fused_conjugated_term,
-        c.n_alkyl_term,
-    ]
+    correction_fields!(c)
 }
 
 /// Sets the class's corrections from values in [`CORRECTIONS`] order.
 fn set_class_corrections(c: &mut SiteClass, v: [f64; N_CORRECTIONS]) {
-    [
-        c.ortho_term,
-        c.fused_aza_term,
-        c.ring_oxo_term,
-        c.ortho_field_term,
-        c.ortho_hbond_term,
-        c.ortho_resonance_term,
-        c.aza_pair_term,
-        c.alkyl_term,
-        c.ortho_alkyl_term,
-        c.fused_substituent_term,
-        c.fused_conjugated_term,
-        c.n_alkyl_term,
-    ] = v;
+    correction_fields!(c) = v;
 }
 
 /// Fits y = p0 - rho * x (+ the counted class corrections: ortho, fused-aza, ring-oxo,
