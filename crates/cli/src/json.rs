@@ -27,37 +27,22 @@ pub fn write_record(out: &mut Vec<u8>, record: &Record) {
     out.extend_from_slice(b",\"smiles\":");
     opt_string(out, record.smiles.as_deref());
     out.extend_from_slice(b",\"sites\":");
-    sites(out, &record.sites);
+    array(out, &record.sites, site);
     out.extend_from_slice(b",\"sites_outside_window\":");
-    sites(out, &record.sites_outside_window);
-    out.extend_from_slice(b",\"macro_pka\":[");
-    for (i, &p) in record.macro_pka.iter().enumerate() {
-        if i > 0 {
-            out.push(b',');
-        }
-        float(out, p);
-    }
-    out.extend_from_slice(b"],\"ph\":");
+    array(out, &record.sites_outside_window, site);
+    out.extend_from_slice(b",\"macro_pka\":");
+    array(out, &record.macro_pka, |out, &p| float(out, p));
+    out.extend_from_slice(b",\"ph\":");
     float(out, record.ph);
     out.extend_from_slice(b",\"charge_at_ph\":");
     opt_float(out, record.charge_at_ph);
-    out.extend_from_slice(b",\"species\":[");
-    for (i, sp) in record.species.iter().enumerate() {
-        if i > 0 {
-            out.push(b',');
-        }
-        species(out, sp);
-    }
-    out.extend_from_slice(b"],\"isoelectric_point\":");
+    out.extend_from_slice(b",\"species\":");
+    array(out, &record.species, species);
+    out.extend_from_slice(b",\"isoelectric_point\":");
     opt_float(out, record.isoelectric_point);
-    out.extend_from_slice(b",\"warnings\":[");
-    for (i, w) in record.warnings.iter().enumerate() {
-        if i > 0 {
-            out.push(b',');
-        }
-        string(out, w);
-    }
-    out.extend_from_slice(b"],\"error\":");
+    out.extend_from_slice(b",\"warnings\":");
+    array(out, &record.warnings, |out, w| string(out, w));
+    out.extend_from_slice(b",\"error\":");
     match &record.error {
         Some(e) => {
             out.extend_from_slice(b"{\"message\":");
@@ -69,37 +54,37 @@ pub fn write_record(out: &mut Vec<u8>, record: &Record) {
     out.push(b'}');
 }
 
-fn sites(out: &mut Vec<u8>, sites: &[SiteReport]) {
+/// A JSON array of `items`, each written by `each`.
+fn array<T>(out: &mut Vec<u8>, items: &[T], mut each: impl FnMut(&mut Vec<u8>, &T)) {
     out.push(b'[');
-    for (i, s) in sites.iter().enumerate() {
+    for (i, item) in items.iter().enumerate() {
         if i > 0 {
             out.push(b',');
         }
-        out.extend_from_slice(b"{\"atom\":");
-        unsigned(out, s.atom as u64);
-        out.extend_from_slice(match s.kind {
-            Kind::Acid => b",\"kind\":\"acid\",\"pka\":",
-            Kind::Base => b",\"kind\":\"base\",\"pka\":",
-        });
-        float(out, s.pka);
-        out.extend_from_slice(b",\"uncertainty\":");
-        float(out, s.uncertainty);
-        out.extend_from_slice(b",\"group\":");
-        unsigned(out, s.group as u64);
-        out.extend_from_slice(b",\"class\":");
-        string(out, &s.class);
-        out.extend_from_slice(b",\"class_name\":");
-        string(out, &s.class_name);
-        out.extend_from_slice(b",\"terms\":[");
-        for (j, t) in s.terms.iter().enumerate() {
-            if j > 0 {
-                out.push(b',');
-            }
-            term(out, t);
-        }
-        out.extend_from_slice(b"]}");
+        each(out, item);
     }
     out.push(b']');
+}
+
+fn site(out: &mut Vec<u8>, s: &SiteReport) {
+    out.extend_from_slice(b"{\"atom\":");
+    unsigned(out, s.atom as u64);
+    out.extend_from_slice(match s.kind {
+        Kind::Acid => b",\"kind\":\"acid\",\"pka\":",
+        Kind::Base => b",\"kind\":\"base\",\"pka\":",
+    });
+    float(out, s.pka);
+    out.extend_from_slice(b",\"uncertainty\":");
+    float(out, s.uncertainty);
+    out.extend_from_slice(b",\"group\":");
+    unsigned(out, s.group as u64);
+    out.extend_from_slice(b",\"class\":");
+    string(out, &s.class);
+    out.extend_from_slice(b",\"class_name\":");
+    string(out, &s.class_name);
+    out.extend_from_slice(b",\"terms\":");
+    array(out, &s.terms, term);
+    out.push(b'}');
 }
 
 fn term(out: &mut Vec<u8>, t: &Term) {
