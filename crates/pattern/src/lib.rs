@@ -250,11 +250,7 @@ impl Pattern {
                 false
             });
         }
-        distinct
-            .matches
-            .into_iter()
-            .map(|atoms| Match { atoms })
-            .collect()
+        distinct.into_matches()
     }
     /// A quick pre-filter: whether the anchored pattern atom could match `atom` at all
     /// (element, aromaticity, charge, hydrogens, connections, rings, and what the pattern

@@ -295,11 +295,7 @@ impl<'a> Search<'a> {
             distinct.add(a);
             false
         });
-        distinct
-            .matches
-            .into_iter()
-            .map(|atoms| Match { atoms })
-            .collect()
+        distinct.into_matches()
     }
 
     /// Runs `graph` with its root on `anchor`, giving each complete match (molecule atom per
@@ -463,7 +459,7 @@ pub(crate) struct Distinct {
     /// All sorted atom sets, once there are many (built late: even an empty std set costs
     /// a random seed).
     seen: Option<HashSet<Vec<usize>>>,
-    pub(crate) matches: Vec<Vec<usize>>,
+    matches: Vec<Vec<usize>>,
 }
 
 impl Distinct {
@@ -484,6 +480,14 @@ impl Distinct {
             }
         }
         self.matches.push(atoms.to_vec());
+    }
+
+    /// The kept matches, in the order first found.
+    pub(crate) fn into_matches(self) -> Vec<Match> {
+        self.matches
+            .into_iter()
+            .map(|atoms| Match { atoms })
+            .collect()
     }
 }
 
