@@ -597,6 +597,37 @@ mod tests {
         }
     }
 
+    /// Uniform numbers in [0, 1) from a fixed seed (a 64-bit linear congruential
+    /// generator, Knuth's MMIX constants): the same cases on every run.
+    fn uniform(seed: u64) -> impl FnMut() -> f64 {
+        let mut state = seed;
+        move || {
+            state = state
+                .wrapping_mul(6_364_136_223_846_793_005)
+                .wrapping_add(1_442_695_040_888_963_407);
+            (state >> 11) as f64 / (1u64 << 53) as f64
+        }
+    }
+
+    /// `n` sites with pKa uniform in [low, low + span), each an acid or a base by a coin.
+    fn random_sites(
+        next: &mut impl FnMut() -> f64,
+        n: usize,
+        low: f64,
+        span: f64,
+    ) -> Vec<SiteInput> {
+        (0..n)
+            .map(|_| {
+                let pka = low + span * next();
+                if next() < 0.5 {
+                    acid(pka)
+                } else {
+                    base(pka)
+                }
+            })
+            .collect()
+    }
+
     /// The isoelectric point by bisection on [`Microstates::charge`] alone, as it was
     /// found before the quick charge took most of the steps.
     fn isoelectric_point_by_exact_charge(m: &Microstates) -> Option<f64> {
@@ -641,26 +672,11 @@ mod tests {
     /// isoelectric point is bit for bit the one bisection on the exact charge finds; returns
     /// how many have one.
     fn compare_isoelectric_points(seed: u64, max_sites: usize) -> usize {
-        let mut state: u64 = seed;
-        let mut next = move || {
-            state = state
-                .wrapping_mul(6_364_136_223_846_793_005)
-                .wrapping_add(1_442_695_040_888_963_407);
-            (state >> 11) as f64 / (1u64 << 53) as f64
-        };
+        let mut next = uniform(seed);
         let mut with_point = 0;
         for case in 0..3000 {
             let n = 1 + (next() * max_sites as f64) as usize;
-            let sites: Vec<SiteInput> = (0..n)
-                .map(|_| {
-                    let pka = -6.0 + 28.0 * next();
-                    if next() < 0.5 {
-                        acid(pka)
-                    } else {
-                        base(pka)
-                    }
-                })
-                .collect();
+            let sites = random_sites(&mut next, n, -6.0, 28.0);
             let mut interaction = vec![vec![0.0; n]; n];
             for i in 0..n {
                 for j in (i + 1)..n {
@@ -784,25 +800,10 @@ mod tests {
     fn one_group_top_states_are_those_of_the_general_walk() {
         // Coupled sites (one group) of 1 to 7 sites, at several pH: the short way lists the
         // very states, fractions bit for bit, that the walk over groups lists.
-        let mut state: u64 = 0x1234_5678_9abc_def1;
-        let mut next = move || {
-            state = state
-                .wrapping_mul(6_364_136_223_846_793_005)
-                .wrapping_add(1_442_695_040_888_963_407);
-            (state >> 11) as f64 / (1u64 << 53) as f64
-        };
+        let mut next = uniform(0x1234_5678_9abc_def1);
         for case in 0..300 {
             let n = 1 + (next() * 7.0) as usize;
-            let sites: Vec<SiteInput> = (0..n)
-                .map(|_| {
-                    let pka = -2.0 + 18.0 * next();
-                    if next() < 0.5 {
-                        acid(pka)
-                    } else {
-                        base(pka)
-                    }
-                })
-                .collect();
+            let sites = random_sites(&mut next, n, -2.0, 18.0);
             let mut interaction = vec![vec![0.0; n]; n];
             for i in 0..n {
                 for j in (i + 1)..n {
