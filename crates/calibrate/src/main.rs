@@ -6,7 +6,7 @@
 //! cargo run --release -p pkarta-calibrate -- [--data DIR] [--folds K] [--write] [--table FILE]
 //! ```
 //!
-//! The data are `iupac-acids.csv` (lowest measured pKa: the strongest acid site) and
+//! The data are `iupac-acids.csv` (lowest measured pKa: the strongest acid site at or above -1) and
 //! `iupac-bases.csv` (highest measured conjugate-acid pKa: the most basic site) in
 //! `../shared/data/` by default. When they are absent the program says so and exits 0.
 //!
@@ -51,6 +51,16 @@ const PARENT_PRIOR: f64 = 2.0;
 /// measured compounds -- 4-nitrobenzoic acid 3.21, succinic acid 3.73 / 5.20, glycine's
 /// carboxyl 1.47 -- so the parent is held and the misfit is looked for in the terms.)
 const SCALED_PARENT_PRIOR: f64 = 1000.0;
+
+/// The lowest pKa that the acid file can hold as measured: below about -1, a constant is
+/// measured only against an acidity function, and the file's curation dropped those. Its
+/// `pka` is the lowest *measured* constant, so for a molecule whose strongest acid site
+/// lies below this (a sulfonic acid, about -2) it is the next site's (common practice:
+/// dilute aqueous titration and spectrophotometry reach down to about pH 0, and the file's
+/// lowest value is -0.28). A molecule with no acid site at or above the floor is still
+/// compared with its strongest site. Against comparing every molecule with its strongest
+/// site: cross-validated MAE on the acid file 0.94 -> 0.90, the base file unchanged.
+const MEASURED_FLOOR: f64 = -1.0;
 
 /// Huber weight of a residual: full weight within `HUBER`, falling as 1/r beyond it.
 ///
@@ -176,9 +186,17 @@ fn predict(library: &Library, m: &Measurement) -> Option<Prediction> {
     let pick = |sites: &[pkarta::SiteReport]| -> Option<pkarta::SiteReport> {
         let of_kind = sites.iter().filter(|s| s.kind == m.kind);
         match m.kind {
-            Kind::Acid => of_kind.min_by(|a, b| a.pka.total_cmp(&b.pka)).cloned(),
-            Kind::Base => of_kind.max_by(|a, b| a.pka.total_cmp(&b.pka)).cloned(),
+            // The strongest acid site the file could have measured; a molecule with none
+            // there (every site predicted below the floor) is scored against its strongest
+            // site, so that a prediction too low still counts as an error.
+            Kind::Acid => of_kind
+                .clone()
+                .filter(|s| s.pka >= MEASURED_FLOOR)
+                .min_by(|a, b| a.pka.total_cmp(&b.pka))
+                .or_else(|| of_kind.min_by(|a, b| a.pka.total_cmp(&b.pka))),
+            Kind::Base => of_kind.max_by(|a, b| a.pka.total_cmp(&b.pka)),
         }
+        .cloned()
     };
     // A molecule is covered when it has a site of the measured kind inside the aqueous
     // window; the measured constants all lie inside it.
@@ -593,9 +611,13 @@ fn main() -> Result<()> {
         )?;
         writeln!(
             doc,
-            "compared with the strongest acid site) and `iupac-bases.csv` (highest measured"
+            "compared with the strongest acid site at or above {MEASURED_FLOOR}, below which a constant is"
         )?;
-        writeln!(doc, "conjugate-acid pKa, compared with the most basic site): molecules are split by a hash of")?;
+        writeln!(doc, "not measured in dilute water) and `iupac-bases.csv` (highest measured conjugate-acid pKa,")?;
+        writeln!(
+            doc,
+            "compared with the most basic site): molecules are split by a hash of"
+        )?;
         writeln!(doc, "their SMILES, and each is scored by constants fitted to the other folds only. A molecule")?;
         writeln!(doc, "is covered when it has a site of the measured kind inside the aqueous window. Per class:")?;
         writeln!(doc, "the class of the site each held-out molecule was attributed to; `fitted` says whether the")?;
