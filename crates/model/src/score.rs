@@ -362,9 +362,10 @@ struct BuiltinTexts {
     statistical_label: Vec<OnceLock<Box<str>>>,
     /// Per class and [`Counted`] kind: the source of the class correction.
     counted_source: Vec<OnceLock<Box<str>>>,
-    /// Per class and entry: the source of a substituent term (sigma and rho).
+    /// Per class, entry and [`Used`] constant: the source of a substituent term (sigma and
+    /// rho).
     substituent_source: Vec<OnceLock<Box<str>>>,
-    /// Per entry: [`cite`].
+    /// Per entry: [`cite_star`].
     cite: Vec<OnceLock<Box<str>>>,
     /// Per ring number below [`NUMBERED_KEPT`] and entry: [`numbered`].
     numbered: Vec<OnceLock<Box<str>>>,
@@ -384,7 +385,7 @@ static BUILTIN_TEXTS: Lazy<BuiltinTexts> = Lazy::new(|| {
         ortho_source: slots(classes),
         statistical_label: slots(classes),
         counted_source: slots(classes * COUNTED_KINDS),
-        substituent_source: slots(classes * entries),
+        substituent_source: slots(classes * entries * Used::KINDS),
         cite: slots(entries),
         numbered: slots(NUMBERED_KEPT * entries),
         ortho_label: slots(NUMBERED_KEPT * entries),
@@ -470,14 +471,17 @@ impl Texts {
         )
     }
 
-    fn substituent_source(&self, entry: &SubstituentEntry, rho_source: &str) -> Text {
+    fn substituent_source(&self, entry: &SubstituentEntry, used: Used, rho_source: &str) -> Text {
         let i = self.entry(entry);
         self.kept(
-            |t| t.substituent_source.get(self.class * t.entries + i?),
+            |t| {
+                t.substituent_source
+                    .get((self.class * t.entries + i?) * Used::KINDS + used as usize)
+            },
             || {
                 concat(&[
                     "sigma: ",
-                    &entry.source,
+                    used.citation(&entry.source),
                     if entry.from_memory {
                         " (from memory)"
                     } else {
@@ -490,9 +494,11 @@ impl Texts {
         )
     }
 
-    fn cite(&self, entry: &SubstituentEntry) -> Text {
+    /// Where the entry's sigma* comes from (for the terms that use it whole: hydrogens on
+    /// the reaction centre, alkyl branches).
+    fn cite_star(&self, entry: &SubstituentEntry) -> Text {
         let i = self.entry(entry);
-        self.kept(|t| t.cite.get(i?), || cite(entry))
+        self.kept(|t| t.cite.get(i?), || cite_star(entry))
     }
 
     /// The entry's name, as the label of a chain substituent.
@@ -545,7 +551,74 @@ struct Account<'l> {
     approximate: usize,
 }
 
+/// Which of an entry's constants a substituent term uses, so that its source cites that
+/// constant's part of the entry's `source` and not the whole list.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum Used {
+    /// sigma_m or sigma_p (cited together in the tables).
+    Hammett,
+    /// sigma_p-.
+    Minus,
+    /// sigma_p+.
+    Plus,
+    /// A tabulated sigma* (of the group or of X-CH2).
+    Star,
+    /// Charton's tabulated sigma_I, or a sigma* derived from it.
+    Inductive,
+    /// sigma_I derived from sigma_m and sigma_p, or a sigma* derived from that.
+    FromHammett,
+}
+
+impl Used {
+    const KINDS: usize = 6;
+
+    /// The constant behind `hammett_sigma`'s name for it.
+    fn of_hammett(which: &str) -> Used {
+        match which {
+            "sigma_p-" => Used::Minus,
+            "sigma_p+" => Used::Plus,
+            _ => Used::Hammett,
+        }
+    }
+
+    /// The label that begins this constant's part of an entry's `source`.
+    fn label(self) -> &'static str {
+        match self {
+            Used::Hammett | Used::FromHammett => "sigma_m",
+            Used::Minus => "sigma_p-",
+            Used::Plus => "sigma_p+",
+            Used::Star => "sigma*",
+            Used::Inductive => "sigma_I",
+        }
+    }
+
+    /// This constant's part of `source`: the entries write theirs as parts separated by
+    /// `; ` and each begun by the constants it covers (`sigma_m, sigma_p: Hansch, Leo and
+    /// Taft ...; sigma*: Taft ...`). A source not written that way, or with no part for
+    /// this constant, is cited whole.
+    fn citation(self, source: &str) -> &str {
+        let label = self.label();
+        let mut parts = Vec::new();
+        let mut start = 0;
+        for (at, _) in source.match_indices("; sigma") {
+            parts.push(&source[start..at]);
+            start = at + 2;
+        }
+        parts.push(&source[start..]);
+        parts
+            .into_iter()
+            .find(|part| {
+                part.strip_prefix(label).is_some_and(|rest| {
+                    // `sigma_p` must not take `sigma_p-`'s part, nor `sigma_m` a longer name.
+                    rest.starts_with(':') || rest.starts_with(',') || rest.starts_with(" of ")
+                })
+            })
+            .unwrap_or(source)
+    }
+}
+
 impl Account<'_> {
+    #[allow(clippy::too_many_arguments)]
     fn substituent(
         &mut self,
         label: Text,
@@ -553,11 +626,12 @@ impl Account<'_> {
         rho: f64,
         position: Text,
         entry: &SubstituentEntry,
+        used: Used,
     ) {
         self.terms.push(Term {
             label,
             contribution: -rho * sigma,
-            source: self.texts.substituent_source(entry, self.rho_source),
+            source: self.texts.substituent_source(entry, used, self.rho_source),
             sigma: Some(sigma),
             rho: Some(rho),
             position: Some(position),
@@ -568,11 +642,12 @@ impl Account<'_> {
     }
 }
 
-fn cite(entry: &SubstituentEntry) -> String {
+fn cite_star(entry: &SubstituentEntry) -> String {
+    let source = Used::Star.citation(&entry.source);
     if entry.from_memory {
-        concat(&[&entry.source, " (from memory)"])
+        concat(&[source, " (from memory)"])
     } else {
-        entry.source.clone()
+        source.to_string()
     }
 }
 
@@ -1220,7 +1295,7 @@ fn push_hammett(
             // The method's ortho treatment: sigma-para stands in for the ortho constant, and
             // the class's ortho term (added separately) carries the proximity effect.
             let position = hammett_position(pos, which);
-            account.substituent(label, sigma, rho, position, entry);
+            account.substituent(label, sigma, rho, position, entry, Used::of_hammett(which));
             if let Some(t) = account.terms.last_mut() {
                 t.ortho_substituent = ortho_substituent;
             }
@@ -1287,6 +1362,11 @@ fn push_ortho_inductive(account: &mut Account, entry: &SubstituentEntry, rho: f6
                     "ortho (sigma_I)"
                 }),
                 entry,
+                if derived {
+                    Used::FromHammett
+                } else {
+                    Used::Inductive
+                },
             );
             if let Some(t) = account.terms.last_mut() {
                 t.ortho_substituent = true;
@@ -1432,7 +1512,7 @@ fn taft(
         if h > 0 {
             let texts = account.texts;
             let (sigma, source) = match entry_by_id(library, "hydrogen")
-                .and_then(|e| e.sigma_star.map(|s| (s, texts.cite(e))))
+                .and_then(|e| e.sigma_star.map(|s| (s, texts.cite_star(e))))
             {
                 Some(x) => x,
                 None => (
@@ -1535,7 +1615,7 @@ fn taft(
                 alkyl += s;
                 let texts = account.texts;
                 alkyl_source.get_or_insert_with(|| {
-                    methyl.map(|e| texts.cite(e)).unwrap_or(Cow::Borrowed(
+                    methyl.map(|e| texts.cite_star(e)).unwrap_or(Cow::Borrowed(
                         "Taft 1956, sigma*(CH3CH2) = -0.10 (from memory)",
                     ))
                 });
@@ -1578,6 +1658,11 @@ fn taft(
                 k.rho,
                 taft_position(depth, derived.then(|| derived_label(r.entry))),
                 r.entry,
+                match (derived, r.entry.sigma_i.is_some()) {
+                    (false, _) => Used::Star,
+                    (true, true) => Used::Inductive,
+                    (true, false) => Used::FromHammett,
+                },
             ),
             None => {
                 account.approximate += 1;
@@ -1747,6 +1832,62 @@ pub fn interactions(library: &Library, molecule: &Molecule, sites: &[Site]) -> V
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_term_cites_the_part_of_the_source_for_its_constant() {
+        let source = "sigma_m, sigma_p: Hansch, Leo and Taft, Chem. Rev. 1991, 91, 165, Table I; \
+                      sigma_p-: Hansch, Leo and Taft (sigma-minus column); sigma*: Taft, in \
+                      Newman (ed.), 1956; Perrin, Dempsey and Serjeant, 1981; sigma_I: Charton, 1981";
+        assert_eq!(
+            Used::Hammett.citation(source),
+            "sigma_m, sigma_p: Hansch, Leo and Taft, Chem. Rev. 1991, 91, 165, Table I"
+        );
+        assert_eq!(
+            Used::Minus.citation(source),
+            "sigma_p-: Hansch, Leo and Taft (sigma-minus column)"
+        );
+        // A citation with a `; ` of its own stays whole.
+        assert_eq!(
+            Used::Star.citation(source),
+            "sigma*: Taft, in Newman (ed.), 1956; Perrin, Dempsey and Serjeant, 1981"
+        );
+        assert_eq!(Used::Inductive.citation(source), "sigma_I: Charton, 1981");
+        // No part for the constant, or a source not written in parts: cited whole.
+        assert_eq!(Used::Plus.citation(source), source);
+        let plain = "Aza replacement constants: Jaffe and Jones, 1964";
+        assert_eq!(Used::Hammett.citation(plain), plain);
+        // `sigma_m, sigma_p of X:` is the Hammett part too.
+        let of = "sigma_m, sigma_p of S(CH3)2+: Hansch, Leo and Taft";
+        assert_eq!(Used::Hammett.citation(of), of);
+    }
+
+    #[test]
+    fn every_builtin_substituent_term_source_names_its_constant() {
+        // Over the built-in table: each constant an entry has is cited by the part that
+        // begins with its name, or the whole source where the entry does not split it.
+        for e in &Library::builtin().substituents {
+            for (has, used) in [
+                (e.sigma_m.is_some(), Used::Hammett),
+                (e.sigma_p_minus.is_some(), Used::Minus),
+                (e.sigma_p_plus.is_some(), Used::Plus),
+                (
+                    e.sigma_star.is_some() || e.sigma_star_ch2.is_some(),
+                    Used::Star,
+                ),
+                (e.sigma_i.is_some(), Used::Inductive),
+            ] {
+                if !has {
+                    continue;
+                }
+                let cited = used.citation(&e.source);
+                assert!(
+                    cited == e.source || cited.starts_with(used.label()),
+                    "{}: {used:?} cites {cited:?}",
+                    e.id
+                );
+            }
+        }
+    }
 
     #[test]
     fn coupling_constants_load() {
