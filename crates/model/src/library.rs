@@ -118,7 +118,7 @@ pub struct SiteClass {
     #[serde(default)]
     pub ortho_field_term: f64,
     /// Correction per ortho substituent that can take an intramolecular hydrogen bond
-    /// with the site (C=O, NO2; aromatic scales; set by calibration, 0 when not calibrated).
+    /// with the site (C=O, NO2, alkoxy O; aromatic scales; set by calibration, 0 when not calibrated).
     #[serde(default)]
     pub ortho_hbond_term: f64,
     /// Coefficient on the summed resonance constant sigma_R = sigma_p - sigma_I of the

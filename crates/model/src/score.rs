@@ -1038,7 +1038,7 @@ fn hammett(
         Counted::OrthoHbond,
         ortho_hbond,
         k.ortho_hbond_term,
-        "ortho hydrogen-bond acceptor (C=O, NO2)",
+        "ortho hydrogen-bond acceptor (C=O, NO2, OR)",
     );
     push_counted(
         account,
