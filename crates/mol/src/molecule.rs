@@ -107,6 +107,21 @@ impl Adjacency {
     }
 }
 
+impl Adjacency {
+    /// Each atom's `(start, end)` in [`Adjacency::list`]; the spans follow one another in
+    /// atom order, so together they cover the list from 0 to its end.
+    #[inline]
+    pub(crate) fn spans(&self) -> &[(u32, u32)] {
+        &self.spans
+    }
+
+    /// All neighbour lists back to back, in atom order.
+    #[inline]
+    pub(crate) fn list(&self) -> &[Neighbor] {
+        &self.list
+    }
+}
+
 impl std::ops::Index<usize> for Adjacency {
     type Output = [Neighbor];
     #[inline]

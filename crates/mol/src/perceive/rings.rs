@@ -19,9 +19,21 @@ const HORTON_LIMIT: usize = 300;
 /// shortest linearly independent ones (Gaussian elimination over GF(2)). The number of
 /// rings is the cyclomatic number E - V + C.
 pub(crate) fn perceive_rings(m: &mut Molecule) {
-    let mut scratch = Scratch::take(m);
-    perceive_rings_with(m, &mut scratch);
-    scratch.give_back();
+    let done = SPARE_SCRATCH
+        .try_with(|spare| {
+            let mut s = spare.try_borrow_mut().ok()?;
+            s.prepare(m);
+            perceive_rings_with(m, &mut s);
+            Some(())
+        })
+        .ok()
+        .flatten();
+    if done.is_none() {
+        // The thread's arrays are in use or gone (thread teardown): new ones.
+        let mut s = Scratch::default();
+        s.prepare(m);
+        perceive_rings_with(m, &mut s);
+    }
 }
 
 fn perceive_rings_with(m: &mut Molecule, s: &mut Scratch) {
@@ -130,21 +142,25 @@ fn ring_bonds(m: &Molecule, s: &mut Scratch, ring_bond: &mut Vec<bool>) {
     ring_bond.clear();
     ring_bond.resize(m.bonds.len(), true);
     let mut counter = 0;
-    // (atom, bond we came by, next neighbour index)
+    let spans = m.neighbors.spans();
+    let list = m.neighbors.list();
+    // (atom, bond we came by, next place in `list`, end of the atom's neighbours)
     let stack = dfs;
     stack.clear();
     for root in 0..n {
         if order[root] != usize::MAX {
             continue;
         }
-        stack.push((root, usize::MAX, 0));
+        let (from, to) = spans[root];
+        stack.push((root, usize::MAX, from as usize, to as usize));
         order[root] = counter;
         low[root] = counter;
         counter += 1;
-        while let Some(&mut (v, via, ref mut k)) = stack.last_mut() {
-            if *k < m.neighbors[v].len() {
-                let nb = m.neighbors[v][*k];
-                *k += 1;
+        while let Some(top) = stack.last_mut() {
+            let (v, via, next, end) = *top;
+            if next < end {
+                top.2 = next + 1;
+                let nb = list[next];
                 if nb.bond == via {
                     continue;
                 }
@@ -152,13 +168,14 @@ fn ring_bonds(m: &Molecule, s: &mut Scratch, ring_bond: &mut Vec<bool>) {
                     order[nb.atom] = counter;
                     low[nb.atom] = counter;
                     counter += 1;
-                    stack.push((nb.atom, nb.bond, 0));
+                    let (from, to) = spans[nb.atom];
+                    stack.push((nb.atom, nb.bond, from as usize, to as usize));
                 } else {
                     low[v] = low[v].min(order[nb.atom]);
                 }
             } else {
                 stack.pop();
-                if let Some(&(parent, _, _)) = stack.last() {
+                if let Some(&(parent, _, _, _)) = stack.last() {
                     low[parent] = low[parent].min(low[v]);
                     if low[v] > order[parent] {
                         ring_bond[via] = false;
@@ -287,7 +304,7 @@ struct Scratch {
     ring_bond: Vec<bool>,
     order: Vec<usize>,
     low: Vec<usize>,
-    dfs: Vec<(usize, usize, usize)>,
+    dfs: Vec<(usize, usize, usize, usize)>,
     /// Ring systems: system per atom, their atoms and bonds back to back, ranges.
     system: Vec<usize>,
     system_atoms: Vec<usize>,
@@ -302,31 +319,18 @@ struct Scratch {
 }
 
 thread_local! {
-    /// The arrays of the last ring perception on this thread.
-    static SPARE_SCRATCH: std::cell::RefCell<Option<Scratch>> =
-        const { std::cell::RefCell::new(None) };
+    /// The arrays of the last ring perception on this thread, used where they lie.
+    static SPARE_SCRATCH: std::cell::RefCell<Scratch> = std::cell::RefCell::default();
 }
 
 impl Scratch {
-    /// The thread's arrays (or new ones), ready for `m`: `prev` and `column` all
-    /// `usize::MAX` (set here, so arrays of a perception that did not finish do no harm).
-    fn take(m: &Molecule) -> Self {
-        let mut s = SPARE_SCRATCH
-            .try_with(|spare| spare.borrow_mut().take())
-            .ok()
-            .flatten()
-            .unwrap_or_default();
-        s.prev.clear();
-        s.prev.resize(m.atoms.len(), usize::MAX);
-        s.column.clear();
-        s.column.resize(m.bonds.len(), usize::MAX);
-        s
-    }
-
-    /// Hands the arrays to the thread for the next molecule.
-    fn give_back(self) {
-        // During thread teardown the slot may be gone; the arrays are then just freed.
-        let _ = SPARE_SCRATCH.try_with(|spare| *spare.borrow_mut() = Some(self));
+    /// Makes the arrays ready for `m`: `prev` and `column` all `usize::MAX` (set here, so
+    /// arrays of a perception that did not finish do no harm).
+    fn prepare(&mut self, m: &Molecule) {
+        self.prev.clear();
+        self.prev.resize(m.atoms.len(), usize::MAX);
+        self.column.clear();
+        self.column.resize(m.bonds.len(), usize::MAX);
     }
 }
 
