@@ -13,15 +13,18 @@ pub(crate) fn kekulize(m: &mut Molecule, needs_pi: &[bool]) -> Result<(), Error>
     if !needs_pi.contains(&true) {
         return Ok(());
     }
-    let mut scratch = SPARE_SCRATCH
-        .try_with(|spare| spare.borrow_mut().take())
+    let done = SPARE_SCRATCH
+        .try_with(|spare| {
+            let mut s = spare.try_borrow_mut().ok()?;
+            Some(kekulize_with(m, needs_pi, &mut s))
+        })
         .ok()
-        .flatten()
-        .unwrap_or_default();
-    let result = kekulize_with(m, needs_pi, &mut scratch);
-    // During thread teardown the slot may be gone; the arrays are then just freed.
-    let _ = SPARE_SCRATCH.try_with(|spare| *spare.borrow_mut() = Some(scratch));
-    result
+        .flatten();
+    match done {
+        Some(result) => result,
+        // The thread's arrays are in use or gone (thread teardown): new ones.
+        None => kekulize_with(m, needs_pi, &mut Scratch::default()),
+    }
 }
 
 /// Arrays of the Kekulé assignment, kept per thread between molecules (allocating them
@@ -38,9 +41,8 @@ struct Scratch {
 }
 
 thread_local! {
-    /// The arrays of the last Kekulé assignment on this thread.
-    static SPARE_SCRATCH: std::cell::RefCell<Option<Scratch>> =
-        const { std::cell::RefCell::new(None) };
+    /// The arrays of the last Kekulé assignment on this thread, used where they lie.
+    static SPARE_SCRATCH: std::cell::RefCell<Scratch> = std::cell::RefCell::default();
 }
 
 fn kekulize_with(m: &mut Molecule, needs_pi: &[bool], s: &mut Scratch) -> Result<(), Error> {

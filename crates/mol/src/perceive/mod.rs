@@ -66,7 +66,8 @@ pub(crate) fn perceive(input: &str, written: Written) -> Result<Molecule, Error>
         rings: Vec::new(),
         components: Vec::new(),
     };
-    m.rebuild_graph();
+    // Without a `.` the text is one component (ring bonds join atoms already joined).
+    m.rebuild_graph_known(!input.contains('.'));
     perceive_rings(&mut m);
     for (i, a) in m.atoms.iter().enumerate() {
         if a.written_aromatic && a.ring_count == 0 {
