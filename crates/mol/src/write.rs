@@ -40,7 +40,6 @@ pub fn write_smiles_with_protons(m: &Molecule, edits: &[(usize, i8)]) -> String 
 /// ```
 pub struct SmilesWriter<'a> {
     m: &'a Molecule,
-    ops: Vec<Op>,
     order: Vec<usize>,
     /// The SMILES with no protons moved, written once: species of one parent differ from
     /// it only at the atoms whose protons move (and in the case of aromatic atoms, perhaps
@@ -50,16 +49,13 @@ pub struct SmilesWriter<'a> {
     plain_lower: Vec<bool>,
     /// Per atom: where its text sits in `plain`.
     plain_atom: Vec<(usize, usize)>,
-    /// Per component: where its ops start in `ops` (at its `Op::Component`), and where its
-    /// text sits in `plain` (without the `.` before it).
-    plain_component: Vec<(usize, usize, usize)>,
+    /// Per component: where its text sits in `plain` (without the `.` before it).
+    plain_component: Vec<(usize, usize)>,
 }
 
-/// One step of the written walk.
+/// One step of the written walk of a component.
 #[derive(Clone, Copy)]
 enum Op {
-    /// Start of component `k` (a `.` before all but the first).
-    Component(usize),
     Atom(usize),
     /// The bond symbol, if any, of a bond entered or a ring bond opened.
     Bond(usize),
@@ -67,49 +63,22 @@ enum Op {
     Digit(usize),
 }
 
-impl<'a> SmilesWriter<'a> {
-    /// Walks the molecule once.
-    pub fn new(m: &'a Molecule) -> Self {
-        let mut ops = Vec::with_capacity(3 * m.atoms.len() + m.components.len());
-        let mut order = Vec::with_capacity(m.atoms.len());
-        let mut component_ops = Vec::with_capacity(m.components.len());
-        with_scratch(m, |scratch| {
-            for (k, component) in m.components.iter().enumerate() {
-                component_ops.push(ops.len());
-                ops.push(Op::Component(k));
-                walk_component(m, component, &mut ops, &mut order, scratch);
-            }
-        });
-        let mut w = SmilesWriter {
-            m,
-            ops,
-            order,
-            plain: String::new(),
-            plain_lower: Vec::new(),
-            plain_atom: Vec::new(),
-            plain_component: Vec::new(),
-        };
-        let (plain, plain_lower, plain_atom, texts) = w.write_plain();
-        w.plain = plain;
-        w.plain_lower = plain_lower;
-        w.plain_atom = plain_atom;
-        w.plain_component = component_ops
-            .into_iter()
-            .zip(texts)
-            .map(|(op, (from, to))| (op, from, to))
-            .collect();
-        w
+/// Appends the text of one step, the component written lower case or not.
+#[inline]
+fn push_op(v: &View, op: Op, lower: bool, out: &mut String) {
+    match op {
+        Op::Atom(i) => atom_text(v, i, lower, out),
+        Op::Bond(b) => out.push_str(bond_text(v.m, b, lower)),
+        Op::Text(t) => out.push_str(t),
+        Op::Digit(d) => push_digit(out, d),
     }
+}
 
-    /// The SMILES with no protons moved, each component's case, each atom's place and each
-    /// component's place.
-    #[allow(clippy::type_complexity)]
-    fn write_plain(&self) -> (String, Vec<bool>, Vec<(usize, usize)>, Vec<(usize, usize)>) {
-        let v = View {
-            m: self.m,
-            edits: &[],
-        };
-        let m = self.m;
+impl<'a> SmilesWriter<'a> {
+    /// Walks the molecule once, writing the SMILES with no protons moved on the way.
+    pub fn new(m: &'a Molecule) -> Self {
+        let v = View { m, edits: &[] };
+        let mut order = Vec::with_capacity(m.atoms.len());
         let mut out = String::with_capacity(m.input.len() + 16);
         let mut lowers = vec![false; m.components.len()];
         let mut texts: Vec<(usize, usize)> = Vec::with_capacity(m.components.len());
@@ -118,35 +87,35 @@ impl<'a> SmilesWriter<'a> {
         // component worked that out already (every aromatic atom of a component written
         // lower case).
         let mut organic = vec![false; m.atoms.len()];
-        let mut lower = false;
-        for &op in &self.ops {
-            match op {
-                Op::Component(k) => {
-                    if let Some(last) = texts.last_mut() {
-                        last.1 = out.len();
-                    }
-                    if k > 0 {
-                        out.push('.');
-                    }
-                    texts.push((out.len(), out.len()));
-                    lower = aromatic_writable_noting(&v, &m.components[k], &mut organic);
-                    lowers[k] = lower;
+        with_scratch(m, |scratch| {
+            for (k, component) in m.components.iter().enumerate() {
+                if k > 0 {
+                    out.push('.');
                 }
-                Op::Atom(i) => {
-                    let from = out.len();
-                    let known = (lower && m.atoms[i].aromatic).then(|| organic[i]);
-                    atom_text_known(&v, i, lower, known, &mut out);
-                    places[i] = (from, out.len());
-                }
-                Op::Bond(b) => out.push_str(bond_text(m, b, lower)),
-                Op::Text(t) => out.push_str(t),
-                Op::Digit(d) => push_digit(&mut out, d),
+                let from = out.len();
+                let lower = aromatic_writable_noting(&v, component, &mut organic);
+                lowers[k] = lower;
+                walk_component(m, component, scratch, |op| match op {
+                    Op::Atom(i) => {
+                        order.push(i);
+                        let from = out.len();
+                        let known = (lower && m.atoms[i].aromatic).then(|| organic[i]);
+                        atom_text_known(&v, i, lower, known, &mut out);
+                        places[i] = (from, out.len());
+                    }
+                    op => push_op(&v, op, lower, &mut out),
+                });
+                texts.push((from, out.len()));
             }
+        });
+        SmilesWriter {
+            m,
+            order,
+            plain: out,
+            plain_lower: lowers,
+            plain_atom: places,
+            plain_component: texts,
         }
-        if let Some(last) = texts.last_mut() {
-            last.1 = out.len();
-        }
-        (out, lowers, places, texts)
     }
 
     /// For each atom in the order written, its index in the molecule.
@@ -164,7 +133,7 @@ impl<'a> SmilesWriter<'a> {
         let m = self.m;
         let mut out = String::with_capacity(self.plain.len() + 8);
         let in_component = |a: usize, k: usize| m.atoms.get(a).is_some_and(|x| x.component == k);
-        for (k, &(op_from, text_from, text_to)) in self.plain_component.iter().enumerate() {
+        for (k, &(text_from, text_to)) in self.plain_component.iter().enumerate() {
             if k > 0 {
                 out.push('.');
             }
@@ -193,19 +162,13 @@ impl<'a> SmilesWriter<'a> {
                 out.push_str(&self.plain[cursor..text_to]);
                 continue;
             }
-            let op_to = self
-                .plain_component
-                .get(k + 1)
-                .map_or(self.ops.len(), |c| c.0);
-            for &op in &self.ops[op_from + 1..op_to] {
-                match op {
-                    Op::Component(_) => {}
-                    Op::Atom(i) => atom_text(&v, i, lower, &mut out),
-                    Op::Bond(b) => out.push_str(bond_text(m, b, lower)),
-                    Op::Text(t) => out.push_str(t),
-                    Op::Digit(d) => push_digit(&mut out, d),
-                }
-            }
+            // In the other case (rare): the component walked again, the same walk (it
+            // depends on the bonds alone), every step written afresh.
+            with_scratch(m, |scratch| {
+                walk_component(m, &m.components[k], scratch, |op| {
+                    push_op(&v, op, lower, &mut out)
+                });
+            });
         }
         out
     }
@@ -529,13 +492,8 @@ impl Scratch {
     }
 }
 
-fn walk_component(
-    m: &Molecule,
-    component: &[usize],
-    ops: &mut Vec<Op>,
-    order: &mut Vec<usize>,
-    s: &mut Scratch,
-) {
+/// Walks one component, handing each step to `emit` in the order written.
+fn walk_component(m: &Molecule, component: &[usize], s: &mut Scratch, mut emit: impl FnMut(Op)) {
     let Some(&root) = component.first() else {
         return;
     };
@@ -607,22 +565,21 @@ fn walk_component(
         let (at, via) = match event {
             Event::Exit { atom, parent } => {
                 if parent != usize::MAX && s.last_child[parent] != atom {
-                    ops.push(Op::Text(")"));
+                    emit(Op::Text(")"));
                 }
                 continue;
             }
             Event::Enter { atom, via, parent } => {
                 if parent != usize::MAX && s.last_child[parent] != atom {
-                    ops.push(Op::Text("("));
+                    emit(Op::Text("("));
                 }
                 (atom, via)
             }
         };
         if via != usize::MAX {
-            ops.push(Op::Bond(via));
+            emit(Op::Bond(via));
         }
-        ops.push(Op::Atom(at));
-        order.push(at);
+        emit(Op::Atom(at));
         if has_closures && !s.closures[at].is_empty() {
             s.rings.clear();
             s.rings.extend_from_slice(&s.closures[at]);
@@ -643,12 +600,12 @@ fn walk_component(
                         };
                         s.free[d] = false;
                         s.digit_of[b] = d;
-                        ops.push(Op::Bond(b));
-                        ops.push(Op::Digit(d));
+                        emit(Op::Bond(b));
+                        emit(Op::Digit(d));
                     }
                     d => {
                         s.freed.push(d);
-                        ops.push(Op::Digit(d));
+                        emit(Op::Digit(d));
                     }
                 }
             }
