@@ -64,10 +64,18 @@ fn perceive_rings_with(m: &mut Molecule, s: &mut Scratch) {
     let mut renumber = std::mem::take(&mut s.renumber);
     system.clear();
     system.resize(n, usize::MAX);
+    // An atom with a ring bond has one in the tree too (a ring bond off the tree closes a
+    // cycle of tree bonds through both its ends), so the atoms in rings are marked on the
+    // way.
+    let in_ring = &mut s.in_ring;
+    in_ring.clear();
+    in_ring.resize(n, false);
     let mut provisional = 0;
     for &(v, parent, via) in &s.preorder {
         if via != usize::MAX && ring_bond[via] {
             system[v] = system[parent];
+            in_ring[v] = true;
+            in_ring[parent] = true;
         } else {
             system[v] = provisional;
             provisional += 1;
@@ -75,15 +83,6 @@ fn perceive_rings_with(m: &mut Molecule, s: &mut Scratch) {
     }
     // Atoms outside rings leave the numbering; the systems are numbered by lowest atom
     // and sized (atoms and bonds) on the way.
-    let in_ring = &mut s.in_ring;
-    in_ring.clear();
-    in_ring.resize(n, false);
-    for (bond, &r) in m.bonds.iter().zip(&ring_bond) {
-        if r {
-            in_ring[bond.a] = true;
-            in_ring[bond.b] = true;
-        }
-    }
     renumber.clear();
     renumber.resize(provisional, usize::MAX);
     systems.clear();
@@ -194,31 +193,37 @@ fn ring_bonds(m: &Molecule, s: &mut Scratch, ring_bond: &mut Vec<bool>) {
         order[root] = counter;
         low[root] = counter;
         counter += 1;
-        while let Some(top) = stack.last_mut() {
-            let (v, via, next, end) = *top;
-            if next < end {
-                top.2 = next + 1;
+        // The neighbours of the atom on top are read in one run, up to the first atom not
+        // reached yet; the atom's low point stays in a register meanwhile.
+        'walk: while let Some(top) = stack.last_mut() {
+            let (v, via, mut next, end) = *top;
+            let mut low_v = low[v];
+            while next < end {
                 let nb = list[next];
+                next += 1;
                 if nb.bond == via {
                     continue;
                 }
-                if order[nb.atom] == usize::MAX {
+                let seen = order[nb.atom];
+                if seen == usize::MAX {
+                    top.2 = next;
+                    low[v] = low_v;
                     order[nb.atom] = counter;
                     low[nb.atom] = counter;
                     counter += 1;
                     let (from, to) = spans[nb.atom];
                     stack.push((nb.atom, nb.bond, from as usize, to as usize));
                     preorder.push((nb.atom, v, nb.bond));
-                } else {
-                    low[v] = low[v].min(order[nb.atom]);
+                    continue 'walk;
                 }
-            } else {
-                stack.pop();
-                if let Some(&(parent, _, _, _)) = stack.last() {
-                    low[parent] = low[parent].min(low[v]);
-                    if low[v] > order[parent] {
-                        ring_bond[via] = false;
-                    }
+                low_v = low_v.min(seen);
+            }
+            low[v] = low_v;
+            stack.pop();
+            if let Some(&(parent, _, _, _)) = stack.last() {
+                low[parent] = low[parent].min(low_v);
+                if low_v > order[parent] {
+                    ring_bond[via] = false;
                 }
             }
         }
