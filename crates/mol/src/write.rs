@@ -83,11 +83,13 @@ impl<'a> SmilesWriter<'a> {
         let mut lowers = vec![false; m.components.len()];
         let mut texts: Vec<(usize, usize)> = Vec::with_capacity(m.components.len());
         let mut places = vec![(0, 0); m.atoms.len()];
-        // Per atom, whether it is written without brackets, where the case test of its
-        // component worked that out already (every aromatic atom of a component written
-        // lower case).
-        let mut organic = vec![false; m.atoms.len()];
         with_scratch(m, |scratch| {
+            // Per atom, whether it is written without brackets, where the case test of its
+            // component worked that out already (every aromatic atom of a component written
+            // lower case).
+            let mut organic = std::mem::take(&mut scratch.organic);
+            organic.clear();
+            organic.resize(m.atoms.len(), false);
             for (k, component) in m.components.iter().enumerate() {
                 if k > 0 {
                     out.push('.');
@@ -107,6 +109,7 @@ impl<'a> SmilesWriter<'a> {
                 });
                 texts.push((from, out.len()));
             }
+            scratch.organic = organic;
         });
         SmilesWriter {
             m,
@@ -428,6 +431,8 @@ struct Scratch {
     /// The walk of the component, and its ring-closure bonds.
     events: Vec<Event>,
     closure_bonds: Vec<usize>,
+    /// Per atom, for the plain text: written without brackets (see [`SmilesWriter::new`]).
+    organic: Vec<bool>,
 }
 
 thread_local! {
