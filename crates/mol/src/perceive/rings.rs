@@ -580,16 +580,19 @@ impl LocalGraph {
         if !found {
             return None;
         }
+        // The path read back from `to`, then appended from `from`.
         let mut bits = 1u64 << skip;
-        let begin = out.len();
-        out.push(atoms[to]);
+        let mut path = [0u8; 64];
+        let mut len = 1;
+        path[0] = to as u8;
         let mut v = to;
         while v != from {
             bits |= 1u64 << via[v];
             v = prev[v] as usize;
-            out.push(atoms[v]);
+            path[len] = v as u8;
+            len += 1;
         }
-        out[begin..].reverse();
+        out.extend(path[..len].iter().rev().map(|&l| atoms[l as usize]));
         Some(bits)
     }
 }
