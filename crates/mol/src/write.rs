@@ -59,7 +59,8 @@ enum Op {
     Atom(usize),
     /// The bond symbol, if any, of a bond entered or a ring bond opened.
     Bond(usize),
-    Text(&'static str),
+    /// A branch's parenthesis.
+    Text(char),
     Digit(usize),
 }
 
@@ -68,8 +69,12 @@ enum Op {
 fn push_op(v: &View, op: Op, lower: bool, out: &mut String) {
     match op {
         Op::Atom(i) => atom_text(v, i, lower, out),
-        Op::Bond(b) => out.push_str(bond_text(v.m, b, lower)),
-        Op::Text(t) => out.push_str(t),
+        Op::Bond(b) => {
+            if let Some(c) = bond_symbol(v.m, b, lower) {
+                out.push(c);
+            }
+        }
+        Op::Text(c) => out.push(c),
         Op::Digit(d) => push_digit(out, d),
     }
 }
@@ -374,16 +379,19 @@ fn atom_text_known(v: &View, i: usize, lower: bool, organic: Option<bool>, out: 
     out.push(']');
 }
 
-fn bond_text(m: &Molecule, bond: usize, lower: bool) -> &'static str {
+/// The symbol written for a bond, if any (one character, pushed as such rather than
+/// copied as text).
+#[inline]
+fn bond_symbol(m: &Molecule, bond: usize, lower: bool) -> Option<char> {
     let b = &m.bonds[bond];
     if lower && b.aromatic {
-        return "";
+        return None;
     }
     match b.order {
-        2 => "=",
-        3 => "#",
-        _ if lower && m.atoms[b.a].aromatic && m.atoms[b.b].aromatic => "-",
-        _ => "",
+        2 => Some('='),
+        3 => Some('#'),
+        _ if lower && m.atoms[b.a].aromatic && m.atoms[b.b].aromatic => Some('-'),
+        _ => None,
     }
 }
 
@@ -570,13 +578,13 @@ fn walk_component(m: &Molecule, component: &[usize], s: &mut Scratch, mut emit: 
         let (at, via) = match event {
             Event::Exit { atom, parent } => {
                 if parent != usize::MAX && s.last_child[parent] != atom {
-                    emit(Op::Text(")"));
+                    emit(Op::Text(')'));
                 }
                 continue;
             }
             Event::Enter { atom, via, parent } => {
                 if parent != usize::MAX && s.last_child[parent] != atom {
-                    emit(Op::Text("("));
+                    emit(Op::Text('('));
                 }
                 (atom, via)
             }
