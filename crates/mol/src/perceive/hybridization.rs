@@ -10,7 +10,7 @@ use crate::molecule::{Hybridization, Molecule};
 /// `sums` are the atoms' bond-order sums (see `bond_sums`): the pi bonds at an atom are its
 /// bond-order sum less its connections.
 pub(crate) fn perceive_hybridization(m: &mut Molecule, sums: &[u32]) {
-    for i in 0..m.atoms.len() {
+    for (i, &sum) in sums.iter().enumerate().take(m.atoms.len()) {
         let a = &m.atoms[i];
         let main = matches!(a.element, 5..=9 | 14..=17 | 33..=35 | 52 | 53);
         let h = if !main {
@@ -19,7 +19,7 @@ pub(crate) fn perceive_hybridization(m: &mut Molecule, sums: &[u32]) {
             Hybridization::Sp2
         } else {
             // Orders are 1 to 3, so each bond adds its order less one.
-            let pi = sums[i].saturating_sub(m.neighbors[i].len() as u32);
+            let pi = sum.saturating_sub(m.neighbors[i].len() as u32);
             match pi {
                 0 => Hybridization::Sp3,
                 1 => Hybridization::Sp2,
