@@ -107,6 +107,21 @@ impl Adjacency {
     }
 }
 
+impl Adjacency {
+    /// Each atom's `(start, end)` in [`Adjacency::list`]; the spans follow one another in
+    /// atom order, so together they cover the list from 0 to its end.
+    #[inline]
+    pub(crate) fn spans(&self) -> &[(u32, u32)] {
+        &self.spans
+    }
+
+    /// All neighbour lists back to back, in atom order.
+    #[inline]
+    pub(crate) fn list(&self) -> &[Neighbor] {
+        &self.list
+    }
+}
+
 impl std::ops::Index<usize> for Adjacency {
     type Output = [Neighbor];
     #[inline]
@@ -204,8 +219,23 @@ impl Molecule {
 
     /// Rebuilds neighbour lists and components from the bonds.
     pub(crate) fn rebuild_graph(&mut self) {
+        self.rebuild_graph_known(false);
+    }
+
+    /// [`Molecule::rebuild_graph`], told whether the atoms are known to form one component
+    /// (SMILES text without a `.`: every atom is bonded to one written before it), which
+    /// then needs no search.
+    pub(crate) fn rebuild_graph_known(&mut self, connected: bool) {
         self.neighbors = Adjacency::build(self.atoms.len(), self.bonds.iter().map(|b| (b.a, b.b)));
         let n = self.atoms.len();
+        // Debug builds search anyway and check the claim below.
+        if connected && n > 0 && !cfg!(debug_assertions) {
+            for a in &mut self.atoms {
+                a.component = 0;
+            }
+            self.components = vec![(0..n).collect()];
+            return;
+        }
         // Components numbered by their lowest atom; then each one's atoms, ascending, in a
         // list of the exact size.
         let mut label = vec![usize::MAX; n];
@@ -235,6 +265,10 @@ impl Molecule {
             out[c].push(a);
             self.atoms[a].component = c;
         }
+        debug_assert!(
+            !connected || out.len() == 1,
+            "text without '.' read as parts"
+        );
         self.components = out;
     }
 }

@@ -40,7 +40,6 @@ pub fn write_smiles_with_protons(m: &Molecule, edits: &[(usize, i8)]) -> String 
 /// ```
 pub struct SmilesWriter<'a> {
     m: &'a Molecule,
-    ops: Vec<Op>,
     order: Vec<usize>,
     /// The SMILES with no protons moved, written once: species of one parent differ from
     /// it only at the atoms whose protons move (and in the case of aromatic atoms, perhaps
@@ -50,103 +49,81 @@ pub struct SmilesWriter<'a> {
     plain_lower: Vec<bool>,
     /// Per atom: where its text sits in `plain`.
     plain_atom: Vec<(usize, usize)>,
-    /// Per component: where its ops start in `ops` (at its `Op::Component`), and where its
-    /// text sits in `plain` (without the `.` before it).
-    plain_component: Vec<(usize, usize, usize)>,
+    /// Per component: where its text sits in `plain` (without the `.` before it).
+    plain_component: Vec<(usize, usize)>,
 }
 
-/// One step of the written walk.
+/// One step of the written walk of a component.
 #[derive(Clone, Copy)]
 enum Op {
-    /// Start of component `k` (a `.` before all but the first).
-    Component(usize),
     Atom(usize),
     /// The bond symbol, if any, of a bond entered or a ring bond opened.
     Bond(usize),
-    Text(&'static str),
+    /// A branch's parenthesis.
+    Text(char),
     Digit(usize),
 }
 
-impl<'a> SmilesWriter<'a> {
-    /// Walks the molecule once.
-    pub fn new(m: &'a Molecule) -> Self {
-        let mut ops = Vec::with_capacity(3 * m.atoms.len() + m.components.len());
-        let mut order = Vec::with_capacity(m.atoms.len());
-        let mut scratch = Scratch::take(m);
-        let mut component_ops = Vec::with_capacity(m.components.len());
-        for (k, component) in m.components.iter().enumerate() {
-            component_ops.push(ops.len());
-            ops.push(Op::Component(k));
-            walk_component(m, component, &mut ops, &mut order, &mut scratch);
+/// Appends the text of one step, the component written lower case or not.
+#[inline]
+fn push_op(v: &View, op: Op, lower: bool, out: &mut String) {
+    match op {
+        Op::Atom(i) => atom_text(v, i, lower, out),
+        Op::Bond(b) => {
+            if let Some(c) = bond_symbol(v.m, b, lower) {
+                out.push(c);
+            }
         }
-        scratch.give_back();
-        let mut w = SmilesWriter {
-            m,
-            ops,
-            order,
-            plain: String::new(),
-            plain_lower: Vec::new(),
-            plain_atom: Vec::new(),
-            plain_component: Vec::new(),
-        };
-        let (plain, plain_lower, plain_atom, texts) = w.write_plain();
-        w.plain = plain;
-        w.plain_lower = plain_lower;
-        w.plain_atom = plain_atom;
-        w.plain_component = component_ops
-            .into_iter()
-            .zip(texts)
-            .map(|(op, (from, to))| (op, from, to))
-            .collect();
-        w
+        Op::Text(c) => out.push(c),
+        Op::Digit(d) => push_digit(out, d),
     }
+}
 
-    /// The SMILES with no protons moved, each component's case, each atom's place and each
-    /// component's place.
-    #[allow(clippy::type_complexity)]
-    fn write_plain(&self) -> (String, Vec<bool>, Vec<(usize, usize)>, Vec<(usize, usize)>) {
-        let v = View {
-            m: self.m,
-            edits: &[],
-        };
-        let m = self.m;
+impl<'a> SmilesWriter<'a> {
+    /// Walks the molecule once, writing the SMILES with no protons moved on the way.
+    pub fn new(m: &'a Molecule) -> Self {
+        let v = View { m, edits: &[] };
+        let mut order = Vec::with_capacity(m.atoms.len());
         let mut out = String::with_capacity(m.input.len() + 16);
         let mut lowers = vec![false; m.components.len()];
         let mut texts: Vec<(usize, usize)> = Vec::with_capacity(m.components.len());
         let mut places = vec![(0, 0); m.atoms.len()];
-        // Per atom, whether it is written without brackets, where the case test of its
-        // component worked that out already (every aromatic atom of a component written
-        // lower case).
-        let mut organic = vec![false; m.atoms.len()];
-        let mut lower = false;
-        for &op in &self.ops {
-            match op {
-                Op::Component(k) => {
-                    if let Some(last) = texts.last_mut() {
-                        last.1 = out.len();
-                    }
-                    if k > 0 {
-                        out.push('.');
-                    }
-                    texts.push((out.len(), out.len()));
-                    lower = aromatic_writable_noting(&v, &m.components[k], &mut organic);
-                    lowers[k] = lower;
+        with_scratch(m, |scratch| {
+            // Per atom, whether it is written without brackets, where the case test of its
+            // component worked that out already (every aromatic atom of a component written
+            // lower case).
+            let mut organic = std::mem::take(&mut scratch.organic);
+            organic.clear();
+            organic.resize(m.atoms.len(), false);
+            for (k, component) in m.components.iter().enumerate() {
+                if k > 0 {
+                    out.push('.');
                 }
-                Op::Atom(i) => {
-                    let from = out.len();
-                    let known = (lower && m.atoms[i].aromatic).then(|| organic[i]);
-                    atom_text_known(&v, i, lower, known, &mut out);
-                    places[i] = (from, out.len());
-                }
-                Op::Bond(b) => out.push_str(bond_text(m, b, lower)),
-                Op::Text(t) => out.push_str(t),
-                Op::Digit(d) => push_digit(&mut out, d),
+                let from = out.len();
+                let lower = aromatic_writable_noting(&v, component, &mut organic);
+                lowers[k] = lower;
+                walk_component(m, component, scratch, |op| match op {
+                    Op::Atom(i) => {
+                        order.push(i);
+                        let from = out.len();
+                        let known = (lower && m.atoms[i].aromatic).then(|| organic[i]);
+                        atom_text_known(&v, i, lower, known, &mut out);
+                        places[i] = (from, out.len());
+                    }
+                    op => push_op(&v, op, lower, &mut out),
+                });
+                texts.push((from, out.len()));
             }
+            scratch.organic = organic;
+        });
+        SmilesWriter {
+            m,
+            order,
+            plain: out,
+            plain_lower: lowers,
+            plain_atom: places,
+            plain_component: texts,
         }
-        if let Some(last) = texts.last_mut() {
-            last.1 = out.len();
-        }
-        (out, lowers, places, texts)
     }
 
     /// For each atom in the order written, its index in the molecule.
@@ -164,7 +141,7 @@ impl<'a> SmilesWriter<'a> {
         let m = self.m;
         let mut out = String::with_capacity(self.plain.len() + 8);
         let in_component = |a: usize, k: usize| m.atoms.get(a).is_some_and(|x| x.component == k);
-        for (k, &(op_from, text_from, text_to)) in self.plain_component.iter().enumerate() {
+        for (k, &(text_from, text_to)) in self.plain_component.iter().enumerate() {
             if k > 0 {
                 out.push('.');
             }
@@ -193,19 +170,13 @@ impl<'a> SmilesWriter<'a> {
                 out.push_str(&self.plain[cursor..text_to]);
                 continue;
             }
-            let op_to = self
-                .plain_component
-                .get(k + 1)
-                .map_or(self.ops.len(), |c| c.0);
-            for &op in &self.ops[op_from + 1..op_to] {
-                match op {
-                    Op::Component(_) => {}
-                    Op::Atom(i) => atom_text(&v, i, lower, &mut out),
-                    Op::Bond(b) => out.push_str(bond_text(m, b, lower)),
-                    Op::Text(t) => out.push_str(t),
-                    Op::Digit(d) => push_digit(&mut out, d),
-                }
-            }
+            // In the other case (rare): the component walked again, the same walk (it
+            // depends on the bonds alone), every step written afresh.
+            with_scratch(m, |scratch| {
+                walk_component(m, &m.components[k], scratch, |op| {
+                    push_op(&v, op, lower, &mut out)
+                });
+            });
         }
         out
     }
@@ -261,18 +232,17 @@ fn aromatic_writable_with(
         if !matches!(a.element, 5 | 6 | 7 | 8 | 15 | 16 | 33 | 34) {
             return false;
         }
-        let has_double = m.neighbors[i]
-            .iter()
-            .any(|n| m.bonds[n.bond].aromatic && m.bonds[n.bond].order == 2);
-        let organic = organic_form(v, i, true);
+        let facts = bond_facts(m, i, true);
+        let organic = organic_form_with(v, i, true, facts);
         note(i, organic);
         if organic {
             return true;
         }
         // In brackets the hydrogens are given; the free valence must still call for the
         // double bond exactly when the Kekulé form has one.
+        let (used, has_double) = facts;
         let (hydrogens, charge) = v.hc(i);
-        let used = written_bond_sum(m, i, true) + hydrogens as u32;
+        let used = used + hydrogens as u32;
         let free = allowed_valences(a.element, charge)
             .and_then(|v| v.iter().map(|&t| t as u32).find(|&t| t >= used))
             .map_or(0, |t| t - used);
@@ -280,24 +250,34 @@ fn aromatic_writable_with(
     })
 }
 
-/// Bond sum as a reader counts it: aromatic bonds as 1 when written lower case.
-fn written_bond_sum(m: &Molecule, i: usize, lower: bool) -> u32 {
-    m.neighbors[i]
-        .iter()
-        .map(|n| {
-            let b = &m.bonds[n.bond];
-            if lower && b.aromatic {
-                1
-            } else {
-                b.order as u32
-            }
-        })
-        .sum()
+/// Bond sum as a reader counts it (aromatic bonds as 1 when written lower case), and
+/// whether the atom has an aromatic bond of order 2 in the Kekulé form: one pass over its
+/// bonds for both.
+#[inline]
+fn bond_facts(m: &Molecule, i: usize, lower: bool) -> (u32, bool) {
+    let mut sum = 0;
+    let mut has_double = false;
+    for n in &m.neighbors[i] {
+        let b = &m.bonds[n.bond];
+        sum += if lower && b.aromatic {
+            1
+        } else {
+            b.order as u32
+        };
+        has_double |= b.aromatic && b.order == 2;
+    }
+    (sum, has_double)
 }
 
 /// Whether the atom can be written without brackets and read back with the same
 /// hydrogens (and, for aromatic atoms, the same need for a ring double bond).
 fn organic_form(v: &View, i: usize, lower: bool) -> bool {
+    organic_form_with(v, i, lower, bond_facts(v.m, i, lower))
+}
+
+/// [`organic_form`], given the atom's [`bond_facts`].
+#[inline]
+fn organic_form_with(v: &View, i: usize, lower: bool, (sum, has_double): (u32, bool)) -> bool {
     let m = v.m;
     let a = &m.atoms[i];
     let (hydrogens, charge) = v.hc(i);
@@ -312,13 +292,9 @@ fn organic_form(v: &View, i: usize, lower: bool) -> bool {
         return false;
     }
     let targets = organic_valences(a.element);
-    if targets.is_empty() {
-        return false;
-    }
-    let sum = written_bond_sum(m, i, lower);
     // Past the highest default valence OpenSMILES adds no hydrogens, but some readers fill
     // to the next valence they know (RDKit reads bare `I` with two bonds as `[IH]`):
-    // brackets leave no doubt.
+    // brackets leave no doubt. (No default valence at all: not in the organic subset.)
     let Some(target) = targets.iter().map(|&t| t as u32).find(|&t| t >= sum) else {
         return false;
     };
@@ -329,9 +305,6 @@ fn organic_form(v: &View, i: usize, lower: bool) -> bool {
     }
     let free = target - sum;
     if aromatic {
-        let has_double = m.neighbors[i]
-            .iter()
-            .any(|n| m.bonds[n.bond].aromatic && m.bonds[n.bond].order == 2);
         (free >= 1) == has_double && free.saturating_sub(1) == hydrogens as u32
     } else {
         free == hydrogens as u32
@@ -356,14 +329,11 @@ fn push_number(out: &mut String, x: u32) {
     }
 }
 
+#[inline]
 fn push_symbol(out: &mut String, element: u8, aromatic: bool) {
-    let sym = symbol(element);
-    if aromatic {
-        for c in sym.chars() {
-            out.push(c.to_ascii_lowercase());
-        }
-    } else {
-        out.push_str(sym);
+    // Symbols are one or two ASCII letters: pushed one by one, cheaper than a copy.
+    for &c in symbol(element).as_bytes() {
+        out.push(if aromatic { c.to_ascii_lowercase() } else { c } as char);
     }
 }
 
@@ -409,167 +379,182 @@ fn atom_text_known(v: &View, i: usize, lower: bool, organic: Option<bool>, out: 
     out.push(']');
 }
 
-fn bond_text(m: &Molecule, bond: usize, lower: bool) -> &'static str {
+/// The symbol written for a bond, if any (one character, pushed as such rather than
+/// copied as text).
+#[inline]
+fn bond_symbol(m: &Molecule, bond: usize, lower: bool) -> Option<char> {
     let b = &m.bonds[bond];
     if lower && b.aromatic {
-        return "";
+        return None;
     }
     match b.order {
-        2 => "=",
-        3 => "#",
-        _ if lower && m.atoms[b.a].aromatic && m.atoms[b.b].aromatic => "-",
-        _ => "",
+        2 => Some('='),
+        3 => Some('#'),
+        _ if lower && m.atoms[b.a].aromatic && m.atoms[b.b].aromatic => Some('-'),
+        _ => None,
     }
 }
 
-enum Task {
-    Atom { atom: usize, via: Option<usize> },
-    Text(&'static str),
+/// One step of the depth-first walk, in the order taken.
+#[derive(Clone, Copy)]
+enum Event {
+    /// An atom reached from `parent` by bond `via` (both `usize::MAX` at the root).
+    Enter {
+        atom: usize,
+        via: usize,
+        parent: usize,
+    },
+    /// The walk is done with the atom and all reached from it.
+    Exit { atom: usize, parent: usize },
 }
 
-/// Per-molecule arrays of the walk, left ready (`usize::MAX`, `false`, empty) for the next
-/// component. Kept per thread between molecules: a record writes one molecule after
-/// another, and allocating the arrays afresh for each cost more than the walk.
+/// What the walk has made of a bond so far.
+const UNSEEN: u8 = 0;
+const TREE: u8 = 1;
+const CLOSURE: u8 = 2;
+
+/// Per-molecule arrays of the walk, left ready (`false`, [`UNSEEN`], `usize::MAX`, empty)
+/// for the next component. Kept per thread between molecules and used where they lie: a
+/// record writes one molecule after another, and allocating the arrays afresh for each
+/// cost more than the walk.
 #[derive(Default)]
 struct Scratch {
-    pre: Vec<usize>,
-    is_closure: Vec<bool>,
-    tree: Vec<bool>,
+    visited: Vec<bool>,
+    /// Per bond: [`UNSEEN`], [`TREE`] or [`CLOSURE`].
+    state: Vec<u8>,
     digit_of: Vec<usize>,
-    /// Neighbours of each atom sorted by (atom, bond), flat, with `start` offsets.
-    sorted: Vec<(usize, usize)>,
-    start: Vec<usize>,
-    /// Children (child, bond) and ring-closure bonds, flat with per-atom ranges.
-    children: Vec<(usize, usize)>,
-    child_range: Vec<(usize, usize)>,
+    /// The molecule's neighbour lists, each sorted by (atom, bond), at the molecule's own
+    /// spans.
+    sorted: Vec<crate::Neighbor>,
+    /// Per atom: the last atom reached from it (its last branch, written without
+    /// parentheses), `usize::MAX` if none.
+    last_child: Vec<usize>,
+    /// Ring-closure bonds at each atom, in the order found.
     closures: Vec<Vec<usize>>,
-    stack: Vec<(usize, usize)>,
-    tasks: Vec<Task>,
+    /// Depth-first stack: atom, next place in `sorted`, end of its list.
+    stack: Vec<(usize, usize, usize)>,
     free: Vec<bool>,
     rings: Vec<usize>,
     freed: Vec<usize>,
-    /// Tree bonds as (parent, child, bond) in discovery order, and ring-closure bonds, of
-    /// the component being walked.
-    found: Vec<(usize, usize, usize)>,
+    /// The walk of the component, and its ring-closure bonds.
+    events: Vec<Event>,
     closure_bonds: Vec<usize>,
+    /// Per atom, for the plain text: written without brackets (see [`SmilesWriter::new`]).
+    organic: Vec<bool>,
 }
 
 thread_local! {
     /// The arrays of the last walk on this thread.
-    static SPARE_SCRATCH: std::cell::RefCell<Option<Scratch>> =
-        const { std::cell::RefCell::new(None) };
+    static SPARE_SCRATCH: std::cell::RefCell<Scratch> = std::cell::RefCell::default();
+}
+
+/// Runs `f` on the thread's arrays, made ready for `m` (or on new ones while the thread's
+/// are in use or gone, during thread teardown).
+fn with_scratch<R>(m: &Molecule, f: impl FnOnce(&mut Scratch) -> R) -> R {
+    let mut f = Some(f);
+    let done = SPARE_SCRATCH
+        .try_with(|spare| {
+            let mut s = spare.try_borrow_mut().ok()?;
+            let f = f.take()?;
+            s.prepare(m);
+            Some(f(&mut s))
+        })
+        .ok()
+        .flatten();
+    match (done, f) {
+        (Some(r), _) => r,
+        (None, Some(f)) => {
+            let mut s = Scratch::default();
+            s.prepare(m);
+            f(&mut s)
+        }
+        (None, None) => unreachable!("the walk ran but gave no result"),
+    }
 }
 
 impl Scratch {
-    /// The thread's arrays (or new ones), made ready for `m`. Every array is reset here,
-    /// so arrays from a walk that did not finish are as good as new ones.
-    fn take(m: &Molecule) -> Self {
-        let mut s = SPARE_SCRATCH
-            .try_with(|spare| spare.borrow_mut().take())
-            .ok()
-            .flatten()
-            .unwrap_or_default();
+    /// Makes the arrays ready for `m`. Every array is reset here, so arrays from a walk
+    /// that did not finish are as good as new ones.
+    fn prepare(&mut self, m: &Molecule) {
+        let s = self;
         let n = m.atoms.len();
         let nb = m.bonds.len();
-        s.pre.clear();
-        s.pre.resize(n, usize::MAX);
-        s.is_closure.clear();
-        s.is_closure.resize(nb, false);
-        s.tree.clear();
-        s.tree.resize(nb, false);
+        s.visited.clear();
+        s.visited.resize(n, false);
+        s.state.clear();
+        s.state.resize(nb, UNSEEN);
         s.digit_of.clear();
         s.digit_of.resize(nb, usize::MAX);
         s.sorted.clear();
-        s.start.clear();
-        for v in 0..n {
-            s.start.push(s.sorted.len());
-            let from = s.sorted.len();
-            s.sorted
-                .extend(m.neighbors[v].iter().map(|nb| (nb.atom, nb.bond)));
-            let list = &mut s.sorted[from..];
-            // Most lists come in order already (bonds are numbered as written).
-            if !list.windows(2).all(|w| w[0] <= w[1]) {
-                list.sort_unstable();
+        s.sorted.extend_from_slice(m.neighbors.list());
+        for &(from, to) in m.neighbors.spans() {
+            let list = &mut s.sorted[from as usize..to as usize];
+            // Most lists come in order already (bonds are numbered as written). No two
+            // bonds join the same pair of atoms, so the atoms alone tell the order; a tie
+            // would only take the sort below.
+            if !list.windows(2).all(|w| w[0].atom < w[1].atom) {
+                list.sort_unstable_by_key(|nb| (nb.atom, nb.bond));
             }
         }
-        s.start.push(s.sorted.len());
-        s.children.clear();
-        s.child_range.clear();
-        s.child_range.resize(n, (0, 0));
+        s.last_child.clear();
+        s.last_child.resize(n, usize::MAX);
         for c in &mut s.closures {
             c.clear();
         }
-        s
-    }
-
-    /// Hands the arrays to the thread for the next walk.
-    fn give_back(self) {
-        // During thread teardown the slot may be gone; the arrays are then just freed.
-        let _ = SPARE_SCRATCH.try_with(|spare| *spare.borrow_mut() = Some(self));
     }
 }
 
-fn walk_component(
-    m: &Molecule,
-    component: &[usize],
-    ops: &mut Vec<Op>,
-    order: &mut Vec<usize>,
-    s: &mut Scratch,
-) {
+/// Walks one component, handing each step to `emit` in the order written.
+fn walk_component(m: &Molecule, component: &[usize], s: &mut Scratch, mut emit: impl FnMut(Op)) {
     let Some(&root) = component.first() else {
         return;
     };
-    // Pass 1: depth-first tree, preorder, ring-closure bonds. Children are recorded in
-    // discovery order; a node's children are found while it is on top of the stack, so
-    // they are stored per node after the walk from (parent, child, bond) triples.
-    let mut counter = 0;
-    s.pre[root] = counter;
-    counter += 1;
-    s.stack.clear();
-    s.stack.push((root, 0));
-    let mut found = std::mem::take(&mut s.found);
+    let spans = m.neighbors.spans();
+    // Pass 1: depth-first walk (neighbours in atom order), tree and ring-closure bonds.
+    // The atoms are written in the order it enters them, each branch but an atom's last in
+    // parentheses; only the ring-closure digits need the whole walk first.
+    let mut events = std::mem::take(&mut s.events);
     let mut closure_bonds = std::mem::take(&mut s.closure_bonds);
-    found.clear();
+    events.clear();
     closure_bonds.clear();
-    while let Some(&mut (at, ref mut k)) = s.stack.last_mut() {
-        let list = &s.sorted[s.start[at]..s.start[at + 1]];
-        if *k >= list.len() {
+    s.visited[root] = true;
+    s.stack.clear();
+    let (from, to) = spans[root];
+    s.stack.push((root, from as usize, to as usize));
+    events.push(Event::Enter {
+        atom: root,
+        via: usize::MAX,
+        parent: usize::MAX,
+    });
+    while let Some(top) = s.stack.last_mut() {
+        let (at, next, end) = *top;
+        if next >= end {
             s.stack.pop();
+            let parent = s.stack.last().map_or(usize::MAX, |t| t.0);
+            events.push(Event::Exit { atom: at, parent });
             continue;
         }
-        let (w, b) = list[*k];
-        *k += 1;
-        if s.tree[b] || s.is_closure[b] {
+        top.1 = next + 1;
+        let nb = s.sorted[next];
+        let (w, b) = (nb.atom, nb.bond);
+        if s.state[b] != UNSEEN {
             continue;
         }
-        if s.pre[w] == usize::MAX {
-            s.tree[b] = true;
-            s.pre[w] = counter;
-            counter += 1;
-            found.push((at, w, b));
-            s.stack.push((w, 0));
+        if !s.visited[w] {
+            s.state[b] = TREE;
+            s.visited[w] = true;
+            s.last_child[at] = w;
+            events.push(Event::Enter {
+                atom: w,
+                via: b,
+                parent: at,
+            });
+            let (from, to) = spans[w];
+            s.stack.push((w, from as usize, to as usize));
         } else {
-            s.is_closure[b] = true;
+            s.state[b] = CLOSURE;
             closure_bonds.push(b);
         }
-    }
-    // Children of each atom, in discovery order: counted per parent, then filled in the
-    // order found (the ranges of different parents may lie in any order).
-    for &(p, _, _) in &found {
-        s.child_range[p].1 += 1;
-    }
-    let mut next = 0;
-    for &a in component {
-        let count = s.child_range[a].1;
-        s.child_range[a] = (next, next);
-        next += count;
-    }
-    s.children.clear();
-    s.children.resize(found.len(), (0, 0));
-    for &(p, w, b) in &found {
-        let range = &mut s.child_range[p];
-        s.children[range.1] = (w, b);
-        range.1 += 1;
     }
     // Ring-closure bonds at each of their two atoms, in the order found.
     let has_closures = !closure_bonds.is_empty();
@@ -588,24 +573,25 @@ fn walk_component(
     s.free.clear();
     s.free.resize(100, true);
     s.free[0] = false;
-    s.tasks.clear();
-    s.tasks.push(Task::Atom {
-        atom: root,
-        via: None,
-    });
-    while let Some(task) = s.tasks.pop() {
-        let (at, via) = match task {
-            Task::Text(t) => {
-                ops.push(Op::Text(t));
+    for &event in &events {
+        let (at, via) = match event {
+            Event::Exit { atom, parent } => {
+                if parent != usize::MAX && s.last_child[parent] != atom {
+                    emit(Op::Text(')'));
+                }
                 continue;
             }
-            Task::Atom { atom, via } => (atom, via),
+            Event::Enter { atom, via, parent } => {
+                if parent != usize::MAX && s.last_child[parent] != atom {
+                    emit(Op::Text('('));
+                }
+                (atom, via)
+            }
         };
-        if let Some(b) = via {
-            ops.push(Op::Bond(b));
+        if via != usize::MAX {
+            emit(Op::Bond(via));
         }
-        ops.push(Op::Atom(at));
-        order.push(at);
+        emit(Op::Atom(at));
         if has_closures && !s.closures[at].is_empty() {
             s.rings.clear();
             s.rings.extend_from_slice(&s.closures[at]);
@@ -626,12 +612,12 @@ fn walk_component(
                         };
                         s.free[d] = false;
                         s.digit_of[b] = d;
-                        ops.push(Op::Bond(b));
-                        ops.push(Op::Digit(d));
+                        emit(Op::Bond(b));
+                        emit(Op::Digit(d));
                     }
                     d => {
                         s.freed.push(d);
-                        ops.push(Op::Digit(d));
+                        emit(Op::Digit(d));
                     }
                 }
             }
@@ -640,39 +626,25 @@ fn walk_component(
                 s.free[d] = true;
             }
         }
-        let (from, to) = s.child_range[at];
-        let kids = &s.children[from..to];
-        if let Some((&(last, lb), rest)) = kids.split_last() {
-            s.tasks.push(Task::Atom {
-                atom: last,
-                via: Some(lb),
-            });
-            for &(c, cb) in rest.iter().rev() {
-                s.tasks.push(Task::Text(")"));
-                s.tasks.push(Task::Atom {
-                    atom: c,
-                    via: Some(cb),
-                });
-                s.tasks.push(Task::Text("("));
+    }
+    // Leave the scratch arrays ready for the next component.
+    for &event in &events {
+        if let Event::Enter { atom, via, .. } = event {
+            s.visited[atom] = false;
+            s.last_child[atom] = usize::MAX;
+            if via != usize::MAX {
+                s.state[via] = UNSEEN;
             }
         }
     }
-    // Leave the scratch arrays ready for the next component.
-    for &a in component {
-        s.pre[a] = usize::MAX;
-        s.child_range[a] = (0, 0);
-    }
-    for &(_, _, b) in &found {
-        s.tree[b] = false;
-    }
     for &b in &closure_bonds {
-        s.is_closure[b] = false;
+        s.state[b] = UNSEEN;
         s.digit_of[b] = usize::MAX;
         let (x, y) = (m.bonds[b].a, m.bonds[b].b);
         s.closures[x].clear();
         s.closures[y].clear();
     }
-    s.found = found;
+    s.events = events;
     s.closure_bonds = closure_bonds;
 }
 

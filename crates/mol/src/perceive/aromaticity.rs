@@ -140,14 +140,18 @@ pub(crate) fn perceive_aromaticity(m: &mut Molecule) {
     if m.rings.is_empty() {
         return;
     }
-    let mut scratch = SPARE_SCRATCH
-        .try_with(|spare| spare.borrow_mut().take())
+    let done = SPARE_SCRATCH
+        .try_with(|spare| {
+            let mut s = spare.try_borrow_mut().ok()?;
+            perceive_with(m, &mut s);
+            Some(())
+        })
         .ok()
-        .flatten()
-        .unwrap_or_default();
-    perceive_with(m, &mut scratch);
-    // During thread teardown the slot may be gone; the arrays are then just freed.
-    let _ = SPARE_SCRATCH.try_with(|spare| *spare.borrow_mut() = Some(scratch));
+        .flatten();
+    if done.is_none() {
+        // The thread's arrays are in use or gone (thread teardown): new ones.
+        perceive_with(m, &mut Scratch::default());
+    }
 }
 
 /// Arrays of the aromaticity perception, kept per thread between molecules (allocating
@@ -169,9 +173,8 @@ struct Scratch {
 }
 
 thread_local! {
-    /// The arrays of the last aromaticity perception on this thread.
-    static SPARE_SCRATCH: std::cell::RefCell<Option<Scratch>> =
-        const { std::cell::RefCell::new(None) };
+    /// The arrays of the last aromaticity perception on this thread, used where they lie.
+    static SPARE_SCRATCH: std::cell::RefCell<Scratch> = std::cell::RefCell::default();
 }
 
 fn perceive_with(m: &mut Molecule, s: &mut Scratch) {
@@ -189,7 +192,14 @@ fn perceive_with(m: &mut Molecule, s: &mut Scratch) {
         stamp,
     } = s;
     donors.clear();
-    donors.extend((0..m.atoms.len()).map(|i| donor(m, i)));
+    // Atoms outside rings (about half) are no candidates, known without a call.
+    donors.extend(m.atoms.iter().enumerate().map(|(i, a)| {
+        if a.ring_count == 0 {
+            Donor::No
+        } else {
+            donor(m, i)
+        }
+    }));
     // Candidate rings (index into `m.rings`), their ring bonds back to back in `bonds`.
     rings.clear();
     bond_start.clear();

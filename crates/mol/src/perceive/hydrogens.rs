@@ -5,12 +5,15 @@ use crate::molecule::Molecule;
 use crate::read::Written;
 use crate::{Error, ErrorKind};
 
-/// Sum of bond orders at an atom, aromatic bonds counted as single.
-fn bond_sum(m: &Molecule, atom: usize) -> u32 {
-    m.neighbors[atom]
-        .iter()
-        .map(|n| m.bonds[n.bond].order as u32)
-        .sum()
+/// Sum of bond orders at each atom (aromatic bonds as their order in the molecule): one
+/// pass over the bonds rather than one over each atom's neighbours.
+pub(crate) fn bond_sums(m: &Molecule) -> Vec<u32> {
+    let mut sums = vec![0u32; m.atoms.len()];
+    for b in &m.bonds {
+        sums[b.a] += b.order as u32;
+        sums[b.b] += b.order as u32;
+    }
+    sums
 }
 
 /// Sets the implicit hydrogens of organic-subset atoms and returns, per atom, whether a
@@ -24,8 +27,9 @@ fn bond_sum(m: &Molecule, atom: usize) -> u32 {
 pub(crate) fn implicit_hydrogens(m: &mut Molecule, written: &Written) -> Vec<bool> {
     let n = m.atoms.len();
     let mut needs_pi = vec![false; n];
+    let sums = bond_sums(m);
     for i in 0..n {
-        let sum = bond_sum(m, i);
+        let sum = sums[i];
         let a = &m.atoms[i];
         let organic = written.atoms[i].hcount.is_none();
         let targets: &[u8] = if organic {
@@ -56,8 +60,8 @@ pub(crate) fn implicit_hydrogens(m: &mut Molecule, written: &Written) -> Vec<boo
 }
 
 /// Refuses atoms whose valence (Kekulé bond orders plus hydrogens) exceeds the most their
-/// element allows at their charge.
-pub(crate) fn check_valences(m: &Molecule) -> Result<(), Error> {
+/// element allows at their charge; `sums` are the [`bond_sums`] of the Kekulé form.
+pub(crate) fn check_valences(m: &Molecule, sums: &[u32]) -> Result<(), Error> {
     // Atoms without a valence rule (metals): most molecules have none, and then no
     // neighbour needs looking at below.
     let metal = |e: u8| e != 0 && allowed_valences(e, 0).is_none();
@@ -76,7 +80,7 @@ pub(crate) fn check_valences(m: &Molecule) -> Result<(), Error> {
         {
             continue;
         }
-        let valence = bond_sum(m, i) + a.hydrogens as u32;
+        let valence = sums[i] + a.hydrogens as u32;
         if valence > max as u32 {
             let what = match a.charge {
                 0 => format!("neutral {}", symbol(a.element)),

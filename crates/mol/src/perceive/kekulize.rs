@@ -13,15 +13,18 @@ pub(crate) fn kekulize(m: &mut Molecule, needs_pi: &[bool]) -> Result<(), Error>
     if !needs_pi.contains(&true) {
         return Ok(());
     }
-    let mut scratch = SPARE_SCRATCH
-        .try_with(|spare| spare.borrow_mut().take())
+    let done = SPARE_SCRATCH
+        .try_with(|spare| {
+            let mut s = spare.try_borrow_mut().ok()?;
+            Some(kekulize_with(m, needs_pi, &mut s))
+        })
         .ok()
-        .flatten()
-        .unwrap_or_default();
-    let result = kekulize_with(m, needs_pi, &mut scratch);
-    // During thread teardown the slot may be gone; the arrays are then just freed.
-    let _ = SPARE_SCRATCH.try_with(|spare| *spare.borrow_mut() = Some(scratch));
-    result
+        .flatten();
+    match done {
+        Some(result) => result,
+        // The thread's arrays are in use or gone (thread teardown): new ones.
+        None => kekulize_with(m, needs_pi, &mut Scratch::default()),
+    }
 }
 
 /// Arrays of the Kekulé assignment, kept per thread between molecules (allocating them
@@ -34,33 +37,39 @@ struct Scratch {
     start: Vec<usize>,
     fill: Vec<usize>,
     items: Vec<usize>,
+    /// The bonds between needy atoms: (bond, place of one atom, place of the other).
+    edges: Vec<(usize, usize, usize)>,
     matching: Arrays,
 }
 
 thread_local! {
-    /// The arrays of the last Kekulé assignment on this thread.
-    static SPARE_SCRATCH: std::cell::RefCell<Option<Scratch>> =
-        const { std::cell::RefCell::new(None) };
+    /// The arrays of the last Kekulé assignment on this thread, used where they lie.
+    static SPARE_SCRATCH: std::cell::RefCell<Scratch> = std::cell::RefCell::default();
 }
 
 fn kekulize_with(m: &mut Molecule, needs_pi: &[bool], s: &mut Scratch) -> Result<(), Error> {
     let needy = &mut s.needy;
     needy.clear();
-    needy.extend((0..m.atoms.len()).filter(|&i| needs_pi[i]));
     let index = &mut s.index;
     index.clear();
     index.resize(m.atoms.len(), usize::MAX);
-    for (k, &a) in needy.iter().enumerate() {
-        index[a] = k;
+    for (i, &needs) in needs_pi.iter().enumerate() {
+        if needs {
+            index[i] = needy.len();
+            needy.push(i);
+        }
     }
-    // The bonds between needy atoms, in bond order, as adjacency lists (counted, then
-    // filled: the same lists, in the same order, as pushing bond by bond).
-    let edges = || {
-        m.bonds
-            .iter()
-            .filter(|b| b.written_aromatic && needs_pi[b.a] && needs_pi[b.b])
-            .map(|b| (index[b.a], index[b.b]))
-    };
+    // The bonds between needy atoms, in bond order (bond, and its two atoms' places among
+    // the needy), read once; then as adjacency lists (counted, then filled: the same
+    // lists, in the same order, as pushing bond by bond).
+    let found = &mut s.edges;
+    found.clear();
+    for (k, b) in m.bonds.iter().enumerate() {
+        if b.written_aromatic && needs_pi[b.a] && needs_pi[b.b] {
+            found.push((k, index[b.a], index[b.b]));
+        }
+    }
+    let edges = || found.iter().map(|&(_, a, b)| (a, b));
     let mut start = std::mem::take(&mut s.start);
     start.clear();
     start.resize(needy.len() + 1, 0);
@@ -84,7 +93,7 @@ fn kekulize_with(m: &mut Molecule, needs_pi: &[bool], s: &mut Scratch) -> Result
         fill[b] += 1;
     }
     let adj = Lists { start, items };
-    let result = assign(m, needs_pi, needy, index, &adj, &mut s.matching);
+    let result = assign(m, needy, found, &adj, &mut s.matching);
     s.start = adj.start;
     s.items = adj.items;
     result
@@ -94,9 +103,8 @@ fn kekulize_with(m: &mut Molecule, needs_pi: &[bool], s: &mut Scratch) -> Result
 /// atom is left without one.
 fn assign(
     m: &mut Molecule,
-    needs_pi: &[bool],
     needy: &[usize],
-    index: &[usize],
+    edges: &[(usize, usize, usize)],
     adj: &Lists,
     arrays: &mut Arrays,
 ) -> Result<(), Error> {
@@ -120,12 +128,9 @@ fn assign(
         }
         return Err(Error::new(ErrorKind::Kekulize, &m.input, span));
     }
-    for b in &mut m.bonds {
-        if b.written_aromatic && needs_pi[b.a] && needs_pi[b.b] {
-            let (ka, kb) = (index[b.a], index[b.b]);
-            if mate[ka] == kb {
-                b.order = 2;
-            }
+    for &(bond, ka, kb) in edges {
+        if mate[ka] == kb {
+            m.bonds[bond].order = 2;
         }
     }
     Ok(())

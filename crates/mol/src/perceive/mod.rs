@@ -9,7 +9,7 @@ mod rings;
 
 pub(crate) use aromaticity::perceive_aromaticity;
 pub(crate) use hybridization::perceive_hybridization;
-pub(crate) use hydrogens::{check_valences, implicit_hydrogens};
+pub(crate) use hydrogens::{bond_sums, check_valences, implicit_hydrogens};
 pub(crate) use kekulize::kekulize;
 pub(crate) use rings::perceive_rings;
 
@@ -66,7 +66,8 @@ pub(crate) fn perceive(input: &str, written: Written) -> Result<Molecule, Error>
         rings: Vec::new(),
         components: Vec::new(),
     };
-    m.rebuild_graph();
+    // Without a `.` the text is one component (ring bonds join atoms already joined).
+    m.rebuild_graph_known(!input.contains('.'));
     perceive_rings(&mut m);
     for (i, a) in m.atoms.iter().enumerate() {
         if a.written_aromatic && a.ring_count == 0 {
@@ -79,9 +80,11 @@ pub(crate) fn perceive(input: &str, written: Written) -> Result<Molecule, Error>
     }
     let needs_pi = implicit_hydrogens(&mut m, &written);
     kekulize(&mut m, &needs_pi)?;
-    check_valences(&m)?;
+    // Aromaticity changes no bond order: the sums serve both.
+    let sums = bond_sums(&m);
+    check_valences(&m, &sums)?;
     perceive_aromaticity(&mut m);
-    perceive_hybridization(&mut m);
+    perceive_hybridization(&mut m, &sums);
     Ok(m)
 }
 
@@ -97,5 +100,6 @@ pub(crate) fn reperceive(m: &mut Molecule) {
         b.aromatic = false;
     }
     perceive_aromaticity(m);
-    perceive_hybridization(m);
+    let sums = bond_sums(m);
+    perceive_hybridization(m, &sums);
 }

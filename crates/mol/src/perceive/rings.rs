@@ -19,9 +19,21 @@ const HORTON_LIMIT: usize = 300;
 /// shortest linearly independent ones (Gaussian elimination over GF(2)). The number of
 /// rings is the cyclomatic number E - V + C.
 pub(crate) fn perceive_rings(m: &mut Molecule) {
-    let mut scratch = Scratch::take(m);
-    perceive_rings_with(m, &mut scratch);
-    scratch.give_back();
+    let done = SPARE_SCRATCH
+        .try_with(|spare| {
+            let mut s = spare.try_borrow_mut().ok()?;
+            s.prepare(m);
+            perceive_rings_with(m, &mut s);
+            Some(())
+        })
+        .ok()
+        .flatten();
+    if done.is_none() {
+        // The thread's arrays are in use or gone (thread teardown): new ones.
+        let mut s = Scratch::default();
+        s.prepare(m);
+        perceive_rings_with(m, &mut s);
+    }
 }
 
 fn perceive_rings_with(m: &mut Molecule, s: &mut Scratch) {
@@ -40,51 +52,82 @@ fn perceive_rings_with(m: &mut Molecule, s: &mut Scratch) {
         s.ring_bond = ring_bond;
         return;
     }
-    // Ring systems: components of the ring-bond subgraph, their atoms (in discovery order)
-    // and bonds (sorted) back to back in two lists.
+    // Ring systems: components of the ring-bond subgraph, their atoms and bonds (each
+    // ascending) back to back in two lists, in the order of their lowest atoms. The
+    // components of the depth-first tree without its bridges are the ring systems: in
+    // preorder, an atom joins its parent's system over a ring bond and starts one
+    // otherwise (provisional numbers, atoms outside rings included).
     let mut system = std::mem::take(&mut s.system);
     let mut system_atoms = std::mem::take(&mut s.system_atoms);
     let mut system_bonds = std::mem::take(&mut s.system_bonds);
     let mut systems = std::mem::take(&mut s.systems);
-    let mut stack = std::mem::take(&mut s.stack);
+    let mut renumber = std::mem::take(&mut s.renumber);
     system.clear();
     system.resize(n, usize::MAX);
-    system_atoms.clear();
-    system_bonds.clear();
+    // An atom with a ring bond has one in the tree too (a ring bond off the tree closes a
+    // cycle of tree bonds through both its ends), so the atoms in rings are marked on the
+    // way.
+    let in_ring = &mut s.in_ring;
+    in_ring.clear();
+    in_ring.resize(n, false);
+    let mut provisional = 0;
+    for &(v, parent, via) in &s.preorder {
+        if via != usize::MAX && ring_bond[via] {
+            system[v] = system[parent];
+            in_ring[v] = true;
+            in_ring[parent] = true;
+        } else {
+            system[v] = provisional;
+            provisional += 1;
+        }
+    }
+    // Atoms outside rings leave the numbering; the systems are numbered by lowest atom
+    // and sized (atoms and bonds) on the way.
+    renumber.clear();
+    renumber.resize(provisional, usize::MAX);
     systems.clear();
-    stack.clear();
-    for start in 0..n {
-        if system[start] != usize::MAX || !m.neighbors[start].iter().any(|nb| ring_bond[nb.bond]) {
+    for a in 0..n {
+        if !in_ring[a] {
+            system[a] = usize::MAX;
             continue;
         }
-        let id = systems.len();
-        let (atoms_from, bonds_from) = (system_atoms.len(), system_bonds.len());
-        system_atoms.push(start);
-        system[start] = id;
-        stack.push(start);
-        while let Some(a) = stack.pop() {
-            for nb in &m.neighbors[a] {
-                if !ring_bond[nb.bond] {
-                    continue;
-                }
-                // Each ring bond is met from both ends; kept from its lower one.
-                if a < nb.atom {
-                    system_bonds.push(nb.bond);
-                }
-                if system[nb.atom] == usize::MAX {
-                    system[nb.atom] = id;
-                    system_atoms.push(nb.atom);
-                    stack.push(nb.atom);
-                }
-            }
+        let id = &mut renumber[system[a]];
+        if *id == usize::MAX {
+            *id = systems.len();
+            systems.push((0, 0, 0, 0));
         }
-        system_bonds[bonds_from..].sort_unstable();
-        systems.push((
-            atoms_from,
-            system_atoms.len(),
-            bonds_from,
-            system_bonds.len(),
-        ));
+        system[a] = *id;
+        systems[*id].1 += 1;
+    }
+    for (bond, &r) in m.bonds.iter().zip(&ring_bond) {
+        if r {
+            systems[system[bond.a]].3 += 1;
+        }
+    }
+    let (mut atoms_at, mut bonds_at) = (0, 0);
+    for range in systems.iter_mut() {
+        let (atoms, bonds) = (range.1, range.3);
+        *range = (atoms_at, atoms_at, bonds_at, bonds_at);
+        atoms_at += atoms;
+        bonds_at += bonds;
+    }
+    system_atoms.clear();
+    system_atoms.resize(atoms_at, 0);
+    system_bonds.clear();
+    system_bonds.resize(bonds_at, 0);
+    for a in 0..n {
+        if system[a] != usize::MAX {
+            let range = &mut systems[system[a]];
+            system_atoms[range.1] = a;
+            range.1 += 1;
+        }
+    }
+    for (b, (bond, &r)) in m.bonds.iter().zip(&ring_bond).enumerate() {
+        if r {
+            let range = &mut systems[system[bond.a]];
+            system_bonds[range.3] = b;
+            range.3 += 1;
+        }
     }
     // As many rings as the cyclomatic number of the ring bonds.
     let wanted: usize = systems
@@ -112,7 +155,7 @@ fn perceive_rings_with(m: &mut Molecule, s: &mut Scratch) {
     s.system_atoms = system_atoms;
     s.system_bonds = system_bonds;
     s.systems = systems;
-    s.stack = stack;
+    s.renumber = renumber;
 }
 
 /// Bonds on a cycle (not bridges), by an iterative low-link depth-first search, into
@@ -120,8 +163,13 @@ fn perceive_rings_with(m: &mut Molecule, s: &mut Scratch) {
 fn ring_bonds(m: &Molecule, s: &mut Scratch, ring_bond: &mut Vec<bool>) {
     let n = m.atoms.len();
     let Scratch {
-        order, low, dfs, ..
+        order,
+        low,
+        dfs,
+        preorder,
+        ..
     } = s;
+    preorder.clear();
     order.clear();
     order.resize(n, usize::MAX);
     low.clear();
@@ -130,39 +178,52 @@ fn ring_bonds(m: &Molecule, s: &mut Scratch, ring_bond: &mut Vec<bool>) {
     ring_bond.clear();
     ring_bond.resize(m.bonds.len(), true);
     let mut counter = 0;
-    // (atom, bond we came by, next neighbour index)
+    let spans = m.neighbors.spans();
+    let list = m.neighbors.list();
+    // (atom, bond we came by, next place in `list`, end of the atom's neighbours)
     let stack = dfs;
     stack.clear();
     for root in 0..n {
         if order[root] != usize::MAX {
             continue;
         }
-        stack.push((root, usize::MAX, 0));
+        let (from, to) = spans[root];
+        stack.push((root, usize::MAX, from as usize, to as usize));
+        preorder.push((root, usize::MAX, usize::MAX));
         order[root] = counter;
         low[root] = counter;
         counter += 1;
-        while let Some(&mut (v, via, ref mut k)) = stack.last_mut() {
-            if *k < m.neighbors[v].len() {
-                let nb = m.neighbors[v][*k];
-                *k += 1;
+        // The neighbours of the atom on top are read in one run, up to the first atom not
+        // reached yet; the atom's low point stays in a register meanwhile.
+        'walk: while let Some(top) = stack.last_mut() {
+            let (v, via, mut next, end) = *top;
+            let mut low_v = low[v];
+            while next < end {
+                let nb = list[next];
+                next += 1;
                 if nb.bond == via {
                     continue;
                 }
-                if order[nb.atom] == usize::MAX {
+                let seen = order[nb.atom];
+                if seen == usize::MAX {
+                    top.2 = next;
+                    low[v] = low_v;
                     order[nb.atom] = counter;
                     low[nb.atom] = counter;
                     counter += 1;
-                    stack.push((nb.atom, nb.bond, 0));
-                } else {
-                    low[v] = low[v].min(order[nb.atom]);
+                    let (from, to) = spans[nb.atom];
+                    stack.push((nb.atom, nb.bond, from as usize, to as usize));
+                    preorder.push((nb.atom, v, nb.bond));
+                    continue 'walk;
                 }
-            } else {
-                stack.pop();
-                if let Some(&(parent, _, _)) = stack.last() {
-                    low[parent] = low[parent].min(low[v]);
-                    if low[v] > order[parent] {
-                        ring_bond[via] = false;
-                    }
+                low_v = low_v.min(seen);
+            }
+            low[v] = low_v;
+            stack.pop();
+            if let Some(&(parent, _, _, _)) = stack.last() {
+                low[parent] = low[parent].min(low_v);
+                if low_v > order[parent] {
+                    ring_bond[via] = false;
                 }
             }
         }
@@ -287,46 +348,44 @@ struct Scratch {
     ring_bond: Vec<bool>,
     order: Vec<usize>,
     low: Vec<usize>,
-    dfs: Vec<(usize, usize, usize)>,
+    dfs: Vec<(usize, usize, usize, usize)>,
     /// Ring systems: system per atom, their atoms and bonds back to back, ranges.
     system: Vec<usize>,
     system_atoms: Vec<usize>,
     system_bonds: Vec<usize>,
     systems: Vec<(usize, usize, usize, usize)>,
-    stack: Vec<usize>,
+    /// Provisional system number to final one.
+    renumber: Vec<usize>,
+    /// The depth-first search's atoms in the order reached, each with its parent and the
+    /// bond from it (`usize::MAX` for roots); atoms with a ring bond.
+    preorder: Vec<(usize, usize, usize)>,
+    in_ring: Vec<bool>,
     /// Candidate cycles of a small system, and its reduced rows.
     flat: Vec<usize>,
     candidates: Vec<(usize, usize, u64)>,
     canon: Vec<usize>,
     rows: Vec<(u32, u64)>,
+    /// Per atom: its number within the small ring system being perceived.
+    local: Vec<usize>,
 }
 
 thread_local! {
-    /// The arrays of the last ring perception on this thread.
-    static SPARE_SCRATCH: std::cell::RefCell<Option<Scratch>> =
-        const { std::cell::RefCell::new(None) };
+    /// The arrays of the last ring perception on this thread, used where they lie.
+    static SPARE_SCRATCH: std::cell::RefCell<Scratch> = std::cell::RefCell::default();
 }
 
 impl Scratch {
-    /// The thread's arrays (or new ones), ready for `m`: `prev` and `column` all
-    /// `usize::MAX` (set here, so arrays of a perception that did not finish do no harm).
-    fn take(m: &Molecule) -> Self {
-        let mut s = SPARE_SCRATCH
-            .try_with(|spare| spare.borrow_mut().take())
-            .ok()
-            .flatten()
-            .unwrap_or_default();
-        s.prev.clear();
-        s.prev.resize(m.atoms.len(), usize::MAX);
-        s.column.clear();
-        s.column.resize(m.bonds.len(), usize::MAX);
-        s
-    }
-
-    /// Hands the arrays to the thread for the next molecule.
-    fn give_back(self) {
-        // During thread teardown the slot may be gone; the arrays are then just freed.
-        let _ = SPARE_SCRATCH.try_with(|spare| *spare.borrow_mut() = Some(self));
+    /// Makes the arrays ready for `m`: `prev` and `column` all `usize::MAX` (set here, so
+    /// arrays of a perception that did not finish do no harm).
+    fn prepare(&mut self, m: &Molecule) {
+        self.prev.clear();
+        self.prev.resize(m.atoms.len(), usize::MAX);
+        self.column.clear();
+        self.column.resize(m.bonds.len(), usize::MAX);
+        // Only ever read where just written.
+        if self.local.len() < m.atoms.len() {
+            self.local.resize(m.atoms.len(), 0);
+        }
     }
 }
 
@@ -339,6 +398,16 @@ fn system_rings(
     scratch: &mut Scratch,
     out: &mut Vec<Vec<usize>>,
 ) {
+    if atoms.len() == bonds.len() {
+        out.push(simple_cycle(
+            m,
+            atoms[0],
+            ring_bond,
+            atoms.len(),
+            &mut scratch.flat,
+        ));
+        return;
+    }
     for (k, &b) in bonds.iter().enumerate() {
         scratch.column[b] = k;
     }
@@ -351,6 +420,7 @@ fn system_rings(
         candidates,
         canon,
         rows,
+        local,
         ..
     } = scratch;
     let mut search = Search {
@@ -358,26 +428,14 @@ fn system_rings(
         queue,
         touched,
     };
-    let done = if atoms.len() == bonds.len() {
-        out.push(simple_cycle(m, atoms[0], ring_bond, atoms.len(), flat));
-        true
-    } else if bonds.len() <= 64 {
+    let done = if bonds.len() <= 64 {
         let mut buffers = SmallBuffers {
             flat,
             candidates,
             canon,
             rows,
         };
-        small_system_rings(
-            m,
-            atoms,
-            bonds,
-            ring_bond,
-            &mut search,
-            column,
-            &mut buffers,
-            out,
-        )
+        small_system_rings(m, atoms, bonds, ring_bond, local, column, &mut buffers, out)
     } else {
         false
     };
@@ -437,6 +495,108 @@ struct SmallBuffers<'a> {
     rows: &'a mut Vec<(u32, u64)>,
 }
 
+/// A ring system of at most 64 bonds with its atoms numbered from 0 (in the system's
+/// order) and each atom's ring bonds, in the molecule's neighbour order, as (neighbour,
+/// column of the bond): the breadth-first searches of [`small_system_rings`] run over this,
+/// on the stack, rather than over the whole molecule.
+struct LocalGraph {
+    spans: [(u8, u8); 64],
+    list: [(u8, u8); 128],
+}
+
+impl LocalGraph {
+    /// `None` if the system does not fit (more than 64 atoms cannot happen with at most 64
+    /// bonds and a cycle, but is checked).
+    fn new(
+        m: &Molecule,
+        atoms: &[usize],
+        ring_bond: &[bool],
+        column: &[usize],
+        local: &mut [usize],
+    ) -> Option<Self> {
+        if atoms.len() > 64 {
+            return None;
+        }
+        for (k, &a) in atoms.iter().enumerate() {
+            local[a] = k;
+        }
+        let mut g = LocalGraph {
+            spans: [(0, 0); 64],
+            list: [(0, 0); 128],
+        };
+        let mut next = 0usize;
+        for (k, &a) in atoms.iter().enumerate() {
+            let from = next;
+            for nb in &m.neighbors[a] {
+                if !ring_bond[nb.bond] {
+                    continue;
+                }
+                // Each of at most 64 bonds is listed from its two ends.
+                g.list[next] = (local[nb.atom] as u8, column[nb.bond] as u8);
+                next += 1;
+            }
+            g.spans[k] = (from as u8, next as u8);
+        }
+        Some(g)
+    }
+
+    /// Shortest path from local atom `from` to `to` not using the bond in column `skip`, as
+    /// [`shortest_path_into`] finds it (the same neighbour order, so the same path): its
+    /// atoms (of the molecule) appended to `out`, and its bond set with the skipped bond
+    /// (the cycle's). `None` (and `out` as it was) when there is none.
+    fn cycle_into(
+        &self,
+        atoms: &[usize],
+        from: usize,
+        to: usize,
+        skip: u8,
+        out: &mut Vec<usize>,
+    ) -> Option<u64> {
+        let mut prev = [u8::MAX; 64];
+        let mut via = [0u8; 64];
+        let mut queue = [0u8; 64];
+        let (mut head, mut tail) = (0usize, 1usize);
+        queue[0] = from as u8;
+        prev[from] = from as u8;
+        let mut found = false;
+        'search: while head < tail {
+            let v = queue[head] as usize;
+            head += 1;
+            let (start, end) = self.spans[v];
+            for &(w, c) in &self.list[start as usize..end as usize] {
+                if c == skip || prev[w as usize] != u8::MAX {
+                    continue;
+                }
+                prev[w as usize] = v as u8;
+                via[w as usize] = c;
+                if w as usize == to {
+                    found = true;
+                    break 'search;
+                }
+                queue[tail] = w;
+                tail += 1;
+            }
+        }
+        if !found {
+            return None;
+        }
+        // The path read back from `to`, then appended from `from`.
+        let mut bits = 1u64 << skip;
+        let mut path = [0u8; 64];
+        let mut len = 1;
+        path[0] = to as u8;
+        let mut v = to;
+        while v != from {
+            bits |= 1u64 << via[v];
+            v = prev[v] as usize;
+            path[len] = v as u8;
+            len += 1;
+        }
+        out.extend(path[..len].iter().rev().map(|&l| atoms[l as usize]));
+        Some(bits)
+    }
+}
+
 /// The rings of a system of at most 64 bonds, each bond set one `u64`: the same candidates,
 /// order and choice as [`system_rings_with`] without a vector per candidate, appended to
 /// `out`. `false` (and `out` as it was) when the shortest cycles through each bond do not
@@ -447,12 +607,15 @@ fn small_system_rings(
     atoms: &[usize],
     bonds: &[usize],
     ring_bond: &[bool],
-    search: &mut Search,
+    local: &mut [usize],
     column: &[usize],
     buffers: &mut SmallBuffers,
     out: &mut Vec<Vec<usize>>,
 ) -> bool {
     let wanted = bonds.len() + 1 - atoms.len();
+    let Some(graph) = LocalGraph::new(m, atoms, ring_bond, column, local) else {
+        return false;
+    };
     // Candidate cycles back to back in `flat`, each as (start, end, bond set).
     let SmallBuffers {
         flat,
@@ -462,11 +625,10 @@ fn small_system_rings(
     } = buffers;
     flat.clear();
     candidates.clear();
-    for &b in bonds {
-        let (x, y) = (m.bonds[b].a, m.bonds[b].b);
+    for (k, &b) in bonds.iter().enumerate() {
+        let (x, y) = (local[m.bonds[b].a], local[m.bonds[b].b]);
         let begin = flat.len();
-        if shortest_path_into(m, x, y, b, ring_bond, search, flat) {
-            let v = bits64(m, &flat[begin..], column);
+        if let Some(v) = graph.cycle_into(atoms, x, y, k as u8, flat) {
             if candidates.iter().any(|c| c.2 == v) {
                 flat.truncate(begin);
             } else {
@@ -514,21 +676,6 @@ fn small_system_rings(
         out.truncate(first);
         false
     }
-}
-
-/// The bond set of a cycle as one word (systems of at most 64 bonds).
-fn bits64(m: &Molecule, cycle: &[usize], column: &[usize]) -> u64 {
-    let mut v = 0u64;
-    for k in 0..cycle.len() {
-        let (a, b) = (cycle[k], cycle[(k + 1) % cycle.len()]);
-        if let Some(bond) = m.bond_between(a, b) {
-            let c = column[bond];
-            if c != usize::MAX {
-                v |= 1 << c;
-            }
-        }
-    }
-    v
 }
 
 fn system_rings_with(

@@ -36,6 +36,8 @@ pub(crate) fn read_fast(smiles: &str) -> Option<Written> {
     let mut bonds: Vec<(usize, usize, Symbol)> = Vec::with_capacity(b.len() + 4);
     // The builder's stack of atoms: its top is the atom the next one bonds to.
     let mut stack: Vec<usize> = Vec::with_capacity(b.len());
+    // Per atom, the atom its chain bond comes from (`CLOSED` for the first of a part).
+    let mut chain_from: Vec<usize> = Vec::with_capacity(b.len());
     // Stack heights at each open branch: a branch's close pops what it pushed.
     let mut branches: Vec<usize> = Vec::new();
     let mut open_atom = [CLOSED; 100];
@@ -57,6 +59,9 @@ pub(crate) fn read_fast(smiles: &str) -> Option<Written> {
             if let Some(symbol) = incoming {
                 let head = *stack.last()?;
                 bonds.push((head.min(id), head.max(id), symbol));
+                chain_from.push(head);
+            } else {
+                chain_from.push(CLOSED);
             }
             atoms.push(atom);
             spans.push(Span::new(start, i));
@@ -138,14 +143,17 @@ pub(crate) fn read_fast(smiles: &str) -> Option<Written> {
     }
     // Two bonds between one pair of atoms are an error the full reader names. A chain bond
     // always leads to a new atom, so a repeat involves a ring-closure bond: a few of those
-    // are looked for among the bonds, many are found by sorting all pairs.
+    // are compared with each other and with the one chain bond that could match (the one
+    // into the later atom, from the earlier), many are found by sorting all pairs.
     if closure_count <= FEW_CLOSURES {
-        let repeated = closures[..closure_count].iter().any(|&c| {
+        let few = &closures[..closure_count];
+        let repeated = few.iter().enumerate().any(|(k, &c)| {
             let (a, b, _) = bonds[c];
-            bonds
-                .iter()
-                .enumerate()
-                .any(|(k, &(x, y, _))| k != c && x == a && y == b)
+            chain_from[b] == a
+                || few[k + 1..].iter().any(|&d| {
+                    let (x, y, _) = bonds[d];
+                    x == a && y == b
+                })
         });
         if repeated {
             return None;
