@@ -334,40 +334,40 @@ fn environment_ids(text: &str, count: usize) -> Vec<u32> {
 }
 
 /// Process-wide ids of atom expressions, handed out at parse time.
-static EXPRESSION_IDS: OnceLock<Mutex<HashMap<String, u32>>> = OnceLock::new();
+static EXPRESSION_IDS: OnceLock<Mutex<HashMap<ExprKey, u32>>> = OnceLock::new();
 
-/// Writes an atom expression as a key: its structure, with environments named by their
-/// process-wide ids (local numbers differ from pattern to pattern).
-fn expression_key(expr: &expr::Expr<primitive::AtomPrim>, env_ids: &[u32], out: &mut String) {
-    use std::fmt::Write;
-    match expr {
-        expr::Expr::Prim(primitive::AtomPrim::Recursive(id)) => {
-            // An environment out of range never holds; give it a key no other shares.
-            match env_ids.get(*id as usize) {
-                Some(env) => write!(out, "${env}"),
-                None => write!(out, "$?{id}"),
+/// An atom expression as a key: its structure, with environments named by their
+/// process-wide ids (local numbers differ from pattern to pattern). Kept as a tree rather
+/// than written out as text: patterns compile by the hundred, and formatting every
+/// primitive cost more than the rest of numbering them.
+#[derive(Clone, Debug, PartialEq, Eq, Hash)]
+enum ExprKey {
+    Prim(primitive::AtomPrim),
+    /// An environment, by its process-wide id.
+    Environment(u32),
+    /// An environment out of range (never expected), by its local number: it never holds.
+    Stray(u32),
+    Not(Box<ExprKey>),
+    And(Vec<ExprKey>),
+    Or(Vec<ExprKey>),
+}
+
+impl ExprKey {
+    fn of(expr: &expr::Expr<primitive::AtomPrim>, env_ids: &[u32]) -> ExprKey {
+        let all = |es: &[expr::Expr<primitive::AtomPrim>]| {
+            es.iter().map(|e| ExprKey::of(e, env_ids)).collect()
+        };
+        match expr {
+            expr::Expr::Prim(primitive::AtomPrim::Recursive(id)) => {
+                match env_ids.get(*id as usize) {
+                    Some(&env) => ExprKey::Environment(env),
+                    None => ExprKey::Stray(*id),
+                }
             }
-            .ok();
-        }
-        expr::Expr::Prim(p) => {
-            write!(out, "{p:?}").ok();
-        }
-        expr::Expr::Not(e) => {
-            out.push_str("!(");
-            expression_key(e, env_ids, out);
-            out.push(')');
-        }
-        expr::Expr::And(es) | expr::Expr::Or(es) => {
-            out.push_str(if matches!(expr, expr::Expr::And(_)) {
-                "&("
-            } else {
-                "|("
-            });
-            for e in es {
-                expression_key(e, env_ids, out);
-                out.push(' ');
-            }
-            out.push(')');
+            expr::Expr::Prim(p) => ExprKey::Prim(*p),
+            expr::Expr::Not(e) => ExprKey::Not(Box::new(ExprKey::of(e, env_ids))),
+            expr::Expr::And(es) => ExprKey::And(all(es)),
+            expr::Expr::Or(es) => ExprKey::Or(all(es)),
         }
     }
 }
@@ -375,8 +375,7 @@ fn expression_key(expr: &expr::Expr<primitive::AtomPrim>, env_ids: &[u32], out: 
 /// The process-wide id of an atom expression: equal expressions (environments by their
 /// ids) share it, so their answers on one molecule may be shared.
 fn expression_id(expr: &expr::Expr<primitive::AtomPrim>, env_ids: &[u32]) -> u32 {
-    let mut key = String::new();
-    expression_key(expr, env_ids, &mut key);
+    let key = ExprKey::of(expr, env_ids);
     let mut ids = EXPRESSION_IDS
         .get_or_init(|| Mutex::new(HashMap::new()))
         .lock()
@@ -522,13 +521,15 @@ impl<'m> Matcher<'m> {
     ) -> Option<Vec<usize>> {
         // Callers trying many patterns ask `could_anchor` first; the search repeats the
         // test anyway.
+        let mut least = Least::with_keys(std::mem::take(&mut self.memo().least_keys));
         let mut search = Search::new(self.molecule, &pattern.subs, &pattern.env_ids, self.memo());
-        let mut least = Least::default();
         search.search(&pattern.main, atom, avoid, &mut |a| {
             least.add(a);
             false
         });
-        least.best
+        let (best, keys) = least.finish();
+        self.memo().least_keys = keys;
+        best
     }
     /// Like [`Pattern::first_match_at`].
     pub fn first_match_at(

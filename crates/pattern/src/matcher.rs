@@ -63,6 +63,8 @@ pub(crate) struct EnvMemo {
     /// The atoms' values the primitives test; empty (every atom read afresh) for a single
     /// call, kept for a matcher.
     pub(crate) features: FeatureTable,
+    /// Room for the atom sets a [`Least`] has seen, handed from one call to the next.
+    pub(crate) least_keys: Vec<usize>,
 }
 
 impl EnvMemo {
@@ -78,6 +80,7 @@ impl EnvMemo {
             touched_expr: Vec::new(),
             table: Vec::new(),
             features: FeatureTable::default(),
+            least_keys: Vec::new(),
         }
     }
 
@@ -493,9 +496,9 @@ impl Distinct {
 
 /// Keeps the least (atom by atom) of the matches a [`Distinct`] would keep, without
 /// storing them: a match counts only when its atom set was not seen before, as there.
-#[derive(Default)]
 pub(crate) struct Least {
-    /// Sorted atom sets seen, back to back, while there are few.
+    /// Sorted atom sets seen, back to back, while there are few: a buffer handed in, so
+    /// the sets of one call after another take no allocation.
     keys: Vec<usize>,
     /// How many sets `keys` holds.
     count: usize,
@@ -506,28 +509,43 @@ pub(crate) struct Least {
 }
 
 impl Least {
+    /// Keeps the sets seen in `keys` (emptied first).
+    pub(crate) fn with_keys(mut keys: Vec<usize>) -> Least {
+        keys.clear();
+        Least {
+            keys,
+            count: 0,
+            seen: None,
+            best: None,
+        }
+    }
+
+    /// The least match and the buffer handed in.
+    pub(crate) fn finish(self) -> (Option<Vec<usize>>, Vec<usize>) {
+        (self.best, self.keys)
+    }
+
     pub(crate) fn add(&mut self, atoms: &[usize]) {
         let n = atoms.len();
-        let mut inline = [0usize; INLINE];
-        let mut heap = Vec::new();
-        let key: &mut [usize] = if n <= INLINE {
-            &mut inline[..n]
-        } else {
-            heap.extend_from_slice(atoms);
-            &mut heap
-        };
-        key.copy_from_slice(atoms);
-        key.sort_unstable();
         if self.count < DISTINCT_LINEAR {
-            if n > 0 && self.keys.chunks_exact(n).any(|k| k == key) {
+            // The new set is sorted in place after the others and dropped again if seen.
+            let start = self.keys.len();
+            self.keys.extend_from_slice(atoms);
+            self.keys[start..].sort_unstable();
+            let (seen, key) = self.keys.split_at(start);
+            let repeated = if n == 0 {
+                self.count > 0
+            } else {
+                seen.chunks_exact(n).any(|k| k == key)
+            };
+            if repeated {
+                self.keys.truncate(start);
                 return;
             }
-            if n == 0 && self.count > 0 {
-                return;
-            }
-            self.keys.extend_from_slice(key);
             self.count += 1;
         } else {
+            let mut key = atoms.to_vec();
+            key.sort_unstable();
             let seen = self.seen.get_or_insert_with(|| {
                 if n == 0 {
                     std::iter::once(Vec::new()).collect()
@@ -535,7 +553,7 @@ impl Least {
                     self.keys.chunks_exact(n).map(<[usize]>::to_vec).collect()
                 }
             });
-            if !seen.insert(key.to_vec()) {
+            if !seen.insert(key) {
                 return;
             }
             self.count += 1;
