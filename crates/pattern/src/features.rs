@@ -254,6 +254,8 @@ pub(crate) struct FeatureTable {
     /// Atoms per element/aromatic bit, saturating, when `census_taken`.
     census: Option<Box<[u16; 256]>>,
     census_taken: bool,
+    /// The kind (`filter::bond_kind`) of every bond, when filled; empty otherwise.
+    bond_kinds: Vec<u8>,
     /// Scratch for `fill`: signatures, their unions, hydrogens written as atoms.
     signatures: Vec<u64>,
     far: Vec<u64>,
@@ -271,6 +273,16 @@ impl FeatureTable {
         // 0: not worked out (a signature always has a bit set).
         self.signatures.clear();
         self.signatures.resize(n, 0);
+        self.bond_kinds.clear();
+    }
+
+    /// The kind of bond `bond` of `bonds` (the molecule's), from the table when filled.
+    #[inline(always)]
+    pub(crate) fn bond_kind(&self, bonds: &[mol::Bond], bond: usize) -> u32 {
+        match self.bond_kinds.get(bond) {
+            Some(&kind) => kind as u32,
+            None => crate::filter::bond_kind(&bonds[bond]),
+        }
     }
 
     /// Counts the atoms of `molecule` per element/aromatic bit.
@@ -336,9 +348,12 @@ impl FeatureTable {
         explicit_h.resize(n, 0);
         let class =
             |t: &mol::Atom| ELEMENT_CLASS[element_bit(t.element, t.aromatic) as usize] as u32;
+        self.bond_kinds.clear();
         for b in molecule.bonds() {
             // `neighbor_bit` both ways, the bond's group worked out once.
-            let group = BOND_GROUP[crate::filter::bond_kind(b) as usize] as u32;
+            let kind = crate::filter::bond_kind(b);
+            self.bond_kinds.push(kind as u8);
+            let group = BOND_GROUP[kind as usize] as u32;
             signatures[b.a] |= signature_bit(class(&atoms[b.b]), group);
             signatures[b.b] |= signature_bit(class(&atoms[b.a]), group);
             explicit_h[b.a] += (atoms[b.b].element == 1) as usize;

@@ -48,7 +48,7 @@ pub(crate) struct Graph {
     /// Every atom but the root, in placement order.
     pub(crate) steps: Vec<Step>,
     /// Cheap test per pattern atom, the pattern bonds at the atom included (a molecule atom
-    /// with fewer neighbours cannot sit there).
+    /// with fewer neighbours cannot sit there); empty until [`Graph::refilter`].
     pub(crate) filters: Vec<AtomFilter>,
     /// Bond kinds (`filter::bond_kind`) each pattern bond admits.
     pub(crate) bond_masks: Vec<u16>,
@@ -76,8 +76,9 @@ pub(crate) struct Graph {
 }
 
 impl Graph {
-    /// Works the filters out again, now that the filter of each environment's first atom is
-    /// known (see [`AtomFilter::with_environments`]).
+    /// Works the filters out, given the filter of each environment's first atom (see
+    /// [`AtomFilter::with_environments`]; an environment not listed may hold anywhere).
+    /// [`Graph::new`] leaves them empty until this is called.
     pub(crate) fn refilter(&mut self, envs: &[AtomFilter]) {
         self.filters = filters(
             &self.atoms,
@@ -160,8 +161,10 @@ impl Graph {
                 }
             })
             .collect();
-        let filters = filters(&atoms, &bonds, &bond_masks, &min_degree, &[]);
-        let census = census(&filters);
+        // The filters wait for `refilter`, once the environments' filters are known: working
+        // them out here too, only to be replaced, cost a good part of compiling a pattern.
+        let filters = Vec::new();
+        let census = Vec::new();
         let residual: Vec<Expr<AtomPrim>> = atoms.iter().map(|a| residual(&a.expr)).collect();
         let keep_answers = residual
             .iter()

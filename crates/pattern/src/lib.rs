@@ -143,7 +143,7 @@ pub struct Match {
 impl Pattern {
     /// Compiles pattern text.
     pub fn parse(text: &str) -> Result<Pattern, PatternError> {
-        let (main, subs) = parse::parse(text)?;
+        let (main, subs) = parse::parse_unfiltered(text)?;
         let (mut main, mut subs) = (main, subs);
         // An environment's own environments are numbered after it, so working from the last
         // one back, each graph's environments have their filters when it is refiltered.

@@ -14,7 +14,6 @@ use mol::Molecule;
 
 use crate::expr::Expr;
 use crate::features::{FeatureTable, COUNT_CAP};
-use crate::filter::bond_kind;
 use crate::graph::Graph;
 use crate::primitive::AtomPrim;
 use crate::Match;
@@ -364,7 +363,7 @@ impl<'a> Search<'a> {
         if ahead.len() > HALL_AHEAD || neighbors.len() > 32 {
             return ahead.iter().all(|&(next, mask)| {
                 neighbors.iter().any(|nb| {
-                    mask >> bond_kind(&bonds[nb.bond]) & 1 != 0
+                    mask >> features.bond_kind(bonds, nb.bond) & 1 != 0
                         && graph.filters[next].admits_features(&features.get(molecule, nb.atom))
                         && free(nb)
                 })
@@ -374,7 +373,7 @@ impl<'a> Search<'a> {
         // molecule neighbour read once.
         let mut candidates = [0u32; HALL_AHEAD];
         for (i, nb) in neighbors.iter().enumerate() {
-            let kind = bond_kind(&bonds[nb.bond]);
+            let kind = features.bond_kind(bonds, nb.bond);
             let mut f = None;
             for (k, &(next, mask)) in ahead.iter().enumerate() {
                 if mask >> kind & 1 == 0 {
@@ -423,7 +422,7 @@ impl<'a> Search<'a> {
         let mask = graph.bond_masks[s.bond];
         for nb in molecule.neighbors(from) {
             let candidate = nb.atom;
-            if mask >> bond_kind(&bonds[nb.bond]) & 1 == 0 {
+            if mask >> self.memo.features.bond_kind(bonds, nb.bond) & 1 == 0 {
                 continue;
             }
             if assign.contains(&candidate) || avoid.contains(&candidate) {
@@ -432,10 +431,13 @@ impl<'a> Search<'a> {
             if !self.atom_ok(graph, s.atom, candidate) {
                 continue;
             }
+            let features = &self.memo.features;
             let closed = s.closures.iter().all(|&(other, bond)| {
                 molecule
                     .bond_between(candidate, assign[other])
-                    .is_some_and(|mb| graph.bond_masks[bond] >> bond_kind(&bonds[mb]) & 1 != 0)
+                    .is_some_and(|mb| {
+                        graph.bond_masks[bond] >> features.bond_kind(bonds, mb) & 1 != 0
+                    })
             });
             if !closed {
                 continue;
