@@ -349,10 +349,14 @@ impl FeatureTable {
         let class =
             |t: &mol::Atom| ELEMENT_CLASS[element_bit(t.element, t.aromatic) as usize] as u32;
         self.bond_kinds.clear();
-        for b in molecule.bonds() {
+        self.bond_kinds.extend(
+            molecule
+                .bonds()
+                .iter()
+                .map(|b| crate::filter::bond_kind(b) as u8),
+        );
+        for (b, &kind) in molecule.bonds().iter().zip(&self.bond_kinds) {
             // `neighbor_bit` both ways, the bond's group worked out once.
-            let kind = crate::filter::bond_kind(b);
-            self.bond_kinds.push(kind as u8);
             let group = BOND_GROUP[kind as usize] as u32;
             signatures[b.a] |= signature_bit(class(&atoms[b.b]), group);
             signatures[b.b] |= signature_bit(class(&atoms[b.a]), group);

@@ -24,8 +24,9 @@ const UNPLACED: usize = usize::MAX;
 /// candidates; beyond, each only for one.
 const HALL_AHEAD: usize = 4;
 
-/// Patterns up to this size search in a stack buffer.
+/// Patterns up to this size search in a stack buffer, those up to `SMALL` in a smaller one.
 const INLINE: usize = 32;
+const SMALL: usize = 8;
 
 /// Environment answers kept without allocating; one anchored call rarely asks more.
 const MEMO_INLINE: usize = 16;
@@ -319,17 +320,33 @@ impl<'a> Search<'a> {
         {
             return false;
         }
-        let mut inline = [UNPLACED; INLINE];
-        let mut heap = Vec::new();
-        let assign: &mut [usize] = if n <= INLINE {
-            &mut inline[..n]
-        } else {
-            heap.resize(n, UNPLACED);
-            &mut heap
-        };
         if !self.ahead_ok(graph, graph.root, anchor, avoid) {
             return false;
         }
+        // A buffer no larger than the pattern needs: a search is set up for every (pattern,
+        // atom) pair tried, and most patterns are small.
+        if n <= SMALL {
+            let mut small = [UNPLACED; SMALL];
+            self.start(graph, anchor, &mut small[..n], avoid, sink)
+        } else if n <= INLINE {
+            let mut inline = [UNPLACED; INLINE];
+            self.start(graph, anchor, &mut inline[..n], avoid, sink)
+        } else {
+            let mut heap = vec![UNPLACED; n];
+            self.start(graph, anchor, &mut heap, avoid, sink)
+        }
+    }
+
+    /// Places the root on `anchor` and the rest after it.
+    #[inline(always)]
+    fn start(
+        &mut self,
+        graph: &Graph,
+        anchor: usize,
+        assign: &mut [usize],
+        avoid: &[usize],
+        sink: &mut dyn FnMut(&[usize]) -> bool,
+    ) -> bool {
         assign[graph.root] = anchor;
         self.extend(graph, 0, assign, avoid, sink)
     }
