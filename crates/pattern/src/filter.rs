@@ -121,6 +121,14 @@ const NO_SLOTS: Slots = [features::SIGNATURE_ALWAYS; NEEDS];
 /// Both sets of requirements, the most selective (fewest bits) first, as many as there are
 /// slots for (dropping one only weakens the filter).
 fn slots_meet(a: Slots, b: Slots) -> Slots {
+    // The usual cases while projecting an expression: one side asks nothing, and the other
+    // is already as this leaves requirements.
+    if b == NO_SLOTS && canonical(&a) {
+        return a;
+    }
+    if a == NO_SLOTS && canonical(&b) {
+        return b;
+    }
     // On the stack: patterns compile by the hundred, each atom meeting its neighbours'.
     let mut real = [0u64; 2 * NEEDS];
     let mut len = 0;
@@ -146,6 +154,18 @@ fn slots_meet(a: Slots, b: Slots) -> Slots {
         slot += 1;
     }
     out
+}
+
+/// Whether requirements are as [`slots_meet`] leaves them: the real ones first, in the
+/// order it sorts them, none twice, the unused slots after.
+fn canonical(a: &Slots) -> bool {
+    let key = |n: u64| (n.count_ones(), n);
+    let real = a
+        .iter()
+        .take_while(|&&n| n != features::SIGNATURE_ALWAYS)
+        .count();
+    a[real..].iter().all(|&n| n == features::SIGNATURE_ALWAYS)
+        && a[..real].windows(2).all(|w| key(w[0]) < key(w[1]))
 }
 
 /// What either set of requirements implies: slot by slot, one or the other.

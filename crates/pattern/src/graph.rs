@@ -149,12 +149,13 @@ impl Graph {
         // A pattern bond on a cycle of the pattern can only sit on a bond on a cycle of
         // the molecule, a ring bond: saying so in its mask cuts the search and sharpens
         // the neighbour requirements, without changing any match.
+        let mut walk = Walk::default();
         let bond_masks: Vec<u16> = bonds
             .iter()
             .enumerate()
             .map(|(i, b)| {
                 let mask = filter::bond_mask(&b.expr);
-                if on_cycle(n, &bonds, i) {
+                if on_cycle(&adjacency, &bonds, i, &mut walk) {
                     mask & filter::RING_KINDS
                 } else {
                     mask
@@ -266,27 +267,30 @@ fn filters(
 
 /// Whether pattern bond `bond` lies on a cycle: its ends stay connected without it. Other
 /// bonds between the same two atoms do not count, since they sit on the same molecule bond.
-fn on_cycle(atoms: usize, bonds: &[PatternBond], bond: usize) -> bool {
+/// `adjacency` lists `(neighbour, bond)` per atom, so the walk reads each atom's own bonds
+/// rather than every bond at every step; `walk` is scratch kept from one bond to the next.
+fn on_cycle(
+    adjacency: &[Vec<(usize, usize)>],
+    bonds: &[PatternBond],
+    bond: usize,
+    walk: &mut Walk,
+) -> bool {
     let (from, to) = (bonds[bond].a, bonds[bond].b);
     if from == to {
         return false;
     }
     let parallel = |b: &PatternBond| (b.a == from && b.b == to) || (b.a == to && b.b == from);
-    let mut seen = vec![false; atoms];
-    let mut stack = vec![from];
+    let Walk { seen, stack } = walk;
+    seen.clear();
+    seen.resize(adjacency.len(), false);
+    stack.clear();
+    stack.push(from);
     seen[from] = true;
     while let Some(a) = stack.pop() {
-        for b in bonds {
-            if parallel(b) {
+        for &(next, b) in &adjacency[a] {
+            if parallel(&bonds[b]) {
                 continue;
             }
-            let next = if b.a == a {
-                b.b
-            } else if b.b == a {
-                b.a
-            } else {
-                continue;
-            };
             if next == to {
                 return true;
             }
@@ -297,6 +301,13 @@ fn on_cycle(atoms: usize, bonds: &[PatternBond], bond: usize) -> bool {
         }
     }
     false
+}
+
+/// Scratch for [`on_cycle`]: atoms reached, atoms still to visit.
+#[derive(Default)]
+struct Walk {
+    seen: Vec<bool>,
+    stack: Vec<usize>,
 }
 
 /// What the pattern asks of the molecule's atom counts: see `Graph::census`.

@@ -295,8 +295,46 @@ fn environment_texts(text: &str) -> Vec<&str> {
     out
 }
 
+/// Ids by key, handed out in the order keys are first met (so the hash function decides
+/// nothing but speed).
+type IdMap<K> = HashMap<K, u32, std::hash::BuildHasherDefault<IdHasher>>;
+
+/// A quick hash for the id maps (multiply and rotate per word, after the one in rustc's own
+/// hash maps; common practice): their keys come from pattern text compiled at start-up,
+/// where the standard hash, made for keys an attacker chooses, was a good part of the cost.
+#[derive(Default)]
+struct IdHasher(u64);
+
+impl std::hash::Hasher for IdHasher {
+    fn finish(&self) -> u64 {
+        self.0
+    }
+    fn write(&mut self, bytes: &[u8]) {
+        for chunk in bytes.chunks(8) {
+            let mut word = [0u8; 8];
+            word[..chunk.len()].copy_from_slice(chunk);
+            self.write_u64(u64::from_le_bytes(word));
+        }
+    }
+    fn write_u8(&mut self, n: u8) {
+        self.write_u64(n as u64);
+    }
+    fn write_u16(&mut self, n: u16) {
+        self.write_u64(n as u64);
+    }
+    fn write_u32(&mut self, n: u32) {
+        self.write_u64(n as u64);
+    }
+    fn write_usize(&mut self, n: usize) {
+        self.write_u64(n as u64);
+    }
+    fn write_u64(&mut self, n: u64) {
+        self.0 = (self.0.rotate_left(5) ^ n).wrapping_mul(0x51_7c_c1_b7_27_22_0a_95);
+    }
+}
+
 /// Process-wide ids of environment texts, handed out at parse time.
-static ENVIRONMENT_IDS: OnceLock<Mutex<HashMap<String, u32>>> = OnceLock::new();
+static ENVIRONMENT_IDS: OnceLock<Mutex<IdMap<String>>> = OnceLock::new();
 
 /// The process-wide id of each environment of a parsed pattern. Two environments with the
 /// same text compile to the same graph, so they may share answers; where the texts cannot
@@ -307,10 +345,10 @@ fn environment_ids(text: &str, count: usize) -> Vec<u32> {
     }
     let texts = environment_texts(text);
     let mut ids = ENVIRONMENT_IDS
-        .get_or_init(|| Mutex::new(HashMap::new()))
+        .get_or_init(|| Mutex::new(IdMap::default()))
         .lock()
         .unwrap_or_else(|e| e.into_inner());
-    let fresh = |ids: &mut HashMap<String, u32>| {
+    let fresh = |ids: &mut IdMap<String>| {
         // A key no text can have (a NUL byte and a counter), so it is never shared.
         let key = format!("\0{}", ids.len());
         let id = ids.len() as u32;
@@ -334,7 +372,7 @@ fn environment_ids(text: &str, count: usize) -> Vec<u32> {
 }
 
 /// Process-wide ids of atom expressions, handed out at parse time.
-static EXPRESSION_IDS: OnceLock<Mutex<HashMap<ExprKey, u32>>> = OnceLock::new();
+static EXPRESSION_IDS: OnceLock<Mutex<IdMap<ExprKey>>> = OnceLock::new();
 
 /// An atom expression as a key: its structure, with environments named by their
 /// process-wide ids (local numbers differ from pattern to pattern). Kept as a tree rather
@@ -377,7 +415,7 @@ impl ExprKey {
 fn expression_id(expr: &expr::Expr<primitive::AtomPrim>, env_ids: &[u32]) -> u32 {
     let key = ExprKey::of(expr, env_ids);
     let mut ids = EXPRESSION_IDS
-        .get_or_init(|| Mutex::new(HashMap::new()))
+        .get_or_init(|| Mutex::new(IdMap::default()))
         .lock()
         .unwrap_or_else(|e| e.into_inner());
     let next = ids.len() as u32;
