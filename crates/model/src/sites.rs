@@ -194,26 +194,19 @@ fn number_groups(molecule: &Molecule, sites: &mut [FoundSite]) {
     }
 }
 
-/// Neighbours per atom the quick rounds handle (keys of fixed size); a molecule with more
-/// on some atom goes to the full symmetry classes.
-const QUICK_DEGREE: usize = 4;
-
 /// Whether the site atoms are pairwise apart within [`QUICK_ROUNDS`] refinement rounds (of
-/// the refinement `mol::symmetry_classes` runs). `false` when they are not, or when the
-/// molecule is beyond what the quick rounds handle.
+/// the refinement `mol::symmetry_classes` runs). `false` when they are not.
 ///
 /// The rounds carry a 64-bit hash of each atom's refined key rather than a class number,
 /// so no round sorts the atoms: atoms with equal keys get equal hashes (by induction over
 /// the rounds: equal classes and equal multisets of neighbour classes and bonds hash the
-/// same), so site atoms whose hashes differ are truly apart. Two different keys may share
-/// a hash; then the sites look alike here and the full symmetry classes decide, which
-/// costs time but never changes the groups.
+/// same, the multiset hashed as a sum, which no order of the neighbours changes), so site
+/// atoms whose hashes differ are truly apart. Two different keys may share a hash; then
+/// the sites look alike here and the full symmetry classes decide, which costs time but
+/// never changes the groups.
 fn quick_groups_apart(molecule: &Molecule, sites: &[FoundSite]) -> bool {
     let atoms = molecule.atoms();
     let n = atoms.len();
-    if (0..n).any(|i| molecule.degree(i) > QUICK_DEGREE) {
-        return false;
-    }
     // The starting invariant, packed into one integer: element, isotope, charge, degree,
     // hydrogens (at most 255 in counts plus one per neighbour), aromaticity, ring
     // membership.
@@ -245,18 +238,14 @@ fn quick_groups_apart(molecule: &Molecule, sites: &[FoundSite]) -> bool {
         order << 1 | b.aromatic as u64
     };
     for _ in 0..QUICK_ROUNDS {
+        let bonds = molecule.bonds();
         for (i, slot) in next.iter_mut().enumerate() {
-            // Each neighbour as one word from its hash and the bond, sorted; the atom's own
-            // hash leads. Atoms with equal keys have equal degrees, so the empty entries
-            // of atoms with fewer neighbours never meet an entry that decides anything.
-            let mut entries = [0u64; QUICK_DEGREE];
-            for (e, nb) in entries.iter_mut().zip(molecule.neighbors(i)) {
-                *e = mix(hashes[nb.atom] ^ label(&molecule.bonds()[nb.bond]));
-            }
-            entries.sort_unstable();
-            *slot = entries
-                .iter()
-                .fold(mix(hashes[i]), |h, &e| mix(h.rotate_left(23) ^ e));
+            // Each neighbour as one word from its hash and the bond, summed (a sum needs no
+            // sorting and cannot tell orders apart), then mixed with the atom's own hash.
+            let around = molecule.neighbors(i).iter().fold(0u64, |sum, nb| {
+                sum.wrapping_add(mix(hashes[nb.atom] ^ label(&bonds[nb.bond])))
+            });
+            *slot = mix(hashes[i].rotate_left(23) ^ around);
         }
         std::mem::swap(&mut hashes, &mut next);
         if apart(sites.iter().map(|s| hashes[s.atom])) {

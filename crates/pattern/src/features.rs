@@ -254,10 +254,14 @@ pub(crate) struct FeatureTable {
     /// Atoms per element/aromatic bit, saturating, when `census_taken`.
     census: Option<Box<[u16; 256]>>,
     census_taken: bool,
-    /// Scratch for `fill`: signatures, their unions, hydrogens written as atoms.
+    /// The kind (`filter::bond_kind`) of every bond, when filled; empty otherwise.
+    bond_kinds: Vec<u8>,
+    /// Scratch for `fill`: signatures, their unions, hydrogens written as atoms, element
+    /// bits.
     signatures: Vec<u64>,
     far: Vec<u64>,
     h: Vec<usize>,
+    bits: Vec<u8>,
 }
 
 impl FeatureTable {
@@ -271,16 +275,15 @@ impl FeatureTable {
         // 0: not worked out (a signature always has a bit set).
         self.signatures.clear();
         self.signatures.resize(n, 0);
+        self.bond_kinds.clear();
     }
 
-    /// Counts the atoms of `molecule` per element/aromatic bit.
-    fn take_census(&mut self, molecule: &Molecule) {
-        let census = self.census.get_or_insert_with(|| Box::new([0; 256]));
-        census.fill(0);
-        self.census_taken = true;
-        for a in molecule.atoms() {
-            let c = &mut census[element_bit(a.element, a.aromatic) as usize];
-            *c = c.saturating_add(1);
+    /// The kind of bond `bond` of `bonds` (the molecule's), from the table when filled.
+    #[inline(always)]
+    pub(crate) fn bond_kind(&self, bonds: &[mol::Bond], bond: usize) -> u32 {
+        match self.bond_kinds.get(bond) {
+            Some(&kind) => kind as u32,
+            None => crate::filter::bond_kind(&bonds[bond]),
         }
     }
 
@@ -322,48 +325,79 @@ impl FeatureTable {
     }
 
     /// Works out every atom of `molecule` at once, keeping the buffers: one pass over the
-    /// bonds for the signatures and the hydrogens written as atoms, one for the unions.
+    /// atoms for their element bits and the census, one over the bonds for the signatures,
+    /// one for the unions (and one for the hydrogens written as atoms, when there are any).
     pub(crate) fn fill(&mut self, molecule: &Molecule) {
-        self.take_census(molecule);
         let atoms = molecule.atoms();
+        let bonds = molecule.bonds();
         let n = atoms.len();
-        let (signatures, far, explicit_h) = (&mut self.signatures, &mut self.far, &mut self.h);
+        let census = self.census.get_or_insert_with(|| Box::new([0; 256]));
+        census.fill(0);
+        self.census_taken = true;
+        let (signatures, far, explicit_h, bits) = (
+            &mut self.signatures,
+            &mut self.far,
+            &mut self.h,
+            &mut self.bits,
+        );
+        // Each atom's element bit read once, not once per bond end.
+        bits.clear();
+        bits.extend(atoms.iter().map(|a| element_bit(a.element, a.aromatic)));
+        for &bit in bits.iter() {
+            let c = &mut census[bit as usize];
+            *c = c.saturating_add(1);
+        }
+        let hydrogens_as_atoms =
+            census[element_bit(1, false) as usize] > 0 || census[element_bit(1, true) as usize] > 0;
         signatures.clear();
         signatures.resize(n, SIGNATURE_ALWAYS);
         far.clear();
         far.resize(n, SIGNATURE_ALWAYS);
         explicit_h.clear();
         explicit_h.resize(n, 0);
-        let class =
-            |t: &mol::Atom| ELEMENT_CLASS[element_bit(t.element, t.aromatic) as usize] as u32;
-        for b in molecule.bonds() {
+        self.bond_kinds.clear();
+        self.bond_kinds
+            .extend(bonds.iter().map(|b| crate::filter::bond_kind(b) as u8));
+        let class = |bit: u8| ELEMENT_CLASS[bit as usize] as u32;
+        for (b, &kind) in bonds.iter().zip(&self.bond_kinds) {
             // `neighbor_bit` both ways, the bond's group worked out once.
-            let group = BOND_GROUP[crate::filter::bond_kind(b) as usize] as u32;
-            signatures[b.a] |= signature_bit(class(&atoms[b.b]), group);
-            signatures[b.b] |= signature_bit(class(&atoms[b.a]), group);
-            explicit_h[b.a] += (atoms[b.b].element == 1) as usize;
-            explicit_h[b.b] += (atoms[b.a].element == 1) as usize;
+            let group = BOND_GROUP[kind as usize] as u32;
+            signatures[b.a] |= signature_bit(class(bits[b.b]), group);
+            signatures[b.b] |= signature_bit(class(bits[b.a]), group);
         }
-        for b in molecule.bonds() {
+        if hydrogens_as_atoms {
+            for b in bonds {
+                explicit_h[b.a] += (atoms[b.b].element == 1) as usize;
+                explicit_h[b.b] += (atoms[b.a].element == 1) as usize;
+            }
+        }
+        for b in bonds {
             far[b.a] |= signatures[b.b];
             far[b.b] |= signatures[b.a];
         }
         self.atoms.clear();
-        self.atoms.extend(atoms.iter().enumerate().map(|(i, a)| {
-            let degree = molecule.degree(i);
-            AtomFeatures {
-                element_bit: element_bit(a.element, a.aromatic),
-                charge_bit: charge_bit(a.charge),
-                total_h: count(a.hydrogens as usize + explicit_h[i]),
-                implicit_h: count(a.hydrogens as usize),
-                degree: count(degree),
-                connectivity: count(degree + a.hydrogens as usize),
-                ring_count: count(a.ring_count as usize),
-                smallest_ring: count(a.smallest_ring as usize),
-                neighbors: signatures[i],
-                far: far[i],
-            }
-        }));
+        let per_atom = atoms
+            .iter()
+            .zip(bits.iter())
+            .zip(signatures.iter().zip(far.iter()))
+            .zip(explicit_h.iter());
+        self.atoms.extend(per_atom.enumerate().map(
+            |(i, (((a, &bit), (&signature, &far)), &explicit_h))| {
+                let degree = molecule.degree(i);
+                AtomFeatures {
+                    element_bit: bit,
+                    charge_bit: charge_bit(a.charge),
+                    total_h: count(a.hydrogens as usize + explicit_h),
+                    implicit_h: count(a.hydrogens as usize),
+                    degree: count(degree),
+                    connectivity: count(degree + a.hydrogens as usize),
+                    ring_count: count(a.ring_count as usize),
+                    smallest_ring: count(a.smallest_ring as usize),
+                    neighbors: signature,
+                    far,
+                }
+            },
+        ));
     }
 
     /// The values of `atom`, from the table when they were worked out, else afresh (not

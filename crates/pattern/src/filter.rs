@@ -121,18 +121,51 @@ const NO_SLOTS: Slots = [features::SIGNATURE_ALWAYS; NEEDS];
 /// Both sets of requirements, the most selective (fewest bits) first, as many as there are
 /// slots for (dropping one only weakens the filter).
 fn slots_meet(a: Slots, b: Slots) -> Slots {
-    let mut real: Vec<u64> = a
-        .into_iter()
-        .chain(b)
-        .filter(|&n| n != features::SIGNATURE_ALWAYS)
-        .collect();
-    real.sort_by_key(|n| (n.count_ones(), *n));
-    real.dedup();
+    // The usual cases while projecting an expression: one side asks nothing, and the other
+    // is already as this leaves requirements.
+    if b == NO_SLOTS && canonical(&a) {
+        return a;
+    }
+    if a == NO_SLOTS && canonical(&b) {
+        return b;
+    }
+    // On the stack: patterns compile by the hundred, each atom meeting its neighbours'.
+    let mut real = [0u64; 2 * NEEDS];
+    let mut len = 0;
+    for n in a.into_iter().chain(b) {
+        if n != features::SIGNATURE_ALWAYS {
+            real[len] = n;
+            len += 1;
+        }
+    }
+    let real = &mut real[..len];
+    // The key is the whole value, so an unstable sort orders as a stable one would.
+    real.sort_unstable_by_key(|n| (n.count_ones(), *n));
     let mut out = NO_SLOTS;
-    for (slot, need) in out.iter_mut().zip(real) {
-        *slot = need;
+    let mut slot = 0;
+    for (i, &need) in real.iter().enumerate() {
+        if slot == NEEDS {
+            break;
+        }
+        if i > 0 && real[i - 1] == need {
+            continue;
+        }
+        out[slot] = need;
+        slot += 1;
     }
     out
+}
+
+/// Whether requirements are as [`slots_meet`] leaves them: the real ones first, in the
+/// order it sorts them, none twice, the unused slots after.
+fn canonical(a: &Slots) -> bool {
+    let key = |n: u64| (n.count_ones(), n);
+    let real = a
+        .iter()
+        .take_while(|&&n| n != features::SIGNATURE_ALWAYS)
+        .count();
+    a[real..].iter().all(|&n| n == features::SIGNATURE_ALWAYS)
+        && a[..real].windows(2).all(|w| key(w[0]) < key(w[1]))
 }
 
 /// What either set of requirements implies: slot by slot, one or the other.
@@ -332,6 +365,34 @@ fn project(expr: &Expr<AtomPrim>, envs: &[AtomFilter]) -> Projected {
     }
 }
 
+/// The element/aromatic bits (as in `Sets::elements`) of each neighbour-signature element
+/// class ([`features::element_class`]).
+const CLASS_ELEMENTS: [[u64; 4]; features::ELEMENT_CLASSES as usize] = {
+    let mut table = [[0u64; 4]; features::ELEMENT_CLASSES as usize];
+    let mut bit = 0;
+    while bit < 256 {
+        let class = features::element_class(bit as u8) as usize;
+        table[class][bit / 64] |= 1 << (bit % 64);
+        bit += 1;
+    }
+    table
+};
+
+/// Every signature bit a neighbour can set: a requirement of all of them says nothing.
+const ALL_SIGNATURE_BITS: u64 = {
+    let mut all = 0;
+    let mut class = 0;
+    while class < features::ELEMENT_CLASSES {
+        let mut group = 0;
+        while group < 5 {
+            all |= features::signature_bit(class, group);
+            group += 1;
+        }
+        class += 1;
+    }
+    all
+};
+
 /// Neighbour requirements kept per pattern atom (more are dropped, which only weakens the
 /// filter).
 const NEEDS: usize = 4;
@@ -376,18 +437,20 @@ impl AtomFilter {
     /// molecule neighbour of an element class and bond group it admits: a requirement of
     /// the search, not of the expression, so `exact` is unchanged.
     pub(crate) fn with_neighbors(mut self, neighbors: &[(AtomFilter, u16)]) -> AtomFilter {
-        let all = (0..features::ELEMENT_CLASSES)
-            .flat_map(|c| (0..5).map(move |g| features::signature_bit(c, g)))
-            .fold(0, |a, b| a | b);
         let mut own = NO_SLOTS;
         let mut slot = 0;
         for (filter, mask) in neighbors {
             if slot == NEEDS {
                 break;
             }
-            let classes = (0..=255u8)
-                .filter(|&bit| filter.sets.has_element(bit))
-                .fold(0u32, |c, bit| c | 1 << features::element_class(bit));
+            // A class is admitted when any of its element/aromatic bits is: four word tests
+            // per class rather than one test per bit (patterns compile by the hundred).
+            let classes = (0..features::ELEMENT_CLASSES)
+                .filter(|&class| {
+                    let bits = &CLASS_ELEMENTS[class as usize];
+                    (0..4).any(|w| filter.sets.elements[w] & bits[w] != 0)
+                })
+                .fold(0u32, |c, class| c | 1 << class);
             let groups = (0..16u32)
                 .filter(|&k| mask >> k & 1 != 0)
                 .fold(0u32, |g, k| g | 1 << features::bond_group(k));
@@ -400,7 +463,7 @@ impl AtomFilter {
                 }
             }
             // One that any neighbour meets says nothing.
-            if need != all {
+            if need != ALL_SIGNATURE_BITS {
                 own[slot] = need;
                 slot += 1;
             }
@@ -577,6 +640,39 @@ mod tests {
         assert!(!filter("[!C,!H3]").exact);
         assert!(!filter("[C;$(C=O)]").exact);
         assert!(!filter("[13C]").exact);
+    }
+
+    #[test]
+    fn class_tables_agree_with_the_classes_bit_by_bit() {
+        // The element classes a filter admits, one test per element/aromatic bit, as
+        // `with_neighbors` worked them out before it read `CLASS_ELEMENTS`.
+        for text in [
+            "C",
+            "c",
+            "[#7]",
+            "[a;!c]",
+            "*",
+            "[!#6]",
+            "[F,Cl,Br,I]",
+            "[#1]",
+            "[Se]",
+            "[O,S;X1]",
+        ] {
+            let f = filter(text);
+            let plain = (0..=255u8)
+                .filter(|&bit| f.sets.has_element(bit))
+                .fold(0u32, |c, bit| c | 1 << features::element_class(bit));
+            let quick = (0..features::ELEMENT_CLASSES)
+                .filter(|&class| {
+                    (0..4).any(|w| f.sets.elements[w] & CLASS_ELEMENTS[class as usize][w] != 0)
+                })
+                .fold(0u32, |c, class| c | 1 << class);
+            assert_eq!(quick, plain, "{text}");
+        }
+        let all = (0..features::ELEMENT_CLASSES)
+            .flat_map(|c| (0..5).map(move |g| features::signature_bit(c, g)))
+            .fold(0, |a, b| a | b);
+        assert_eq!(ALL_SIGNATURE_BITS, all);
     }
 
     #[test]

@@ -48,7 +48,7 @@ pub(crate) struct Graph {
     /// Every atom but the root, in placement order.
     pub(crate) steps: Vec<Step>,
     /// Cheap test per pattern atom, the pattern bonds at the atom included (a molecule atom
-    /// with fewer neighbours cannot sit there).
+    /// with fewer neighbours cannot sit there); empty until [`Graph::refilter`].
     pub(crate) filters: Vec<AtomFilter>,
     /// Bond kinds (`filter::bond_kind`) each pattern bond admits.
     pub(crate) bond_masks: Vec<u16>,
@@ -76,8 +76,9 @@ pub(crate) struct Graph {
 }
 
 impl Graph {
-    /// Works the filters out again, now that the filter of each environment's first atom is
-    /// known (see [`AtomFilter::with_environments`]).
+    /// Works the filters out, given the filter of each environment's first atom (see
+    /// [`AtomFilter::with_environments`]; an environment not listed may hold anywhere).
+    /// [`Graph::new`] leaves them empty until this is called.
     pub(crate) fn refilter(&mut self, envs: &[AtomFilter]) {
         self.filters = filters(
             &self.atoms,
@@ -148,20 +149,23 @@ impl Graph {
         // A pattern bond on a cycle of the pattern can only sit on a bond on a cycle of
         // the molecule, a ring bond: saying so in its mask cuts the search and sharpens
         // the neighbour requirements, without changing any match.
+        let mut walk = Walk::default();
         let bond_masks: Vec<u16> = bonds
             .iter()
             .enumerate()
             .map(|(i, b)| {
                 let mask = filter::bond_mask(&b.expr);
-                if on_cycle(n, &bonds, i) {
+                if on_cycle(&adjacency, &bonds, i, &mut walk) {
                     mask & filter::RING_KINDS
                 } else {
                     mask
                 }
             })
             .collect();
-        let filters = filters(&atoms, &bonds, &bond_masks, &min_degree, &[]);
-        let census = census(&filters);
+        // The filters wait for `refilter`, once the environments' filters are known: working
+        // them out here too, only to be replaced, cost a good part of compiling a pattern.
+        let filters = Vec::new();
+        let census = Vec::new();
         let residual: Vec<Expr<AtomPrim>> = atoms.iter().map(|a| residual(&a.expr)).collect();
         let keep_answers = residual
             .iter()
@@ -263,27 +267,30 @@ fn filters(
 
 /// Whether pattern bond `bond` lies on a cycle: its ends stay connected without it. Other
 /// bonds between the same two atoms do not count, since they sit on the same molecule bond.
-fn on_cycle(atoms: usize, bonds: &[PatternBond], bond: usize) -> bool {
+/// `adjacency` lists `(neighbour, bond)` per atom, so the walk reads each atom's own bonds
+/// rather than every bond at every step; `walk` is scratch kept from one bond to the next.
+fn on_cycle(
+    adjacency: &[Vec<(usize, usize)>],
+    bonds: &[PatternBond],
+    bond: usize,
+    walk: &mut Walk,
+) -> bool {
     let (from, to) = (bonds[bond].a, bonds[bond].b);
     if from == to {
         return false;
     }
     let parallel = |b: &PatternBond| (b.a == from && b.b == to) || (b.a == to && b.b == from);
-    let mut seen = vec![false; atoms];
-    let mut stack = vec![from];
+    let Walk { seen, stack } = walk;
+    seen.clear();
+    seen.resize(adjacency.len(), false);
+    stack.clear();
+    stack.push(from);
     seen[from] = true;
     while let Some(a) = stack.pop() {
-        for b in bonds {
-            if parallel(b) {
+        for &(next, b) in &adjacency[a] {
+            if parallel(&bonds[b]) {
                 continue;
             }
-            let next = if b.a == a {
-                b.b
-            } else if b.b == a {
-                b.a
-            } else {
-                continue;
-            };
             if next == to {
                 return true;
             }
@@ -294,6 +301,13 @@ fn on_cycle(atoms: usize, bonds: &[PatternBond], bond: usize) -> bool {
         }
     }
     false
+}
+
+/// Scratch for [`on_cycle`]: atoms reached, atoms still to visit.
+#[derive(Default)]
+struct Walk {
+    seen: Vec<bool>,
+    stack: Vec<usize>,
 }
 
 /// What the pattern asks of the molecule's atom counts: see `Graph::census`.

@@ -143,7 +143,7 @@ pub struct Match {
 impl Pattern {
     /// Compiles pattern text.
     pub fn parse(text: &str) -> Result<Pattern, PatternError> {
-        let (main, subs) = parse::parse(text)?;
+        let (main, subs) = parse::parse_unfiltered(text)?;
         let (mut main, mut subs) = (main, subs);
         // An environment's own environments are numbered after it, so working from the last
         // one back, each graph's environments have their filters when it is refiltered.
@@ -295,8 +295,46 @@ fn environment_texts(text: &str) -> Vec<&str> {
     out
 }
 
+/// Ids by key, handed out in the order keys are first met (so the hash function decides
+/// nothing but speed).
+type IdMap<K> = HashMap<K, u32, std::hash::BuildHasherDefault<IdHasher>>;
+
+/// A quick hash for the id maps (multiply and rotate per word, after the one in rustc's own
+/// hash maps; common practice): their keys come from pattern text compiled at start-up,
+/// where the standard hash, made for keys an attacker chooses, was a good part of the cost.
+#[derive(Default)]
+struct IdHasher(u64);
+
+impl std::hash::Hasher for IdHasher {
+    fn finish(&self) -> u64 {
+        self.0
+    }
+    fn write(&mut self, bytes: &[u8]) {
+        for chunk in bytes.chunks(8) {
+            let mut word = [0u8; 8];
+            word[..chunk.len()].copy_from_slice(chunk);
+            self.write_u64(u64::from_le_bytes(word));
+        }
+    }
+    fn write_u8(&mut self, n: u8) {
+        self.write_u64(n as u64);
+    }
+    fn write_u16(&mut self, n: u16) {
+        self.write_u64(n as u64);
+    }
+    fn write_u32(&mut self, n: u32) {
+        self.write_u64(n as u64);
+    }
+    fn write_usize(&mut self, n: usize) {
+        self.write_u64(n as u64);
+    }
+    fn write_u64(&mut self, n: u64) {
+        self.0 = (self.0.rotate_left(5) ^ n).wrapping_mul(0x51_7c_c1_b7_27_22_0a_95);
+    }
+}
+
 /// Process-wide ids of environment texts, handed out at parse time.
-static ENVIRONMENT_IDS: OnceLock<Mutex<HashMap<String, u32>>> = OnceLock::new();
+static ENVIRONMENT_IDS: OnceLock<Mutex<IdMap<String>>> = OnceLock::new();
 
 /// The process-wide id of each environment of a parsed pattern. Two environments with the
 /// same text compile to the same graph, so they may share answers; where the texts cannot
@@ -307,10 +345,10 @@ fn environment_ids(text: &str, count: usize) -> Vec<u32> {
     }
     let texts = environment_texts(text);
     let mut ids = ENVIRONMENT_IDS
-        .get_or_init(|| Mutex::new(HashMap::new()))
+        .get_or_init(|| Mutex::new(IdMap::default()))
         .lock()
         .unwrap_or_else(|e| e.into_inner());
-    let fresh = |ids: &mut HashMap<String, u32>| {
+    let fresh = |ids: &mut IdMap<String>| {
         // A key no text can have (a NUL byte and a counter), so it is never shared.
         let key = format!("\0{}", ids.len());
         let id = ids.len() as u32;
@@ -334,40 +372,40 @@ fn environment_ids(text: &str, count: usize) -> Vec<u32> {
 }
 
 /// Process-wide ids of atom expressions, handed out at parse time.
-static EXPRESSION_IDS: OnceLock<Mutex<HashMap<String, u32>>> = OnceLock::new();
+static EXPRESSION_IDS: OnceLock<Mutex<IdMap<ExprKey>>> = OnceLock::new();
 
-/// Writes an atom expression as a key: its structure, with environments named by their
-/// process-wide ids (local numbers differ from pattern to pattern).
-fn expression_key(expr: &expr::Expr<primitive::AtomPrim>, env_ids: &[u32], out: &mut String) {
-    use std::fmt::Write;
-    match expr {
-        expr::Expr::Prim(primitive::AtomPrim::Recursive(id)) => {
-            // An environment out of range never holds; give it a key no other shares.
-            match env_ids.get(*id as usize) {
-                Some(env) => write!(out, "${env}"),
-                None => write!(out, "$?{id}"),
+/// An atom expression as a key: its structure, with environments named by their
+/// process-wide ids (local numbers differ from pattern to pattern). Kept as a tree rather
+/// than written out as text: patterns compile by the hundred, and formatting every
+/// primitive cost more than the rest of numbering them.
+#[derive(Clone, Debug, PartialEq, Eq, Hash)]
+enum ExprKey {
+    Prim(primitive::AtomPrim),
+    /// An environment, by its process-wide id.
+    Environment(u32),
+    /// An environment out of range (never expected), by its local number: it never holds.
+    Stray(u32),
+    Not(Box<ExprKey>),
+    And(Vec<ExprKey>),
+    Or(Vec<ExprKey>),
+}
+
+impl ExprKey {
+    fn of(expr: &expr::Expr<primitive::AtomPrim>, env_ids: &[u32]) -> ExprKey {
+        let all = |es: &[expr::Expr<primitive::AtomPrim>]| {
+            es.iter().map(|e| ExprKey::of(e, env_ids)).collect()
+        };
+        match expr {
+            expr::Expr::Prim(primitive::AtomPrim::Recursive(id)) => {
+                match env_ids.get(*id as usize) {
+                    Some(&env) => ExprKey::Environment(env),
+                    None => ExprKey::Stray(*id),
+                }
             }
-            .ok();
-        }
-        expr::Expr::Prim(p) => {
-            write!(out, "{p:?}").ok();
-        }
-        expr::Expr::Not(e) => {
-            out.push_str("!(");
-            expression_key(e, env_ids, out);
-            out.push(')');
-        }
-        expr::Expr::And(es) | expr::Expr::Or(es) => {
-            out.push_str(if matches!(expr, expr::Expr::And(_)) {
-                "&("
-            } else {
-                "|("
-            });
-            for e in es {
-                expression_key(e, env_ids, out);
-                out.push(' ');
-            }
-            out.push(')');
+            expr::Expr::Prim(p) => ExprKey::Prim(*p),
+            expr::Expr::Not(e) => ExprKey::Not(Box::new(ExprKey::of(e, env_ids))),
+            expr::Expr::And(es) => ExprKey::And(all(es)),
+            expr::Expr::Or(es) => ExprKey::Or(all(es)),
         }
     }
 }
@@ -375,10 +413,9 @@ fn expression_key(expr: &expr::Expr<primitive::AtomPrim>, env_ids: &[u32], out: 
 /// The process-wide id of an atom expression: equal expressions (environments by their
 /// ids) share it, so their answers on one molecule may be shared.
 fn expression_id(expr: &expr::Expr<primitive::AtomPrim>, env_ids: &[u32]) -> u32 {
-    let mut key = String::new();
-    expression_key(expr, env_ids, &mut key);
+    let key = ExprKey::of(expr, env_ids);
     let mut ids = EXPRESSION_IDS
-        .get_or_init(|| Mutex::new(HashMap::new()))
+        .get_or_init(|| Mutex::new(IdMap::default()))
         .lock()
         .unwrap_or_else(|e| e.into_inner());
     let next = ids.len() as u32;
@@ -522,13 +559,15 @@ impl<'m> Matcher<'m> {
     ) -> Option<Vec<usize>> {
         // Callers trying many patterns ask `could_anchor` first; the search repeats the
         // test anyway.
+        let mut least = Least::with_keys(std::mem::take(&mut self.memo().least_keys));
         let mut search = Search::new(self.molecule, &pattern.subs, &pattern.env_ids, self.memo());
-        let mut least = Least::default();
         search.search(&pattern.main, atom, avoid, &mut |a| {
             least.add(a);
             false
         });
-        least.best
+        let (best, keys) = least.finish();
+        self.memo().least_keys = keys;
+        best
     }
     /// Like [`Pattern::first_match_at`].
     pub fn first_match_at(

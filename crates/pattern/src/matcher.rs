@@ -14,7 +14,6 @@ use mol::Molecule;
 
 use crate::expr::Expr;
 use crate::features::{FeatureTable, COUNT_CAP};
-use crate::filter::bond_kind;
 use crate::graph::Graph;
 use crate::primitive::AtomPrim;
 use crate::Match;
@@ -25,8 +24,9 @@ const UNPLACED: usize = usize::MAX;
 /// candidates; beyond, each only for one.
 const HALL_AHEAD: usize = 4;
 
-/// Patterns up to this size search in a stack buffer.
+/// Patterns up to this size search in a stack buffer, those up to `SMALL` in a smaller one.
 const INLINE: usize = 32;
+const SMALL: usize = 8;
 
 /// Environment answers kept without allocating; one anchored call rarely asks more.
 const MEMO_INLINE: usize = 16;
@@ -63,6 +63,8 @@ pub(crate) struct EnvMemo {
     /// The atoms' values the primitives test; empty (every atom read afresh) for a single
     /// call, kept for a matcher.
     pub(crate) features: FeatureTable,
+    /// Room for the atom sets a [`Least`] has seen, handed from one call to the next.
+    pub(crate) least_keys: Vec<usize>,
 }
 
 impl EnvMemo {
@@ -78,6 +80,7 @@ impl EnvMemo {
             touched_expr: Vec::new(),
             table: Vec::new(),
             features: FeatureTable::default(),
+            least_keys: Vec::new(),
         }
     }
 
@@ -317,17 +320,33 @@ impl<'a> Search<'a> {
         {
             return false;
         }
-        let mut inline = [UNPLACED; INLINE];
-        let mut heap = Vec::new();
-        let assign: &mut [usize] = if n <= INLINE {
-            &mut inline[..n]
-        } else {
-            heap.resize(n, UNPLACED);
-            &mut heap
-        };
         if !self.ahead_ok(graph, graph.root, anchor, avoid) {
             return false;
         }
+        // A buffer no larger than the pattern needs: a search is set up for every (pattern,
+        // atom) pair tried, and most patterns are small.
+        if n <= SMALL {
+            let mut small = [UNPLACED; SMALL];
+            self.start(graph, anchor, &mut small[..n], avoid, sink)
+        } else if n <= INLINE {
+            let mut inline = [UNPLACED; INLINE];
+            self.start(graph, anchor, &mut inline[..n], avoid, sink)
+        } else {
+            let mut heap = vec![UNPLACED; n];
+            self.start(graph, anchor, &mut heap, avoid, sink)
+        }
+    }
+
+    /// Places the root on `anchor` and the rest after it.
+    #[inline(always)]
+    fn start(
+        &mut self,
+        graph: &Graph,
+        anchor: usize,
+        assign: &mut [usize],
+        avoid: &[usize],
+        sink: &mut dyn FnMut(&[usize]) -> bool,
+    ) -> bool {
         assign[graph.root] = anchor;
         self.extend(graph, 0, assign, avoid, sink)
     }
@@ -361,7 +380,7 @@ impl<'a> Search<'a> {
         if ahead.len() > HALL_AHEAD || neighbors.len() > 32 {
             return ahead.iter().all(|&(next, mask)| {
                 neighbors.iter().any(|nb| {
-                    mask >> bond_kind(&bonds[nb.bond]) & 1 != 0
+                    mask >> features.bond_kind(bonds, nb.bond) & 1 != 0
                         && graph.filters[next].admits_features(&features.get(molecule, nb.atom))
                         && free(nb)
                 })
@@ -371,7 +390,7 @@ impl<'a> Search<'a> {
         // molecule neighbour read once.
         let mut candidates = [0u32; HALL_AHEAD];
         for (i, nb) in neighbors.iter().enumerate() {
-            let kind = bond_kind(&bonds[nb.bond]);
+            let kind = features.bond_kind(bonds, nb.bond);
             let mut f = None;
             for (k, &(next, mask)) in ahead.iter().enumerate() {
                 if mask >> kind & 1 == 0 {
@@ -420,7 +439,7 @@ impl<'a> Search<'a> {
         let mask = graph.bond_masks[s.bond];
         for nb in molecule.neighbors(from) {
             let candidate = nb.atom;
-            if mask >> bond_kind(&bonds[nb.bond]) & 1 == 0 {
+            if mask >> self.memo.features.bond_kind(bonds, nb.bond) & 1 == 0 {
                 continue;
             }
             if assign.contains(&candidate) || avoid.contains(&candidate) {
@@ -429,10 +448,13 @@ impl<'a> Search<'a> {
             if !self.atom_ok(graph, s.atom, candidate) {
                 continue;
             }
+            let features = &self.memo.features;
             let closed = s.closures.iter().all(|&(other, bond)| {
                 molecule
                     .bond_between(candidate, assign[other])
-                    .is_some_and(|mb| graph.bond_masks[bond] >> bond_kind(&bonds[mb]) & 1 != 0)
+                    .is_some_and(|mb| {
+                        graph.bond_masks[bond] >> features.bond_kind(bonds, mb) & 1 != 0
+                    })
             });
             if !closed {
                 continue;
@@ -493,9 +515,9 @@ impl Distinct {
 
 /// Keeps the least (atom by atom) of the matches a [`Distinct`] would keep, without
 /// storing them: a match counts only when its atom set was not seen before, as there.
-#[derive(Default)]
 pub(crate) struct Least {
-    /// Sorted atom sets seen, back to back, while there are few.
+    /// Sorted atom sets seen, back to back, while there are few: a buffer handed in, so
+    /// the sets of one call after another take no allocation.
     keys: Vec<usize>,
     /// How many sets `keys` holds.
     count: usize,
@@ -506,28 +528,43 @@ pub(crate) struct Least {
 }
 
 impl Least {
+    /// Keeps the sets seen in `keys` (emptied first).
+    pub(crate) fn with_keys(mut keys: Vec<usize>) -> Least {
+        keys.clear();
+        Least {
+            keys,
+            count: 0,
+            seen: None,
+            best: None,
+        }
+    }
+
+    /// The least match and the buffer handed in.
+    pub(crate) fn finish(self) -> (Option<Vec<usize>>, Vec<usize>) {
+        (self.best, self.keys)
+    }
+
     pub(crate) fn add(&mut self, atoms: &[usize]) {
         let n = atoms.len();
-        let mut inline = [0usize; INLINE];
-        let mut heap = Vec::new();
-        let key: &mut [usize] = if n <= INLINE {
-            &mut inline[..n]
-        } else {
-            heap.extend_from_slice(atoms);
-            &mut heap
-        };
-        key.copy_from_slice(atoms);
-        key.sort_unstable();
         if self.count < DISTINCT_LINEAR {
-            if n > 0 && self.keys.chunks_exact(n).any(|k| k == key) {
+            // The new set is sorted in place after the others and dropped again if seen.
+            let start = self.keys.len();
+            self.keys.extend_from_slice(atoms);
+            self.keys[start..].sort_unstable();
+            let (seen, key) = self.keys.split_at(start);
+            let repeated = if n == 0 {
+                self.count > 0
+            } else {
+                seen.chunks_exact(n).any(|k| k == key)
+            };
+            if repeated {
+                self.keys.truncate(start);
                 return;
             }
-            if n == 0 && self.count > 0 {
-                return;
-            }
-            self.keys.extend_from_slice(key);
             self.count += 1;
         } else {
+            let mut key = atoms.to_vec();
+            key.sort_unstable();
             let seen = self.seen.get_or_insert_with(|| {
                 if n == 0 {
                     std::iter::once(Vec::new()).collect()
@@ -535,7 +572,7 @@ impl Least {
                     self.keys.chunks_exact(n).map(<[usize]>::to_vec).collect()
                 }
             });
-            if !seen.insert(key.to_vec()) {
+            if !seen.insert(key) {
                 return;
             }
             self.count += 1;

@@ -13,7 +13,7 @@ use mol::Molecule;
 use crate::features::{AtomFeatures, COUNT_CAP};
 
 /// One atom primitive.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
 pub(crate) enum AtomPrim {
     /// `*`: any atom.
     Any,

@@ -13,4 +13,6 @@ mod pattern;
 mod recursive;
 mod ring_closure;
 
+#[cfg(test)]
 pub(crate) use pattern::parse;
+pub(crate) use pattern::parse_unfiltered;

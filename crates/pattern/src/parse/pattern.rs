@@ -5,9 +5,21 @@ use crate::graph::Graph;
 
 use super::parser::{Builder, Parser};
 
-/// Reads pattern text: the main graph and the recursive environments it refers to.
-// <pattern> ::= <graph> end-of-text
+/// Reads pattern text: the main graph and the recursive environments it refers to, each
+/// with filters that know nothing of the environments (any may hold anywhere). For tests
+/// of the parts; `Pattern::parse` refilters with the environments' filters.
+#[cfg(test)]
 pub(crate) fn parse(text: &str) -> Result<(Graph, Vec<Graph>), PatternError> {
+    let (mut main, mut subs) = parse_unfiltered(text)?;
+    for graph in std::iter::once(&mut main).chain(subs.iter_mut()) {
+        graph.refilter(&[]);
+    }
+    Ok((main, subs))
+}
+
+/// Like [`parse`], the filters left for the caller to work out (`Graph::refilter`).
+// <pattern> ::= <graph> end-of-text
+pub(crate) fn parse_unfiltered(text: &str) -> Result<(Graph, Vec<Graph>), PatternError> {
     let mut parser = Parser::new(text);
     if text.is_empty() {
         return Err(parser.error_at("empty pattern", 0, 0));
