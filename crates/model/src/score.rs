@@ -16,10 +16,10 @@ use std::sync::OnceLock;
 
 use mol::{Hybridization, Molecule};
 use once_cell::sync::Lazy;
-use pattern::Matcher;
+
 use serde::{Deserialize, Serialize};
 
-use crate::substituents::recognize_with;
+use crate::substituents::Recognizer;
 use crate::{
     entry_by_id, Calibration, FoundSite, Kind, Library, Scale, SiteClass, SubstituentEntry,
 };
@@ -276,12 +276,12 @@ fn constants(library: &Library, class_index: usize) -> Constants<'_> {
 
 /// Scores found sites.
 pub fn score_sites(library: &Library, molecule: &Molecule, found: &[FoundSite]) -> Vec<Site> {
-    // One matcher for every group recognized on the molecule: what it works out about an
-    // atom or an environment serves the later sites too.
-    let mut matcher = Matcher::new(molecule);
+    // One recognizer for every group recognized on the molecule: what it works out about
+    // an atom, an environment or a group serves the later sites too.
+    let mut recognizer = Recognizer::new(library, molecule);
     found
         .iter()
-        .map(|f| score_one(library, &mut matcher, f))
+        .map(|f| score_one(library, &mut recognizer, f))
         .collect()
 }
 
@@ -651,7 +651,7 @@ fn cite_star(entry: &SubstituentEntry) -> String {
     }
 }
 
-fn score_one(library: &Library, matcher: &mut Matcher<'_>, found: &FoundSite) -> Site {
+fn score_one(library: &Library, recognizer: &mut Recognizer<'_, '_>, found: &FoundSite) -> Site {
     let class = &library.classes[found.class];
     let k = constants(library, found.class);
     let texts = Texts::new(library, found.class);
@@ -686,9 +686,9 @@ fn score_one(library: &Library, matcher: &mut Matcher<'_>, found: &FoundSite) ->
         .unwrap_or(found.atom);
     match class.scale {
         Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus => {
-            hammett(library, matcher, found, class, &k, anchor, &mut account)
+            hammett(library, recognizer, found, class, &k, anchor, &mut account)
         }
-        Scale::Taft => taft(library, matcher, found, &k, anchor, &mut account),
+        Scale::Taft => taft(library, recognizer, found, &k, anchor, &mut account),
         Scale::None => {}
     }
     if (class.statistical_factor - 1.0).abs() > 1e-12 && class.statistical_factor > 0.0 {
@@ -817,14 +817,14 @@ fn ring_member_entry<'a>(
 
 fn hammett(
     library: &Library,
-    matcher: &mut Matcher<'_>,
+    recognizer: &mut Recognizer<'_, '_>,
     found: &FoundSite,
     class: &SiteClass,
     k: &Constants,
     anchor: usize,
     account: &mut Account,
 ) {
-    let molecule = matcher.molecule();
+    let molecule = recognizer.molecule();
     let Some(ring) = site_ring(molecule, anchor) else {
         account.warnings.push(format!(
             "{}: the site is not on a ring; no substituents scored",
@@ -930,7 +930,7 @@ fn hammett(
                 }
                 continue;
             }
-            match recognize_with(library, matcher, s, atom, &avoid) {
+            match recognizer.recognize(s, atom, &avoid) {
                 Some(r) => {
                     if r.approximate {
                         account.approximate += 1;
@@ -988,8 +988,7 @@ fn hammett(
         }
     }
     fused_ring_substituents(
-        library,
-        matcher,
+        recognizer,
         (ring, anchor, class.scale),
         &fused_atoms,
         &avoid,
@@ -1137,8 +1136,7 @@ fn push_coefficient_term(
 /// others sigma_m-type).
 #[allow(clippy::too_many_arguments)]
 fn fused_ring_substituents(
-    library: &Library,
-    matcher: &mut Matcher<'_>,
+    recognizer: &mut Recognizer<'_, '_>,
     (ring, anchor, scale): (&[usize], usize, Scale),
     fused_atoms: &[usize],
     avoid: &[usize],
@@ -1148,7 +1146,7 @@ fn fused_ring_substituents(
     if fused_atoms.is_empty() {
         return;
     }
-    let molecule = matcher.molecule();
+    let molecule = recognizer.molecule();
     let mut keep_out: Vec<usize> = Vec::with_capacity(avoid.len() + fused_atoms.len());
     keep_out.extend_from_slice(avoid);
     keep_out.extend_from_slice(fused_atoms);
@@ -1171,7 +1169,7 @@ fn fused_ring_substituents(
             {
                 continue;
             }
-            let Some(r) = recognize_with(library, matcher, x, f, &keep_out) else {
+            let Some(r) = recognizer.recognize(x, f, &keep_out) else {
                 continue;
             };
             let (i, pos) = if d % 2 == 1 {
@@ -1499,13 +1497,13 @@ fn parent_carbon_branches(
 
 fn taft(
     library: &Library,
-    matcher: &mut Matcher<'_>,
+    recognizer: &mut Recognizer<'_, '_>,
     found: &FoundSite,
     k: &Constants,
     anchor: usize,
     account: &mut Account,
 ) {
-    let molecule = matcher.molecule();
+    let molecule = recognizer.molecule();
     // Hydrogens on the reaction centre count as substituents, except the site's own protons.
     if anchor != found.atom {
         let h = molecule.total_hydrogens(anchor);
@@ -1586,7 +1584,7 @@ fn taft(
         if let Some(i) = visited.iter().position(|&a| a == atom) {
             visited.swap_remove(i);
         }
-        let recognized = recognize_with(library, matcher, atom, from, &visited);
+        let recognized = recognizer.recognize(atom, from, &visited);
         visited.push(atom);
         let walk = match &recognized {
             // A saturated carbon the table has no sigma* for (CHF2, CH2CN...) is taken
