@@ -572,12 +572,12 @@ enum Used {
 impl Used {
     const KINDS: usize = 6;
 
-    /// The constant behind `hammett_sigma`'s name for it.
-    fn of_hammett(which: &str) -> Used {
+    /// The constant behind the one [`hammett_sigma`] picked.
+    fn of_hammett(which: Hammett) -> Used {
         match which {
-            "sigma_p-" => Used::Minus,
-            "sigma_p+" => Used::Plus,
-            _ => Used::Hammett,
+            Hammett::PMinus => Used::Minus,
+            Hammett::PPlus => Used::Plus,
+            Hammett::M | Hammett::P => Used::Hammett,
         }
     }
 
@@ -773,27 +773,88 @@ fn position(distance: usize) -> Position {
     }
 }
 
+/// Which Hammett constant a term uses.
+#[derive(Clone, Copy, PartialEq, Eq)]
+enum Hammett {
+    M,
+    P,
+    PMinus,
+    PPlus,
+}
+
 /// The sigma of an entry at a position on a scale; falls back from sigma-minus/plus to
 /// sigma-para, and says when it did.
-fn hammett_sigma(
-    entry: &SubstituentEntry,
-    pos: Position,
-    scale: Scale,
-) -> Option<(f64, &'static str)> {
+fn hammett_sigma(entry: &SubstituentEntry, pos: Position, scale: Scale) -> Option<(f64, Hammett)> {
     match pos {
-        Position::Meta => entry.sigma_m.map(|s| (s, "sigma_m")),
+        Position::Meta => entry.sigma_m.map(|s| (s, Hammett::M)),
         Position::Ortho | Position::Para => match scale {
             Scale::HammettMinus => entry
                 .sigma_p_minus
-                .map(|s| (s, "sigma_p-"))
-                .or(entry.sigma_p.map(|s| (s, "sigma_p"))),
+                .map(|s| (s, Hammett::PMinus))
+                .or(entry.sigma_p.map(|s| (s, Hammett::P))),
             Scale::HammettPlus => entry
                 .sigma_p_plus
-                .map(|s| (s, "sigma_p+"))
-                .or(entry.sigma_p.map(|s| (s, "sigma_p"))),
-            _ => entry.sigma_p.map(|s| (s, "sigma_p")),
+                .map(|s| (s, Hammett::PPlus))
+                .or(entry.sigma_p.map(|s| (s, Hammett::P))),
+            _ => entry.sigma_p.map(|s| (s, Hammett::P)),
         },
     }
+}
+
+/// The entries the scorer asks for by id on every site.
+#[derive(Clone, Copy)]
+enum Fixed {
+    RingAzonia,
+    RingAza,
+    RingNh,
+    RingO,
+    RingS,
+    FusedRing,
+    Hydrogen,
+    Methyl,
+}
+
+impl Fixed {
+    const ALL: [Fixed; 8] = [
+        Fixed::RingAzonia,
+        Fixed::RingAza,
+        Fixed::RingNh,
+        Fixed::RingO,
+        Fixed::RingS,
+        Fixed::FusedRing,
+        Fixed::Hydrogen,
+        Fixed::Methyl,
+    ];
+
+    fn id(self) -> &'static str {
+        match self {
+            Fixed::RingAzonia => "ring-azonia",
+            Fixed::RingAza => "ring-aza",
+            Fixed::RingNh => "ring-nh",
+            Fixed::RingO => "ring-o",
+            Fixed::RingS => "ring-s",
+            Fixed::FusedRing => "fused-ring",
+            Fixed::Hydrogen => "hydrogen",
+            Fixed::Methyl => "methyl",
+        }
+    }
+}
+
+/// The built-in library's [`Fixed`] entries, by [`entry_by_id`], looked up once.
+static BUILTIN_FIXED: Lazy<[Option<usize>; Fixed::ALL.len()]> = Lazy::new(|| {
+    let library = Library::builtin();
+    Fixed::ALL.map(|f| {
+        entry_by_id(library, f.id())
+            .and_then(|e| library.substituents.iter().position(|x| std::ptr::eq(x, e)))
+    })
+});
+
+/// [`entry_by_id`] for a [`Fixed`] id.
+fn fixed_entry(library: &Library, which: Fixed) -> Option<&SubstituentEntry> {
+    if std::ptr::eq(library, Library::builtin()) {
+        return BUILTIN_FIXED[which as usize].map(|i| &library.substituents[i]);
+    }
+    entry_by_id(library, which.id())
 }
 
 /// The table entry standing for a heteroatom that is a member of the site's ring.
@@ -805,14 +866,14 @@ fn ring_member_entry<'a>(
     let a = &molecule.atoms()[atom];
     let id = match (a.element, a.charge, molecule.total_hydrogens(atom)) {
         (6, _, _) => return None,
-        (7, 1, h) if h > 0 => "ring-azonia",
-        (7, 0, 0) if molecule.degree(atom) == 2 => "ring-aza",
-        (7, 0, _) => "ring-nh",
-        (8, _, _) => "ring-o",
-        (16, _, _) => "ring-s",
+        (7, 1, h) if h > 0 => Fixed::RingAzonia,
+        (7, 0, 0) if molecule.degree(atom) == 2 => Fixed::RingAza,
+        (7, 0, _) => Fixed::RingNh,
+        (8, _, _) => Fixed::RingO,
+        (16, _, _) => Fixed::RingS,
         _ => return None,
     };
-    entry_by_id(library, id)
+    fixed_entry(library, id)
 }
 
 fn hammett(
@@ -826,10 +887,10 @@ fn hammett(
 ) {
     let molecule = recognizer.molecule();
     let Some(ring) = site_ring(molecule, anchor) else {
-        account.warnings.push(format!(
-            "{}: the site is not on a ring; no substituents scored",
-            class.name
-        ));
+        account.warnings.push(concat(&[
+            &class.name,
+            ": the site is not on a ring; no substituents scored",
+        ]));
         return;
     };
     let n = ring.len();
@@ -839,7 +900,7 @@ fn hammett(
     let mut avoid: Vec<usize> = Vec::with_capacity(ring.len() + found.matched.len());
     avoid.extend_from_slice(ring);
     avoid.extend_from_slice(&found.matched);
-    let fused = entry_by_id(library, "fused-ring");
+    let fused = fixed_entry(library, Fixed::FusedRing);
     // A site that is itself a ring member (pyridine N, azole N) has its ortho substituents
     // on the next atom, where their inductive and field effect outweighs resonance.
     let site_in_ring = ring.contains(&found.atom);
@@ -934,10 +995,14 @@ fn hammett(
                 Some(r) => {
                     if r.approximate {
                         account.approximate += 1;
-                        account.warnings.push(format!(
-                            "{number}-substituent at atom {s} has no tabulated constant; scored as {} (nearest type)",
-                            r.entry.name
-                        ));
+                        account.warnings.push(concat(&[
+                            decimal(number, &mut [0; 20]),
+                            "-substituent at atom ",
+                            decimal(s, &mut [0; 20]),
+                            " has no tabulated constant; scored as ",
+                            &r.entry.name,
+                            " (nearest type)",
+                        ]));
                     }
                     let ortho = pos == Position::Ortho;
                     if ortho && r.entry.hbond_acceptor {
@@ -980,9 +1045,12 @@ fn hammett(
                 }
                 None => {
                     account.approximate += 1;
-                    account.warnings.push(format!(
-                        "{number}-substituent at atom {s} not recognized; not scored"
-                    ));
+                    account.warnings.push(concat(&[
+                        decimal(number, &mut [0; 20]),
+                        "-substituent at atom ",
+                        decimal(s, &mut [0; 20]),
+                        " not recognized; not scored",
+                    ]));
                 }
             }
         }
@@ -1254,12 +1322,37 @@ fn push_group(list: &mut String, name: &str) {
 
 /// A counted class correction, shown even while its value is 0 so that the reader sees
 /// the structure was recognized.
+/// Counts below this have their [`counted_label`] kept.
+const COUNTS_KEPT: usize = 8;
+
+/// Per [`Counted`] kind and count below [`COUNTS_KEPT`]: the label of the correction.
+static COUNTED_LABELS: [OnceLock<Box<str>>; COUNTED_KINDS * COUNTS_KEPT] =
+    [const { OnceLock::new() }; COUNTED_KINDS * COUNTS_KEPT];
+
+/// `{count} x {label}`: lent from the labels kept, which depend on the kind and the count
+/// alone (each kind is counted under one label); written out for any other.
+fn counted_label(what: Counted, count: usize, label: &str) -> Text {
+    let write = || concat(&[decimal(count, &mut [0; 20]), " x ", label]);
+    let slot = (count < COUNTS_KEPT)
+        .then(|| COUNTED_LABELS.get(counted_slot(what) * COUNTS_KEPT + count))
+        .flatten();
+    if let Some(cell) = slot {
+        let kept = cell.get_or_init(|| write().into_boxed_str());
+        // Kept as `{count} x ` and a label: the same text when the label is this one.
+        let prefix = decimal(count, &mut [0; 20]).len() + " x ".len();
+        if kept.len() == prefix + label.len() && kept.ends_with(label) {
+            return Cow::Borrowed(&**kept);
+        }
+    }
+    Cow::Owned(write())
+}
+
 fn push_counted(account: &mut Account, what: Counted, count: usize, per: f64, label: &str) {
     if count == 0 {
         return;
     }
     account.terms.push(Term {
-        label: Cow::Owned(concat(&[decimal(count, &mut [0; 20]), " x ", label])),
+        label: counted_label(what, count, label),
         contribution: per * count as f64,
         source: if per == 0.0 {
             Cow::Borrowed("class correction, not calibrated for this class (0)")
@@ -1300,32 +1393,32 @@ fn push_hammett(
         }
         None => {
             account.approximate += 1;
-            account.warnings.push(format!(
-                "{label}: no {} sigma tabulated; not scored",
-                pos.name()
-            ));
+            account.warnings.push(concat(&[
+                &label,
+                ": no ",
+                pos.name(),
+                " sigma tabulated; not scored",
+            ]));
         }
     }
 }
 
 /// The position text of a Hammett term: `ortho (sigma_p as ortho)`, `meta (sigma_m)`...
-/// for the constant `which` (one of [`hammett_sigma`]'s names).
-fn hammett_position(pos: Position, which: &'static str) -> Text {
+/// for the constant `which`.
+fn hammett_position(pos: Position, which: Hammett) -> Text {
     Cow::Borrowed(match (pos, which) {
-        (Position::Ortho, "sigma_p") => "ortho (sigma_p as ortho)",
-        (Position::Ortho, "sigma_p-") => "ortho (sigma_p- as ortho)",
-        (Position::Ortho, "sigma_p+") => "ortho (sigma_p+ as ortho)",
-        (Position::Ortho, "sigma_m") => "ortho (sigma_m as ortho)",
-        (Position::Meta, "sigma_m") => "meta (sigma_m)",
-        (Position::Meta, "sigma_p") => "meta (sigma_p)",
-        (Position::Meta, "sigma_p-") => "meta (sigma_p-)",
-        (Position::Meta, "sigma_p+") => "meta (sigma_p+)",
-        (Position::Para, "sigma_p") => "para (sigma_p)",
-        (Position::Para, "sigma_p-") => "para (sigma_p-)",
-        (Position::Para, "sigma_p+") => "para (sigma_p+)",
-        (Position::Para, "sigma_m") => "para (sigma_m)",
-        (Position::Ortho, _) => return Cow::Owned(concat(&["ortho (", which, " as ortho)"])),
-        _ => return Cow::Owned(concat(&[pos.name(), " (", which, ")"])),
+        (Position::Ortho, Hammett::P) => "ortho (sigma_p as ortho)",
+        (Position::Ortho, Hammett::PMinus) => "ortho (sigma_p- as ortho)",
+        (Position::Ortho, Hammett::PPlus) => "ortho (sigma_p+ as ortho)",
+        (Position::Ortho, Hammett::M) => "ortho (sigma_m as ortho)",
+        (Position::Meta, Hammett::M) => "meta (sigma_m)",
+        (Position::Meta, Hammett::P) => "meta (sigma_p)",
+        (Position::Meta, Hammett::PMinus) => "meta (sigma_p-)",
+        (Position::Meta, Hammett::PPlus) => "meta (sigma_p+)",
+        (Position::Para, Hammett::P) => "para (sigma_p)",
+        (Position::Para, Hammett::PMinus) => "para (sigma_p-)",
+        (Position::Para, Hammett::PPlus) => "para (sigma_p+)",
+        (Position::Para, Hammett::M) => "para (sigma_m)",
     })
 }
 
@@ -1372,9 +1465,10 @@ fn push_ortho_inductive(account: &mut Account, entry: &SubstituentEntry, rho: f6
         }
         None => {
             account.approximate += 1;
-            account.warnings.push(format!(
-                "{label}: no sigma_m and sigma_p to derive an ortho constant; not scored"
-            ));
+            account.warnings.push(concat(&[
+                &label,
+                ": no sigma_m and sigma_p to derive an ortho constant; not scored",
+            ]));
         }
     }
 }
@@ -1509,7 +1603,7 @@ fn taft(
         let h = molecule.total_hydrogens(anchor);
         if h > 0 {
             let texts = account.texts;
-            let (sigma, source) = match entry_by_id(library, "hydrogen")
+            let (sigma, source) = match fixed_entry(library, Fixed::Hydrogen)
                 .and_then(|e| e.sigma_star.map(|s| (s, texts.cite_star(e))))
             {
                 Some(x) => x,
@@ -1607,7 +1701,7 @@ fn taft(
                     && !is_plain_carbon(molecule, n.atom)
             });
             if depth >= 1 && !carries_group {
-                let methyl = entry_by_id(library, "methyl");
+                let methyl = fixed_entry(library, Fixed::Methyl);
                 let s = methyl.and_then(|e| e.sigma_star_ch2).unwrap_or(-0.10)
                     * TAFT_FALLOFF.powi(depth as i32 - 1);
                 alkyl += s;
@@ -1632,17 +1726,22 @@ fn taft(
         }
         let Some(r) = recognized else {
             account.approximate += 1;
-            account
-                .warnings
-                .push(format!("group at atom {atom} not recognized; not scored"));
+            account.warnings.push(concat(&[
+                "group at atom ",
+                decimal(atom, &mut [0; 20]),
+                " not recognized; not scored",
+            ]));
             continue;
         };
         if r.approximate {
             account.approximate += 1;
-            account.warnings.push(format!(
-                "group at atom {atom} has no tabulated constant; scored as {} (nearest type)",
-                r.entry.name
-            ));
+            account.warnings.push(concat(&[
+                "group at atom ",
+                decimal(atom, &mut [0; 20]),
+                " has no tabulated constant; scored as ",
+                &r.entry.name,
+                " (nearest type)",
+            ]));
         }
         for &a in &r.atoms {
             if !visited.contains(&a) {
@@ -1664,9 +1763,10 @@ fn taft(
             ),
             None => {
                 account.approximate += 1;
-                account
-                    .warnings
-                    .push(format!("{}: no sigma* tabulated; not scored", r.entry.name));
+                account.warnings.push(concat(&[
+                    &r.entry.name,
+                    ": no sigma* tabulated; not scored",
+                ]));
             }
         }
     }
@@ -1979,6 +2079,44 @@ mod tests {
             }
         }
         assert!(pairs > 20, "only {pairs} pairs compared");
+    }
+
+    #[test]
+    fn fixed_entries_are_the_ones_by_id() {
+        let builtin = Library::builtin();
+        let copy = builtin.clone();
+        for library in [builtin, &copy] {
+            for f in Fixed::ALL {
+                assert_eq!(
+                    fixed_entry(library, f).map(|e| e as *const SubstituentEntry),
+                    entry_by_id(library, f.id()).map(|e| e as *const SubstituentEntry),
+                    "{}",
+                    f.id()
+                );
+            }
+        }
+        // The built-in table has them all (the scorer's ring and chain terms need them).
+        assert!(Fixed::ALL
+            .iter()
+            .all(|&f| fixed_entry(builtin, f).is_some()));
+    }
+
+    #[test]
+    fn counted_labels_read_as_written_out() {
+        // Kept and written-out labels agree, and a kind asked with another label, or a
+        // count beyond those kept, gets its own text.
+        for (what, label) in [
+            (Counted::RingOxo, "ring C=O / C=S"),
+            (Counted::AzaPair, "pair of ring aza N"),
+            (Counted::RingOxo, "another label"),
+            (Counted::RingOxo, "ring C=O / C=S"),
+            (Counted::RingOxo, "C=O / C=S"),
+        ] {
+            for count in [1, 2, 7, 8, 12, 123] {
+                let expected = format!("{count} x {label}");
+                assert_eq!(counted_label(what, count, label), expected);
+            }
+        }
     }
 
     #[test]
