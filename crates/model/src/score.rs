@@ -1871,6 +1871,11 @@ impl Paths {
     }
 }
 
+thread_local! {
+    /// [`Paths`] buffers handed back by the last [`interactions`] on this thread.
+    static SPARE_PATHS: std::cell::RefCell<Paths> = std::cell::RefCell::new(Paths::default());
+}
+
 /// Pairwise interaction energies between sites in pK units, `w[i][j]` for both sites
 /// charged (positive: like charges repel). Symmetric, zero diagonal.
 ///
@@ -1884,7 +1889,13 @@ pub fn interactions(library: &Library, molecule: &Molecule, sites: &[Site]) -> V
     let c = &*COUPLING;
     let n = sites.len();
     let mut w = vec![vec![0.0; n]; n];
-    let mut paths = Paths::default();
+    if n < 2 {
+        return w;
+    }
+    // The buffers of the thread's last call: a batch asks once per molecule.
+    let mut paths = SPARE_PATHS
+        .try_with(|spare| std::mem::take(&mut *spare.borrow_mut()))
+        .unwrap_or_default();
     // The last site has no partner after it: no paths from it are needed.
     for i in 0..n.saturating_sub(1) {
         paths.from(molecule, sites[i].atom, c.max_bonds, &sites[i + 1..]);
@@ -1924,6 +1935,7 @@ pub fn interactions(library: &Library, molecule: &Molecule, sites: &[Site]) -> V
             w[j][i] = value;
         }
     }
+    let _ = SPARE_PATHS.try_with(|spare| *spare.borrow_mut() = paths);
     w
 }
 
