@@ -1819,52 +1819,68 @@ static COUPLING: Lazy<Coupling> = Lazy::new(|| {
 /// with many sites allocates them once.
 #[derive(Default)]
 struct Paths {
-    dist: Vec<usize>,
-    count: Vec<u32>,
+    /// Per atom: (distance, paths), [`UNREACHED`] for atoms not reached. Side by side, so
+    /// that the walk looks an atom up once.
+    nodes: Vec<(u32, u32)>,
     /// Breadth-first queue: atoms in the order reached, read from `head` on.
     queue: Vec<usize>,
 }
 
+/// The distance of an atom a walk has not reached.
+const UNREACHED: u32 = u32::MAX;
+
 impl Paths {
+    /// Bonds from the start to `atom`; `usize::MAX` when not reached.
+    fn dist(&self, atom: usize) -> usize {
+        match self.nodes[atom].0 {
+            UNREACHED => usize::MAX,
+            d => d as usize,
+        }
+    }
+
+    /// Shortest paths from the start to `atom`, capped at 8.
+    fn count(&self, atom: usize) -> u32 {
+        self.nodes[atom].1
+    }
+
     /// Fills the buffers from `start`, up to `max` bonds, for the atoms of `targets` (others
     /// may be left unfinished).
     fn from(&mut self, molecule: &Molecule, start: usize, max: usize, targets: &[Site]) {
         let n = molecule.atoms().len();
-        let (dist, count, queue) = (&mut self.dist, &mut self.count, &mut self.queue);
-        dist.clear();
-        dist.resize(n, usize::MAX);
-        count.clear();
-        count.resize(n, 0);
+        let (nodes, queue) = (&mut self.nodes, &mut self.queue);
+        nodes.clear();
+        nodes.resize(n, (UNREACHED, 0));
         queue.clear();
         queue.reserve(n);
-        dist[start] = 0;
-        count[start] = 1;
+        // Distances past `max` are never reached; a bound the sentinel stays above.
+        let max = max.min(UNREACHED as usize - 1) as u32;
+        nodes[start] = (0, 1);
         queue.push(start);
         let mut head = 0;
         // Distance of the atoms being expanded.
         let mut level = 0;
         while let Some(&a) = queue.get(head) {
-            if head == 0 || dist[a] > level {
+            let (da, ca) = nodes[a];
+            if head == 0 || da > level {
                 // Every atom nearer than `a` has been expanded, so distances and path counts
                 // up to its distance are final: once all targets are that near, the rest of
                 // the walk cannot change what is read of them.
-                level = dist[a];
-                if targets.iter().all(|t| dist[t.atom] <= level) {
+                level = da;
+                if targets.iter().all(|t| nodes[t.atom].0 <= level) {
                     break;
                 }
             }
             head += 1;
-            if dist[a] >= max {
+            if da >= max {
                 continue;
             }
             for nb in molecule.neighbors(a) {
-                let b = nb.atom;
-                if dist[b] == usize::MAX {
-                    dist[b] = dist[a] + 1;
-                    count[b] = count[a];
-                    queue.push(b);
-                } else if dist[b] == dist[a] + 1 {
-                    count[b] = (count[b] + count[a]).min(8);
+                let node = &mut nodes[nb.atom];
+                if node.0 == UNREACHED {
+                    *node = (da + 1, ca);
+                    queue.push(nb.atom);
+                } else if node.0 == da + 1 {
+                    node.1 = (node.1 + ca).min(8);
                 }
             }
         }
@@ -1899,13 +1915,12 @@ pub fn interactions(library: &Library, molecule: &Molecule, sites: &[Site]) -> V
     // The last site has no partner after it: no paths from it are needed.
     for i in 0..n.saturating_sub(1) {
         paths.from(molecule, sites[i].atom, c.max_bonds, &sites[i + 1..]);
-        let (dist, count) = (&paths.dist, &paths.count);
         for j in (i + 1)..n {
-            let d = dist[sites[j].atom];
+            let d = paths.dist(sites[j].atom);
             if d == usize::MAX || d == 0 {
                 continue;
             }
-            let paths = count[sites[j].atom].min(2) as f64;
+            let paths = paths.count(sites[j].atom).min(2) as f64;
             let mut magnitude =
                 c.w3 * c.falloff.powi(d as i32 - 3) * (1.0 + c.extra_path * (paths - 1.0));
             // Two OH on one phosphorus or arsenic: the class gives the spread between its
@@ -2084,8 +2099,8 @@ mod tests {
                 paths.from(&m, sites[i].atom, COUPLING.max_bonds, &sites[i + 1..]);
                 let (dist, count) = full_walk(&m, sites[i].atom, COUPLING.max_bonds);
                 for t in &sites[i + 1..] {
-                    assert_eq!(paths.dist[t.atom], dist[t.atom], "{smiles}: distance");
-                    assert_eq!(paths.count[t.atom], count[t.atom], "{smiles}: paths");
+                    assert_eq!(paths.dist(t.atom), dist[t.atom], "{smiles}: distance");
+                    assert_eq!(paths.count(t.atom), count[t.atom], "{smiles}: paths");
                     pairs += 1;
                 }
             }
