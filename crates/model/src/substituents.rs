@@ -324,9 +324,11 @@ thread_local! {
 /// about once.
 pub struct Recognizer<'a, 'm> {
     library: &'a Library,
-    matcher: pattern::Matcher<'m>,
+    molecule: &'m Molecule,
+    /// Made on the first recognition: many molecules score no group.
+    matcher: Option<pattern::Matcher<'m>>,
     index: IndexRef,
-    /// `None` only while being dropped.
+    /// Taken from the thread's spare on the first recognition.
     scratch: Option<Box<Scratch>>,
 }
 
@@ -413,21 +415,18 @@ impl Walk {
 impl<'a, 'm> Recognizer<'a, 'm> {
     /// A recognizer of `library`'s groups on `molecule`, with nothing worked out yet.
     pub fn new(library: &'a Library, molecule: &'m Molecule) -> Recognizer<'a, 'm> {
-        let mut scratch = SPARE_SCRATCH
-            .with(|spare| spare.borrow_mut().take())
-            .unwrap_or_default();
-        scratch.clear();
         Recognizer {
             library,
-            matcher: pattern::Matcher::new(molecule),
+            molecule,
+            matcher: None,
             index: substituent_index(library),
-            scratch: Some(scratch),
+            scratch: None,
         }
     }
 
     /// The molecule it recognizes groups on.
     pub fn molecule(&self) -> &'m Molecule {
-        self.matcher.molecule()
+        self.molecule
     }
 
     /// What [`recognize_with`] answers for these arguments on the recognizer's molecule.
@@ -437,18 +436,29 @@ impl<'a, 'm> Recognizer<'a, 'm> {
         from: usize,
         avoid: &[usize],
     ) -> Option<Recognized<'a>> {
-        let molecule = self.matcher.molecule();
+        let molecule = self.molecule;
         let n = molecule.atoms().len();
         // The fence is `avoid` with `from` when `from` is an atom.
         if atom >= n || atom == from || avoid.contains(&atom) {
             return None;
         }
         let library = self.library;
-        let scratch = self.scratch.get_or_insert_with(Box::default);
+        let matcher = self
+            .matcher
+            .get_or_insert_with(|| pattern::Matcher::new(molecule));
+        let scratch = self.scratch.get_or_insert_with(|| {
+            let mut scratch = SPARE_SCRATCH
+                .try_with(|spare| spare.borrow_mut().take())
+                .ok()
+                .flatten()
+                .unwrap_or_default();
+            scratch.clear();
+            scratch
+        });
         let (candidates, reach) = match scratch.atoms.iter().find(|c| c.atom == atom) {
             Some(c) => (Rc::clone(&c.candidates), c.reach),
             None => {
-                let key = self.matcher.atom_key(atom)?;
+                let key = matcher.atom_key(atom)?;
                 let candidates = candidates(&self.index, molecule, atom, key);
                 // Steps a match can take from the atom; at least one, for the nearest type.
                 let longest = candidates
@@ -500,14 +510,7 @@ impl<'a, 'm> Recognizer<'a, 'm> {
                     return scratch.answer(library, i);
                 }
             }
-            let recognized = best_match(
-                library,
-                &self.index,
-                &mut self.matcher,
-                &candidates,
-                atom,
-                &near,
-            );
+            let recognized = best_match(library, &self.index, matcher, &candidates, atom, &near);
             let at = scratch.nears.len();
             scratch.nears.extend_from_slice(&near);
             let kept_near = at..scratch.nears.len();
@@ -522,7 +525,7 @@ impl<'a, 'm> Recognizer<'a, 'm> {
         let recognized = best_match(
             library,
             &self.index,
-            &mut self.matcher,
+            matcher,
             &candidates,
             atom,
             &scratch.fences[fence.clone()],
