@@ -1,6 +1,7 @@
 //! `pkarta predict`: estimates for every record of a file or stream.
 
 use std::io::{self, IsTerminal, Write};
+use std::panic::{catch_unwind, AssertUnwindSafe};
 
 use pkarta::{ErrorReport, Options, Record, SiteReport};
 
@@ -42,7 +43,12 @@ pub fn run(args: &PredictArgs) -> anyhow::Result<bool> {
     let progress = Progress::new(args.batch.quiet, opened.len);
     let out = batch::stdout();
     let mut sink: Box<dyn Sink<Estimated> + Send> = match format {
-        PredictFormat::Jsonl => Box::new(Jsonl { out }),
+        // A small buffer: the JSON text comes a piece of records at a time (see
+        // `PredictJob::run_piece`), larger than this, and goes to the output as it is
+        // instead of through the buffer.
+        PredictFormat::Jsonl => Box::new(Jsonl {
+            out: io::BufWriter::with_capacity(1 << 13, io::stdout()),
+        }),
         PredictFormat::Table => Box::new(Table { out, first: true }),
         PredictFormat::Csv | PredictFormat::Tsv => {
             let tsv = format == PredictFormat::Tsv;
@@ -95,9 +101,11 @@ pub struct PredictJob {
 pub enum Estimated {
     /// The record, for the table and CSV/TSV writers.
     Record(Record),
-    /// The record as JSON text (no line end), and whether it failed.
+    /// The record as JSON Lines, and whether it failed.
     Json {
-        /// The JSON text.
+        /// The JSON text with its line end; the records of a piece (see
+        /// [`PredictJob::run_piece`]) share one text, held by the last of them, and the
+        /// others' is empty.
         text: Vec<u8>,
         /// Whether the record carries an error.
         failed: bool,
@@ -137,7 +145,66 @@ impl Job for PredictJob {
     type Out = Estimated;
 
     fn run(&self, item: &Item) -> Estimated {
-        let record = match &item.problem {
+        let record = self.record(item);
+        self.finish(record)
+    }
+
+    fn internal_error(&self, item: &Item, message: String) -> Estimated {
+        self.finish(failed(item, self.options.ph, message))
+    }
+
+    /// For JSON Lines the records of a piece are written one after the other into one
+    /// text: no copy of each record's text, one allocation and one cross-thread free per
+    /// piece instead of per record, and one write to the output.
+    fn run_piece(&self, items: &[Item], outs: &mut Vec<Estimated>) {
+        if !self.json {
+            return outs.extend(items.iter().map(|item| batch::run_one(self, item)));
+        }
+        // Sized from this thread's earlier pieces, so the text is seldom grown.
+        let mut text = Vec::with_capacity(PIECE_BYTES.get().min(1 << 20));
+        for item in items {
+            // As `batch::run_one`: a panic is a bug, and becomes that record's error.
+            let record =
+                catch_unwind(AssertUnwindSafe(|| self.record(item))).unwrap_or_else(|payload| {
+                    failed(item, self.options.ph, batch::internal_error(&*payload))
+                });
+            let start = text.len();
+            let written = catch_unwind(AssertUnwindSafe(|| {
+                crate::json::write_record(&mut text, &record)
+            }));
+            let failed_record = match written {
+                Ok(()) => record.failed(),
+                Err(payload) => {
+                    text.truncate(start);
+                    let message = batch::internal_error(&*payload);
+                    crate::json::write_record(&mut text, &failed(item, self.options.ph, message));
+                    true
+                }
+            };
+            text.push(b'\n');
+            outs.push(Estimated::Json {
+                text: Vec::new(),
+                failed: failed_record,
+            });
+        }
+        let seen = PIECE_BYTES.get();
+        PIECE_BYTES.set(seen - seen / 8 + text.len() / 8 + text.len() / 32);
+        if let Some(Estimated::Json { text: last, .. }) = outs.last_mut() {
+            *last = text;
+        }
+    }
+}
+
+thread_local! {
+    /// A little over the bytes of this thread's recent pieces of JSON text (a running
+    /// mean), to size the next.
+    static PIECE_BYTES: std::cell::Cell<usize> = const { std::cell::Cell::new(1 << 14) };
+}
+
+impl PredictJob {
+    /// Estimates one record.
+    fn record(&self, item: &Item) -> Record {
+        match &item.problem {
             Some(problem) => failed(item, self.options.ph, problem.clone()),
             None => match &self.library {
                 Some(library) => {
@@ -145,45 +212,21 @@ impl Job for PredictJob {
                 }
                 None => pkarta::estimate(&item.text, item.id.as_deref(), &self.options),
             },
-        };
-        self.finish(record)
+        }
     }
 
-    fn internal_error(&self, item: &Item, message: String) -> Estimated {
-        self.finish(failed(item, self.options.ph, message))
-    }
-}
-
-impl PredictJob {
     fn finish(&self, record: Record) -> Estimated {
         if !self.json {
             return Estimated::Record(record);
         }
-        // The record is written into a buffer this thread keeps (warm in cache, grown once
-        // to the largest record) and copied once into a text of its exact size, which waits
-        // for the writer: one allocation of what the text weighs, on memory this thread
-        // has just freed, instead of a fresh 8 KiB block shrunk afterwards.
-        let text = SCRATCH.with(|scratch| {
-            let mut scratch = scratch.borrow_mut();
-            scratch.clear();
-            crate::json::write_record(&mut scratch, &record);
-            let text = scratch.to_vec();
-            // A rare giant record (a long peptide) does not pin its size on the thread.
-            if scratch.capacity() > 1 << 20 {
-                *scratch = Vec::with_capacity(1 << 14);
-            }
-            text
-        });
+        let mut text = Vec::with_capacity(1 << 12);
+        crate::json::write_record(&mut text, &record);
+        text.push(b'\n');
         Estimated::Json {
             text,
             failed: record.failed(),
         }
     }
-}
-
-thread_local! {
-    /// Each worker's buffer for the JSON text of a record.
-    static SCRATCH: std::cell::RefCell<Vec<u8>> = std::cell::RefCell::new(Vec::with_capacity(1 << 14));
 }
 
 /// The record of an input that failed before it reached the library.
@@ -236,14 +279,14 @@ struct Jsonl<W> {
 impl<W: Write + Send> Sink<Estimated> for Jsonl<W> {
     fn write(&mut self, _item: &Item, done: &Estimated) -> io::Result<()> {
         match done {
-            Estimated::Json { text, .. } => self.out.write_all(text)?,
+            Estimated::Json { text, .. } => self.out.write_all(text),
             Estimated::Record(record) => {
                 let mut text = Vec::with_capacity(8192);
                 crate::json::write_record(&mut text, record);
-                self.out.write_all(&text)?
+                text.push(b'\n');
+                self.out.write_all(&text)
             }
         }
-        self.out.write_all(b"\n")
     }
     fn flush(&mut self) -> io::Result<()> {
         self.out.flush()
