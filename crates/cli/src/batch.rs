@@ -62,8 +62,9 @@ pub trait Outcome {
 
 /// Writes results in one output format.
 pub trait Sink<T> {
-    /// Writes one record.
-    fn write(&mut self, item: &Item, out: &T) -> io::Result<()>;
+    /// Writes one record. The result is handed over, so a writer may keep it until
+    /// [`Sink::flush`] and write several at once.
+    fn write(&mut self, item: &Item, out: T) -> io::Result<()>;
     /// Writes what comes after the last record, and flushes.
     fn finish(&mut self) -> io::Result<()>;
     /// Flushes at the end of a chunk so a reader downstream sees records as they come.
@@ -219,12 +220,13 @@ where
     for done in chunks {
         waiting.insert(done.seq, done);
         while let Some(Done { items, outs, .. }) = waiting.remove(&next) {
-            for (item, out) in items.iter().zip(outs.iter().flatten()) {
+            for (item, out) in items.iter().zip(outs.into_iter().flatten()) {
+                let failed = out.failed();
                 if let Err(e) = sink.write(item, out) {
                     return output_error(e, summary);
                 }
                 summary.records += 1;
-                summary.failed += out.failed() as u64;
+                summary.failed += failed as u64;
             }
             if let Err(e) = sink.flush() {
                 return output_error(e, summary);
@@ -363,7 +365,7 @@ mod tests {
     }
 
     impl Sink<(u64, bool)> for Collect {
-        fn write(&mut self, _item: &Item, out: &(u64, bool)) -> io::Result<()> {
+        fn write(&mut self, _item: &Item, out: (u64, bool)) -> io::Result<()> {
             if Some(self.got.len()) == self.close_after {
                 return Err(io::ErrorKind::BrokenPipe.into());
             }

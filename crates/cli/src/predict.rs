@@ -43,11 +43,11 @@ pub fn run(args: &PredictArgs) -> anyhow::Result<bool> {
     let progress = Progress::new(args.batch.quiet, opened.len);
     let out = batch::stdout();
     let mut sink: Box<dyn Sink<Estimated> + Send> = match format {
-        // A small buffer: the JSON text comes a piece of records at a time (see
-        // `PredictJob::run_piece`), larger than this, and goes to the output as it is
-        // instead of through the buffer.
+        // Standard output as it is: the texts come a chunk at a time (see `Jsonl`).
         PredictFormat::Jsonl => Box::new(Jsonl {
-            out: io::BufWriter::with_capacity(1 << 13, io::stdout()),
+            out: io::stdout(),
+            pending: Vec::new(),
+            pending_bytes: 0,
         }),
         PredictFormat::Table => Box::new(Table { out, first: true }),
         PredictFormat::Csv | PredictFormat::Tsv => {
@@ -272,26 +272,68 @@ fn kind_name(kind: pkarta::model::Kind) -> &'static str {
     }
 }
 
+/// JSON Lines: the texts of a chunk are kept until its end and handed to the output in one
+/// vectored write (a pipe's reader is woken as rarely as with one large buffer, and no
+/// byte is copied into one).
 struct Jsonl<W> {
     out: W,
+    /// Texts not yet written, in order.
+    pending: Vec<Vec<u8>>,
+    /// Their bytes.
+    pending_bytes: usize,
+}
+
+/// Bytes kept before they are written even within a chunk.
+const PENDING_BYTES: usize = 1 << 21;
+
+impl<W: Write> Jsonl<W> {
+    fn write_pending(&mut self) -> io::Result<()> {
+        let mut slices: Vec<io::IoSlice> = self
+            .pending
+            .iter()
+            .map(|text| io::IoSlice::new(text))
+            .collect();
+        let mut rest = &mut slices[..];
+        while !rest.is_empty() {
+            match self.out.write_vectored(rest) {
+                Ok(0) => return Err(io::ErrorKind::WriteZero.into()),
+                Ok(n) => io::IoSlice::advance_slices(&mut rest, n),
+                Err(e) if e.kind() == io::ErrorKind::Interrupted => {}
+                Err(e) => return Err(e),
+            }
+        }
+        self.pending.clear();
+        self.pending_bytes = 0;
+        Ok(())
+    }
 }
 
 impl<W: Write + Send> Sink<Estimated> for Jsonl<W> {
-    fn write(&mut self, _item: &Item, done: &Estimated) -> io::Result<()> {
-        match done {
-            Estimated::Json { text, .. } => self.out.write_all(text),
+    fn write(&mut self, _item: &Item, done: Estimated) -> io::Result<()> {
+        let text = match done {
+            Estimated::Json { text, .. } => text,
             Estimated::Record(record) => {
                 let mut text = Vec::with_capacity(8192);
-                crate::json::write_record(&mut text, record);
+                crate::json::write_record(&mut text, &record);
                 text.push(b'\n');
-                self.out.write_all(&text)
+                text
             }
+        };
+        if !text.is_empty() {
+            self.pending_bytes += text.len();
+            self.pending.push(text);
         }
+        if self.pending_bytes >= PENDING_BYTES {
+            self.write_pending()?;
+        }
+        Ok(())
     }
     fn flush(&mut self) -> io::Result<()> {
+        self.write_pending()?;
         self.out.flush()
     }
     fn finish(&mut self) -> io::Result<()> {
+        self.write_pending()?;
         self.out.flush()
     }
 }
@@ -355,7 +397,7 @@ pub fn cells(record: &Record) -> Vec<String> {
 }
 
 impl<W: Write + Send> Sink<Estimated> for Delimited<W> {
-    fn write(&mut self, item: &Item, done: &Estimated) -> io::Result<()> {
+    fn write(&mut self, item: &Item, done: Estimated) -> io::Result<()> {
         let record = done.record()?;
         if !self.header_written {
             self.write_header()?;
@@ -421,7 +463,7 @@ struct Table<W> {
 }
 
 impl<W: Write + Send> Sink<Estimated> for Table<W> {
-    fn write(&mut self, item: &Item, done: &Estimated) -> io::Result<()> {
+    fn write(&mut self, item: &Item, done: Estimated) -> io::Result<()> {
         let record = done.record()?;
         if !self.first {
             self.out.write_all(b"\n")?;
