@@ -123,6 +123,10 @@ pub fn estimate_with(
             record.warnings.extend(cautions(&analysis.sites));
             // Each site's texts and terms move into its report: nothing reads them after this.
             let mut sites = std::mem::take(&mut analysis.sites);
+            // Sized up front, as the other lists of the record: growing them one push at a
+            // time cost more than filling them.
+            record.sites = Vec::with_capacity(analysis.window.len());
+            record.sites_outside_window = Vec::with_capacity(sites.len() - analysis.window.len());
             for site in &mut sites {
                 let report = analysis.report_taking_terms(site);
                 if site.in_window {
@@ -134,12 +138,14 @@ pub fn estimate_with(
             // Coupling can push a constant past what water allows (the C-H of a malonate
             // dianion); those are not observable and are left out.
             let (low, high) = model::AQUEOUS_WINDOW;
-            record.macro_pka = at_ph
-                .macro_pka
-                .iter()
-                .copied()
-                .filter(|p| (low..=high).contains(p))
-                .collect();
+            record.macro_pka = Vec::with_capacity(at_ph.macro_pka.len());
+            record.macro_pka.extend(
+                at_ph
+                    .macro_pka
+                    .iter()
+                    .copied()
+                    .filter(|p| (low..=high).contains(p)),
+            );
             record.charge_at_ph = Some(at_ph.charge_at_ph);
             record.isoelectric_point = at_ph.isoelectric_point;
             analysis.sites = sites;
@@ -342,7 +348,11 @@ impl Analysis {
     }
 
     pub(crate) fn warnings(&self) -> Vec<String> {
-        let mut out: Vec<String> = Vec::new();
+        // Sized to what is known here (nothing taken when there is nothing to say); a
+        // caution or note added after these grows it, which is rare.
+        let site_warnings: usize = self.sites.iter().map(|s| s.warnings.len()).sum();
+        let mut out: Vec<String> =
+            Vec::with_capacity(self.others.len() + self.changes.len() + site_warnings);
         for other in &self.others {
             out.push(format!(
                 "set aside component {other} (counter-ion or solvent)"
