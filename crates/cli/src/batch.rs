@@ -43,6 +43,15 @@ pub trait Job: Sync {
     fn run(&self, item: &Item) -> Self::Out;
     /// The result for a record whose processing panicked (a bug, not bad input).
     fn internal_error(&self, item: &Item, message: String) -> Self::Out;
+    /// Processes a run of consecutive records, one result each in order onto `outs`. By
+    /// default each record by itself, a panic becoming [`Job::internal_error`]; a job may
+    /// instead put what its records share (one output text) in one of them.
+    fn run_piece(&self, items: &[Item], outs: &mut Vec<Self::Out>)
+    where
+        Self: Sized,
+    {
+        outs.extend(items.iter().map(|item| run_one(self, item)));
+    }
 }
 
 /// A record's result.
@@ -53,8 +62,9 @@ pub trait Outcome {
 
 /// Writes results in one output format.
 pub trait Sink<T> {
-    /// Writes one record.
-    fn write(&mut self, item: &Item, out: &T) -> io::Result<()>;
+    /// Writes one record. The result is handed over, so a writer may keep it until
+    /// [`Sink::flush`] and write several at once.
+    fn write(&mut self, item: &Item, out: T) -> io::Result<()>;
     /// Writes what comes after the last record, and flushes.
     fn finish(&mut self) -> io::Result<()>;
     /// Flushes at the end of a chunk so a reader downstream sees records as they come.
@@ -150,10 +160,14 @@ pub fn run<J: Job>(
                 }
                 let done_tx = done_tx.clone();
                 tasks.spawn(move |_| {
-                    let outs: Vec<J::Out> = items
-                        .par_iter()
-                        .with_max_len(PIECE)
-                        .map(|item| run_one(job, item))
+                    let outs: Vec<Vec<J::Out>> = items
+                        .par_chunks(PIECE)
+                        .with_max_len(1)
+                        .map(|piece| {
+                            let mut outs = Vec::with_capacity(piece.len());
+                            job.run_piece(piece, &mut outs);
+                            outs
+                        })
                         .collect();
                     // A closed channel means the writer has stopped; the results are
                     // not wanted any more.
@@ -181,11 +195,12 @@ pub fn run<J: Job>(
     Ok(summary)
 }
 
-/// A finished chunk: its place in the input, its records and their results.
+/// A finished chunk: its place in the input, its records and their results (piece by
+/// piece, see [`PIECE`]).
 struct Done<T> {
     seq: u64,
     items: Vec<Item>,
-    outs: Vec<T>,
+    outs: Vec<Vec<T>>,
 }
 
 fn write_all_chunks<T>(
@@ -205,12 +220,13 @@ where
     for done in chunks {
         waiting.insert(done.seq, done);
         while let Some(Done { items, outs, .. }) = waiting.remove(&next) {
-            for (item, out) in items.iter().zip(&outs) {
+            for (item, out) in items.iter().zip(outs.into_iter().flatten()) {
+                let failed = out.failed();
                 if let Err(e) = sink.write(item, out) {
                     return output_error(e, summary);
                 }
                 summary.records += 1;
-                summary.failed += out.failed() as u64;
+                summary.failed += failed as u64;
             }
             if let Err(e) = sink.flush() {
                 return output_error(e, summary);
@@ -234,20 +250,24 @@ fn output_error(e: io::Error, summary: &mut Summary) -> anyhow::Result<()> {
     }
 }
 
-fn run_one<J: Job>(job: &J, item: &Item) -> J::Out {
+/// Processes one record; a panic becomes [`Job::internal_error`].
+pub fn run_one<J: Job>(job: &J, item: &Item) -> J::Out {
     // A panic is a bug in the library, never the input's fault; one such record must not
     // take down a batch of a million, so it becomes an error record.
     match catch_unwind(AssertUnwindSafe(|| job.run(item))) {
         Ok(out) => out,
-        Err(payload) => {
-            let what = payload
-                .downcast_ref::<&str>()
-                .map(|s| s.to_string())
-                .or_else(|| payload.downcast_ref::<String>().cloned())
-                .unwrap_or_else(|| "unknown panic".to_string());
-            job.internal_error(item, format!("internal error (please report it): {what}"))
-        }
+        Err(payload) => job.internal_error(item, internal_error(&*payload)),
     }
+}
+
+/// The message of an error record for a panic (a bug in the library, not bad input).
+pub fn internal_error(payload: &(dyn std::any::Any + Send)) -> String {
+    let what = payload
+        .downcast_ref::<&str>()
+        .map(|s| s.to_string())
+        .or_else(|| payload.downcast_ref::<String>().cloned())
+        .unwrap_or_else(|| "unknown panic".to_string());
+    format!("internal error (please report it): {what}")
 }
 
 /// A buffered writer over standard output.
@@ -345,7 +365,7 @@ mod tests {
     }
 
     impl Sink<(u64, bool)> for Collect {
-        fn write(&mut self, _item: &Item, out: &(u64, bool)) -> io::Result<()> {
+        fn write(&mut self, _item: &Item, out: (u64, bool)) -> io::Result<()> {
             if Some(self.got.len()) == self.close_after {
                 return Err(io::ErrorKind::BrokenPipe.into());
             }

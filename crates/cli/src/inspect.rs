@@ -79,8 +79,8 @@ struct Jsonl<W> {
 }
 
 impl<W: Write + Send> Sink<InspectRecord> for Jsonl<W> {
-    fn write(&mut self, _item: &Item, record: &InspectRecord) -> io::Result<()> {
-        serde_json::to_writer(&mut self.out, record)?;
+    fn write(&mut self, _item: &Item, record: InspectRecord) -> io::Result<()> {
+        serde_json::to_writer(&mut self.out, &record)?;
         self.out.write_all(b"\n")
     }
     fn flush(&mut self) -> io::Result<()> {
@@ -97,7 +97,8 @@ struct Table<W> {
 }
 
 impl<W: Write + Send> Sink<InspectRecord> for Table<W> {
-    fn write(&mut self, item: &Item, record: &InspectRecord) -> io::Result<()> {
+    fn write(&mut self, item: &Item, record: InspectRecord) -> io::Result<()> {
+        let record = &record;
         if !self.first {
             self.out.write_all(b"\n")?;
         }

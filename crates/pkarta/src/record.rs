@@ -123,6 +123,10 @@ pub fn estimate_with(
             record.warnings.extend(cautions(&analysis.sites));
             // Each site's texts and terms move into its report: nothing reads them after this.
             let mut sites = std::mem::take(&mut analysis.sites);
+            // Sized up front, as the other lists of the record: growing them one push at a
+            // time cost more than filling them.
+            record.sites = Vec::with_capacity(analysis.window.len());
+            record.sites_outside_window = Vec::with_capacity(sites.len() - analysis.window.len());
             for site in &mut sites {
                 let report = analysis.report_taking_terms(site);
                 if site.in_window {
@@ -134,12 +138,14 @@ pub fn estimate_with(
             // Coupling can push a constant past what water allows (the C-H of a malonate
             // dianion); those are not observable and are left out.
             let (low, high) = model::AQUEOUS_WINDOW;
-            record.macro_pka = at_ph
-                .macro_pka
-                .iter()
-                .copied()
-                .filter(|p| (low..=high).contains(p))
-                .collect();
+            record.macro_pka = Vec::with_capacity(at_ph.macro_pka.len());
+            record.macro_pka.extend(
+                at_ph
+                    .macro_pka
+                    .iter()
+                    .copied()
+                    .filter(|p| (low..=high).contains(p)),
+            );
             record.charge_at_ph = Some(at_ph.charge_at_ph);
             record.isoelectric_point = at_ph.isoelectric_point;
             analysis.sites = sites;
@@ -194,6 +200,23 @@ fn cautions(sites: &[model::Site]) -> Vec<String> {
         }
     }
     out
+}
+
+/// Appends `n` in decimal, as `Display` writes it.
+fn push_decimal(out: &mut String, mut n: usize) {
+    let mut digits = [0u8; 20];
+    let mut i = digits.len();
+    loop {
+        i -= 1;
+        digits[i] = b'0' + (n % 10) as u8;
+        n /= 10;
+        if n == 0 {
+            break;
+        }
+    }
+    for &d in &digits[i..] {
+        out.push(char::from(d));
+    }
 }
 
 /// One molecule carried through reading, standardizing, site finding and scoring.
@@ -325,7 +348,11 @@ impl Analysis {
     }
 
     pub(crate) fn warnings(&self) -> Vec<String> {
-        let mut out: Vec<String> = Vec::new();
+        // Sized to what is known here (nothing taken when there is nothing to say); a
+        // caution or note added after these grows it, which is rare.
+        let site_warnings: usize = self.sites.iter().map(|s| s.warnings.len()).sum();
+        let mut out: Vec<String> =
+            Vec::with_capacity(self.others.len() + self.changes.len() + site_warnings);
         for other in &self.others {
             out.push(format!(
                 "set aside component {other} (counter-ion or solvent)"
@@ -334,7 +361,14 @@ impl Analysis {
         out.extend(self.changes.iter().cloned());
         for site in &self.sites {
             for w in &site.warnings {
-                out.push(format!("site at atom {}: {w}", self.origin[site.atom]));
+                // Joined by hand: `format!` costs several times as much, once for each of
+                // about half the molecules.
+                let mut text = String::with_capacity(36 + w.len());
+                text.push_str("site at atom ");
+                push_decimal(&mut text, self.origin[site.atom]);
+                text.push_str(": ");
+                text.push_str(w);
+                out.push(text);
             }
         }
         out
@@ -597,4 +631,18 @@ pub fn plot_svg(curve: &Curve) -> String {
         ..Default::default()
     };
     speciation::svg_plot(&curve.inner, &labels, &options)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn decimals_are_written_as_display_writes_them() {
+        for n in [0, 7, 10, 99, 100, 12345, usize::MAX] {
+            let mut s = String::from("x");
+            push_decimal(&mut s, n);
+            assert_eq!(s, format!("x{n}"));
+        }
+    }
 }
