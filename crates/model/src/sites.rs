@@ -133,40 +133,8 @@ thread_local! {
     static CANDIDATES: RefCell<CandidateCache> = RefCell::new(CandidateCache::default());
 }
 
-/// A quick hash for small keys (multiply and rotate per word, after the one in rustc's
-/// own hash maps; common practice): the standard one is made for keys an attacker
-/// chooses, and a cache lookup per atom is no place for it.
-#[derive(Clone, Copy, Default)]
-pub(crate) struct BuildFx;
-
-#[derive(Default)]
-pub(crate) struct Fx(u64);
-
-impl std::hash::BuildHasher for BuildFx {
-    type Hasher = Fx;
-    fn build_hasher(&self) -> Fx {
-        Fx(0)
-    }
-}
-
-impl std::hash::Hasher for Fx {
-    fn finish(&self) -> u64 {
-        self.0
-    }
-    fn write(&mut self, bytes: &[u8]) {
-        for chunk in bytes.chunks(8) {
-            let mut word = [0u8; 8];
-            word[..chunk.len()].copy_from_slice(chunk);
-            self.write_u64(u64::from_le_bytes(word));
-        }
-    }
-    fn write_u8(&mut self, n: u8) {
-        self.write_u64(n as u64);
-    }
-    fn write_u64(&mut self, n: u64) {
-        self.0 = (self.0.rotate_left(5) ^ n).wrapping_mul(0x51_7c_c1_b7_27_22_0a_95);
-    }
-}
+/// The hash of the caches keyed by atom key (see [`pattern::QuickHasher`]).
+pub(crate) type BuildFx = pattern::BuildQuickHasher;
 
 /// Rounds of neighbour refinement tried on the site atoms before the full symmetry
 /// classes are asked for.

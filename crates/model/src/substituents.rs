@@ -47,7 +47,7 @@ pub fn entry_by_id<'a>(library: &'a Library, id: &str) -> Option<&'a Substituent
 
 /// Entry index by id in the built-in library, the first entry holding each id.
 static BUILTIN_IDS: Lazy<HashMap<&'static str, usize, BuildFx>> = Lazy::new(|| {
-    let mut ids = HashMap::with_hasher(BuildFx);
+    let mut ids = HashMap::with_hasher(BuildFx::default());
     for (i, e) in Library::builtin().substituents.iter().enumerate() {
         ids.entry(e.id.as_str()).or_insert(i);
     }

@@ -297,15 +297,19 @@ fn environment_texts(text: &str) -> Vec<&str> {
 
 /// Ids by key, handed out in the order keys are first met (so the hash function decides
 /// nothing but speed).
-type IdMap<K> = HashMap<K, u32, std::hash::BuildHasherDefault<IdHasher>>;
+type IdMap<K> = HashMap<K, u32, BuildQuickHasher>;
 
-/// A quick hash for the id maps (multiply and rotate per word, after the one in rustc's own
-/// hash maps; common practice): their keys come from pattern text compiled at start-up,
-/// where the standard hash, made for keys an attacker chooses, was a good part of the cost.
+/// Builds [`QuickHasher`]s, for hash maps keyed by the library's own texts and atom keys.
+pub type BuildQuickHasher = std::hash::BuildHasherDefault<QuickHasher>;
+
+/// A quick hash for keys the program makes itself (multiply and rotate per word, after the
+/// one in rustc's own hash maps; common practice): the id maps here, keyed by pattern text
+/// compiled at start-up, and the caches per atom key of the site and substituent indexes.
+/// The standard hash, made for keys an attacker chooses, was a good part of their cost.
 #[derive(Default)]
-struct IdHasher(u64);
+pub struct QuickHasher(u64);
 
-impl std::hash::Hasher for IdHasher {
+impl std::hash::Hasher for QuickHasher {
     fn finish(&self) -> u64 {
         self.0
     }
