@@ -224,8 +224,29 @@ impl AtomFeatures {
             .iter()
             .filter(|nb| atoms[nb.atom].element == 1)
             .count();
+        AtomFeatures::from_parts(
+            a,
+            element_bit(a.element, a.aromatic),
+            degree,
+            explicit_h,
+            signature,
+            far,
+        )
+    }
+
+    /// The values of atom `a` from what was worked out about it: its element bit, its
+    /// degree, its explicit hydrogen neighbours, its own and its neighbours' signatures.
+    #[inline]
+    fn from_parts(
+        a: &mol::Atom,
+        element_bit: u8,
+        degree: usize,
+        explicit_h: usize,
+        signature: u64,
+        far: u64,
+    ) -> AtomFeatures {
         AtomFeatures {
-            element_bit: element_bit(a.element, a.aromatic),
+            element_bit,
             charge_bit: charge_bit(a.charge),
             total_h: count(a.hydrogens as usize + explicit_h),
             implicit_h: count(a.hydrogens as usize),
@@ -383,19 +404,7 @@ impl FeatureTable {
             .zip(explicit_h.iter());
         self.atoms.extend(per_atom.enumerate().map(
             |(i, (((a, &bit), (&signature, &far)), &explicit_h))| {
-                let degree = molecule.degree(i);
-                AtomFeatures {
-                    element_bit: bit,
-                    charge_bit: charge_bit(a.charge),
-                    total_h: count(a.hydrogens as usize + explicit_h),
-                    implicit_h: count(a.hydrogens as usize),
-                    degree: count(degree),
-                    connectivity: count(degree + a.hydrogens as usize),
-                    ring_count: count(a.ring_count as usize),
-                    smallest_ring: count(a.smallest_ring as usize),
-                    neighbors: signature,
-                    far,
-                }
+                AtomFeatures::from_parts(a, bit, molecule.degree(i), explicit_h, signature, far)
             },
         ));
     }
