@@ -342,7 +342,7 @@ fn float(out: &mut Vec<u8>, x: f64) {
 }
 
 /// An integer in decimal, as `itoa` (and so serde_json) writes it.
-fn unsigned(out: &mut Vec<u8>, mut n: u64) {
+fn unsigned(out: &mut Vec<u8>, n: u64) {
     // Atom and group numbers are mostly one or two digits.
     if n < 10 {
         out.push(b'0' + n as u8);
@@ -352,17 +352,7 @@ fn unsigned(out: &mut Vec<u8>, mut n: u64) {
         out.extend_from_slice(&[b'0' + (n / 10) as u8, b'0' + (n % 10) as u8]);
         return;
     }
-    let mut buf = [0u8; 20];
-    let mut i = buf.len();
-    loop {
-        i -= 1;
-        buf[i] = b'0' + (n % 10) as u8;
-        n /= 10;
-        if n == 0 {
-            break;
-        }
-    }
-    out.extend_from_slice(&buf[i..]);
+    out.extend_from_slice(pkarta::mol::decimal(n, &mut [0; 20]).as_bytes());
 }
 
 /// A JSON string: copied whole between quotes when no byte of it needs escaping, else

@@ -298,18 +298,7 @@ fn concat(parts: &[&str]) -> String {
 
 /// `n` in decimal, as `Display` writes it.
 fn decimal(n: usize, buf: &mut [u8; 20]) -> &str {
-    let mut i = buf.len();
-    let mut n = n;
-    loop {
-        i -= 1;
-        buf[i] = b'0' + (n % 10) as u8;
-        n /= 10;
-        if n == 0 {
-            break;
-        }
-    }
-    // Only ASCII digits were written.
-    std::str::from_utf8(&buf[i..]).unwrap_or_default()
+    mol::decimal(n as u64, buf)
 }
 
 /// `{number}-{name}`: a group named by its ring position.

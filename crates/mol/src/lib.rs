@@ -116,6 +116,23 @@ pub fn standardize_without_shortcut(molecule: &Molecule) -> Result<Standardized,
     standardize::standardize_full(molecule)
 }
 
+/// `n` in decimal, as `Display` writes it, in `buf` (no allocation): the writer's ring
+/// numbers, charges and isotopes, and the crates above it for the numbers in their texts.
+pub fn decimal(n: u64, buf: &mut [u8; 20]) -> &str {
+    let mut i = buf.len();
+    let mut n = n;
+    loop {
+        i -= 1;
+        buf[i] = b'0' + (n % 10) as u8;
+        n /= 10;
+        if n == 0 {
+            break;
+        }
+    }
+    // Only ASCII digits were written.
+    std::str::from_utf8(&buf[i..]).unwrap_or_default()
+}
+
 /// Writes a molecule as SMILES (aromatic atoms lower case, charges and hydrogens in brackets
 /// where needed). Reading the output back gives the same molecule.
 pub fn write_smiles(molecule: &Molecule) -> String {

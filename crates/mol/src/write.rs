@@ -313,20 +313,7 @@ fn organic_form_with(v: &View, i: usize, lower: bool, (sum, has_double): (u32, b
 
 /// Appends a number in decimal without a temporary string.
 fn push_number(out: &mut String, x: u32) {
-    let mut digits = [0u8; 10];
-    let mut k = digits.len();
-    let mut x = x;
-    loop {
-        k -= 1;
-        digits[k] = b'0' + (x % 10) as u8;
-        x /= 10;
-        if x == 0 {
-            break;
-        }
-    }
-    for &d in &digits[k..] {
-        out.push(d as char);
-    }
+    out.push_str(crate::decimal(u64::from(x), &mut [0; 20]));
 }
 
 #[inline]

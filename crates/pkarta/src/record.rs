@@ -203,20 +203,8 @@ fn cautions(sites: &[model::Site]) -> Vec<String> {
 }
 
 /// Appends `n` in decimal, as `Display` writes it.
-fn push_decimal(out: &mut String, mut n: usize) {
-    let mut digits = [0u8; 20];
-    let mut i = digits.len();
-    loop {
-        i -= 1;
-        digits[i] = b'0' + (n % 10) as u8;
-        n /= 10;
-        if n == 0 {
-            break;
-        }
-    }
-    for &d in &digits[i..] {
-        out.push(char::from(d));
-    }
+fn push_decimal(out: &mut String, n: usize) {
+    out.push_str(mol::decimal(n as u64, &mut [0; 20]));
 }
 
 /// One molecule carried through reading, standardizing, site finding and scoring.
