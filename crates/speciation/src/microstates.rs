@@ -262,13 +262,7 @@ impl Microstates {
         let mut levels: Vec<Vec<(usize, u32)>> = Vec::with_capacity(self.groups.len());
         let mut current: Vec<(f64, usize)> = vec![(0.0, 0)];
         for (t, &lz) in self.tables.iter().zip(&log_z) {
-            let mut own: Vec<(f64, u32)> = t
-                .candidates
-                .iter()
-                .map(|c| (c.log_w + c.lost as f64 * ph - lz, c.mask))
-                .collect();
-            own.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)));
-            own.truncate(keep);
+            let own = ranked_candidates(t, ph, lz, keep);
             let mut next: Vec<(f64, usize, u32)> = Vec::with_capacity(current.len() * own.len());
             for &(f, idx) in &current {
                 for &(g, mask) in &own {
@@ -279,11 +273,7 @@ impl Microstates {
             // the groups seen so far, and a fraction only shrinks as groups are multiplied
             // in, so pruning on rank and on `cut` here loses none of the states returned.
             next.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)).then(a.2.cmp(&b.2)));
-            let mut kept = 0;
-            while kept < next.len() && kept < keep && (kept == 0 || next[kept].0 >= cut) {
-                kept += 1;
-            }
-            next.truncate(kept);
+            next.truncate(kept_count(next.iter().map(|x| x.0), keep, cut));
             current = next
                 .iter()
                 .enumerate()
@@ -314,24 +304,14 @@ impl Microstates {
     fn one_group_top_states(&self, ph: f64, keep: usize, cut: f64) -> Vec<(f64, u32)> {
         let t = &self.tables[0];
         let lz = logsum::sum(t.log_g.iter().enumerate().map(|(p, &g)| g + p as f64 * ph));
-        let mut own: Vec<(f64, u32)> = t
-            .candidates
-            .iter()
-            .map(|c| (c.log_w + c.lost as f64 * ph - lz, c.mask))
-            .collect();
-        own.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)));
-        own.truncate(keep);
+        let mut own = ranked_candidates(t, ph, lz, keep);
         // As `top_states` adds each to the empty state's 0 (which makes -0 into +0) and
         // sorts again.
         for x in &mut own {
             x.0 += 0.0;
         }
         own.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)));
-        let mut kept = 0;
-        while kept < own.len() && kept < keep && (kept == 0 || own[kept].0 >= cut) {
-            kept += 1;
-        }
-        own.truncate(kept);
+        own.truncate(kept_count(own.iter().map(|x| x.0), keep, cut));
         own
     }
 
@@ -421,6 +401,30 @@ impl Microstates {
             method: self.method.clone(),
         })
     }
+}
+
+/// A group's stored candidate microstates at `ph` as (log10 fraction within the group,
+/// mask), `lz` being the group's log10 partition function there: the `keep` most abundant,
+/// most abundant first (equal ones by mask).
+fn ranked_candidates(t: &Table, ph: f64, lz: f64, keep: usize) -> Vec<(f64, u32)> {
+    let mut own: Vec<(f64, u32)> = t
+        .candidates
+        .iter()
+        .map(|c| (c.log_w + c.lost as f64 * ph - lz, c.mask))
+        .collect();
+    own.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)));
+    own.truncate(keep);
+    own
+}
+
+/// How many of a list of log10 fractions, most abundant first, are kept: at most `keep`,
+/// at least the first, and beyond it only those at `cut` or above.
+fn kept_count(fractions: impl Iterator<Item = f64>, keep: usize, cut: f64) -> usize {
+    fractions
+        .take(keep)
+        .enumerate()
+        .take_while(|&(i, f)| i == 0 || f >= cut)
+        .count()
 }
 
 /// The mean charge over [`PI_RANGE`] from the binding polynomial in `y = 10^(pH - 7)`,
