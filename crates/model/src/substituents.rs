@@ -6,7 +6,6 @@
 //! nothing matches it falls back to the nearest type by the first atom alone and says so.
 use std::cell::RefCell;
 use std::collections::HashMap;
-use std::ops::Range;
 use std::rc::Rc;
 
 use once_cell::sync::Lazy;
@@ -209,207 +208,12 @@ fn best_match<'a>(
     })
 }
 
-/// What one atom's recognitions share: its candidate entries, and how far from it (in
-/// bonds) any of them can reach.
-struct AtomCandidates {
-    atom: usize,
-    candidates: Rc<[usize]>,
-    reach: usize,
-}
-
-/// One answer kept: the atom, the fence it was asked with (a range of
-/// [`Scratch::fences`]), the part of that fence a match could touch (a range of
-/// [`Scratch::nears`], worked out when the atom is asked about again), and what was
-/// recognized (entry index, a range of [`Scratch::matched`], approximate).
-struct Kept {
-    atom: usize,
-    fence: Range<usize>,
-    near: Option<Range<usize>>,
-    recognized: Option<(usize, Range<usize>, bool)>,
-}
-
-/// What a [`Recognizer`] keeps for one molecule, in buffers handed from one recognizer to
-/// the next on a thread (the scorer makes one per molecule).
-#[derive(Default)]
-struct Scratch {
-    atoms: Vec<AtomCandidates>,
-    kept: Vec<Kept>,
-    /// The fences of the kept answers, one after another.
-    fences: Vec<usize>,
-    /// The near parts of those fences, sorted, one after another.
-    nears: Vec<usize>,
-    /// The atoms of the kept answers, one after another.
-    matched: Vec<usize>,
-    /// The near part of the fence asked with, while it is compared.
-    near: Vec<usize>,
-    walk: Walk,
-}
-
-impl Scratch {
-    fn clear(&mut self) {
-        self.atoms.clear();
-        self.kept.clear();
-        self.fences.clear();
-        self.nears.clear();
-        self.matched.clear();
-        self.near.clear();
-    }
-
-    /// Keeps `recognized` (an answer from `library`) for `atom`.
-    fn keep(
-        &mut self,
-        library: &Library,
-        atom: usize,
-        fence: Range<usize>,
-        near: Option<Range<usize>>,
-        recognized: &Option<Recognized<'_>>,
-    ) {
-        let recognized = match recognized {
-            Some(r) => {
-                // An entry not found in its library cannot be kept: the atom is then worked
-                // out again next time.
-                let Some(entry) = entry_index(library, r.entry) else {
-                    return;
-                };
-                let at = self.matched.len();
-                self.matched.extend_from_slice(&r.atoms);
-                Some((entry, at..self.matched.len(), r.approximate))
-            }
-            None => None,
-        };
-        self.kept.push(Kept {
-            atom,
-            fence,
-            near,
-            recognized,
-        });
-    }
-
-    /// The kept answer `i`, as [`Recognized`] of `library`.
-    fn answer<'a>(&self, library: &'a Library, i: usize) -> Option<Recognized<'a>> {
-        let (entry, atoms, approximate) = self.kept[i].recognized.clone()?;
-        Some(Recognized {
-            entry: &library.substituents[entry],
-            atoms: self.matched[atoms].to_vec(),
-            approximate,
-        })
-    }
-}
-
-/// Index of `entry` in `library`'s list.
-fn entry_index(library: &Library, entry: &SubstituentEntry) -> Option<usize> {
-    let list = &library.substituents;
-    let offset = (entry as *const SubstituentEntry as usize).checked_sub(list.as_ptr() as usize)?;
-    let i = offset / std::mem::size_of::<SubstituentEntry>().max(1);
-    (i < list.len() && std::ptr::eq(&list[i], entry)).then_some(i)
-}
-
-thread_local! {
-    /// Buffers handed back by the last recognizer dropped on this thread.
-    static SPARE_SCRATCH: RefCell<Option<Box<Scratch>>> = const { RefCell::new(None) };
-}
-
-/// Recognition of many groups on one molecule (the scorer's): [`recognize_with`]'s
-/// answers, each worked out once per atom and the part of the fence a match there could
-/// touch.
-///
-/// A pattern search placed on `atom` only ever asks about atoms next to atoms it has
-/// placed, and it places pattern atoms only along bonds from the anchor outside the
-/// fence: a pattern of `k` atoms (patterns are connected) asks only about atoms reached
-/// from `atom` in at most `k - 1` steps through atoms outside the fence. The fence atoms
-/// among those are all of the fence that can change an answer; nearest types look at the
-/// first atom's neighbours alone. So an atom asked about again with the same of them (two
-/// sites scoring the same group, a chain walked from two sites) gets the answer kept.
-/// Those atoms are looked for only when an atom is asked about again: most are asked
-/// about once.
+/// Recognition of many groups on one molecule (the scorer's): [`recognize_with`] with one
+/// matcher for them all, made on the first recognition (many molecules score no group).
 pub struct Recognizer<'a, 'm> {
     library: &'a Library,
     molecule: &'m Molecule,
-    /// Made on the first recognition: many molecules score no group.
     matcher: Option<pattern::Matcher<'m>>,
-    index: IndexRef,
-    /// Taken from the thread's spare on the first recognition.
-    scratch: Option<Box<Scratch>>,
-}
-
-impl Drop for Recognizer<'_, '_> {
-    fn drop(&mut self) {
-        let Some(scratch) = self.scratch.take() else {
-            return;
-        };
-        // During thread teardown the slot may be gone; the buffers are then just freed.
-        let _ = SPARE_SCRATCH.try_with(|spare| *spare.borrow_mut() = Some(scratch));
-    }
-}
-
-/// Buffers of the walk that finds the near part of a fence, kept from call to call.
-#[derive(Default)]
-struct Walk {
-    /// Per molecule atom: the walk that last fenced it.
-    fenced: Vec<u32>,
-    /// Per molecule atom: the walk that last reached it (or noted it as near).
-    reached: Vec<u32>,
-    /// The current walk.
-    stamp: u32,
-    /// Breadth-first queue: (atom, bonds from the first atom).
-    queue: Vec<(usize, usize)>,
-}
-
-impl Walk {
-    /// Appends to `near`, sorted, the atoms of `fence` (and `from`) reached from `atom` in
-    /// at most `reach` steps through atoms outside it.
-    fn near(
-        &mut self,
-        molecule: &Molecule,
-        atom: usize,
-        reach: usize,
-        fence: &[usize],
-        from: Option<usize>,
-        near: &mut Vec<usize>,
-    ) {
-        let n = molecule.atoms().len();
-        if self.fenced.len() < n || self.stamp == u32::MAX {
-            // Stamps of earlier molecules are all below the next one: no clearing needed
-            // until they run out.
-            self.fenced.clear();
-            self.fenced.resize(n, 0);
-            self.reached.clear();
-            self.reached.resize(n, 0);
-            self.stamp = 0;
-        }
-        self.stamp += 1;
-        let stamp = self.stamp;
-        for &x in fence.iter().chain(from.as_ref()) {
-            if let Some(f) = self.fenced.get_mut(x) {
-                *f = stamp;
-            }
-        }
-        let start = near.len();
-        let queue = &mut self.queue;
-        queue.clear();
-        queue.push((atom, 0));
-        self.reached[atom] = stamp;
-        let mut head = 0;
-        while let Some(&(a, d)) = queue.get(head) {
-            head += 1;
-            if d >= reach {
-                continue;
-            }
-            for nb in molecule.neighbors(a) {
-                let b = nb.atom;
-                if self.reached[b] == stamp {
-                    continue;
-                }
-                self.reached[b] = stamp;
-                if self.fenced[b] == stamp {
-                    near.push(b);
-                } else {
-                    queue.push((b, d + 1));
-                }
-            }
-        }
-        near[start..].sort_unstable();
-    }
 }
 
 impl<'a, 'm> Recognizer<'a, 'm> {
@@ -419,8 +223,6 @@ impl<'a, 'm> Recognizer<'a, 'm> {
             library,
             molecule,
             matcher: None,
-            index: substituent_index(library),
-            scratch: None,
         }
     }
 
@@ -437,101 +239,10 @@ impl<'a, 'm> Recognizer<'a, 'm> {
         avoid: &[usize],
     ) -> Option<Recognized<'a>> {
         let molecule = self.molecule;
-        let n = molecule.atoms().len();
-        // The fence is `avoid` with `from` when `from` is an atom.
-        if atom >= n || atom == from || avoid.contains(&atom) {
-            return None;
-        }
-        let library = self.library;
         let matcher = self
             .matcher
             .get_or_insert_with(|| pattern::Matcher::new(molecule));
-        let scratch = self.scratch.get_or_insert_with(|| {
-            let mut scratch = SPARE_SCRATCH
-                .try_with(|spare| spare.borrow_mut().take())
-                .ok()
-                .flatten()
-                .unwrap_or_default();
-            scratch.clear();
-            scratch
-        });
-        let (candidates, reach) = match scratch.atoms.iter().find(|c| c.atom == atom) {
-            Some(c) => (Rc::clone(&c.candidates), c.reach),
-            None => {
-                let key = matcher.atom_key(atom)?;
-                let candidates = candidates(&self.index, molecule, atom, key);
-                // Steps a match can take from the atom; at least one, for the nearest type.
-                let longest = candidates
-                    .iter()
-                    .filter_map(|&i| self.index.compiled[i])
-                    .map(|p| p.len())
-                    .max()
-                    .unwrap_or(0);
-                let reach = longest.max(2) - 1;
-                scratch.atoms.push(AtomCandidates {
-                    atom,
-                    candidates: Rc::clone(&candidates),
-                    reach,
-                });
-                (candidates, reach)
-            }
-        };
-        let from = (from < n && !avoid.contains(&from)).then_some(from);
-        if scratch.kept.iter().any(|k| k.atom == atom) {
-            // Asked about before: compare the near parts of the fences.
-            let mut near = std::mem::take(&mut scratch.near);
-            near.clear();
-            scratch
-                .walk
-                .near(molecule, atom, reach, avoid, from, &mut near);
-            for i in 0..scratch.kept.len() {
-                if scratch.kept[i].atom != atom {
-                    continue;
-                }
-                let kept_near = match scratch.kept[i].near.clone() {
-                    Some(r) => r,
-                    None => {
-                        let at = scratch.nears.len();
-                        let fence = scratch.kept[i].fence.clone();
-                        let Scratch {
-                            walk,
-                            fences,
-                            nears,
-                            ..
-                        } = &mut **scratch;
-                        walk.near(molecule, atom, reach, &fences[fence], None, nears);
-                        let r = at..scratch.nears.len();
-                        scratch.kept[i].near = Some(r.clone());
-                        r
-                    }
-                };
-                if scratch.nears[kept_near] == near[..] {
-                    scratch.near = near;
-                    return scratch.answer(library, i);
-                }
-            }
-            let recognized = best_match(library, &self.index, matcher, &candidates, atom, &near);
-            let at = scratch.nears.len();
-            scratch.nears.extend_from_slice(&near);
-            let kept_near = at..scratch.nears.len();
-            scratch.keep(library, atom, 0..0, Some(kept_near), &recognized);
-            scratch.near = near;
-            return recognized;
-        }
-        let start = scratch.fences.len();
-        scratch.fences.extend_from_slice(avoid);
-        scratch.fences.extend(from);
-        let fence = start..scratch.fences.len();
-        let recognized = best_match(
-            library,
-            &self.index,
-            matcher,
-            &candidates,
-            atom,
-            &scratch.fences[fence.clone()],
-        );
-        scratch.keep(library, atom, fence, None, &recognized);
-        recognized
+        recognize_with(self.library, matcher, atom, from, avoid)
     }
 }
 
@@ -886,12 +597,11 @@ mod tests {
         let copy = builtin.clone();
         for library in [builtin, &copy] {
             let mut compared = 0;
-            let mut kept = 0;
             for m in molecules() {
                 let n = m.atoms().len();
                 let mut recognizer = Recognizer::new(library, &m);
                 // Each atom from each side, under fences near and far, fenced itself, out of
-                // range; asked twice, so that kept answers are compared too.
+                // range; asked twice, with the one matcher the recognizer keeps.
                 for round in 0..2 {
                     for atom in 0..n + 1 {
                         let sides: Vec<usize> = if atom < n {
@@ -908,10 +618,7 @@ mod tests {
                                 vec![atom, n + 5],
                             ] {
                                 let alone = recognize(library, &m, atom, from, &avoid);
-                                let before = recognizer.scratch.as_ref().map(|s| s.kept.len());
                                 let shared = recognizer.recognize(atom, from, &avoid);
-                                let after = recognizer.scratch.as_ref().map(|s| s.kept.len());
-                                kept += usize::from(after == before && shared.is_some());
                                 assert_eq!(
                                     summary(shared),
                                     summary(alone),
@@ -924,7 +631,6 @@ mod tests {
                 }
             }
             assert!(compared > 100, "only {compared} cases compared");
-            assert!(kept > 10, "only {kept} kept answers used");
         }
     }
 
