@@ -118,6 +118,12 @@ pub fn standardize_without_shortcut(molecule: &Molecule) -> Result<Standardized,
 
 /// `n` in decimal, as `Display` writes it, in `buf` (no allocation): the writer's ring
 /// numbers, charges and isotopes, and the crates above it for the numbers in their texts.
+///
+/// ```
+/// for n in [0, 7, 10, 99, 100, 12345, u64::MAX] {
+///     assert_eq!(mol::decimal(n, &mut [0; 20]), n.to_string());
+/// }
+/// ```
 pub fn decimal(n: u64, buf: &mut [u8; 20]) -> &str {
     let mut i = buf.len();
     let mut n = n;

@@ -202,11 +202,6 @@ fn cautions(sites: &[model::Site]) -> Vec<String> {
     out
 }
 
-/// Appends `n` in decimal, as `Display` writes it.
-fn push_decimal(out: &mut String, n: usize) {
-    out.push_str(mol::decimal(n as u64, &mut [0; 20]));
-}
-
 /// One molecule carried through reading, standardizing, site finding and scoring.
 pub(crate) struct Analysis {
     pub(crate) parent: mol::Molecule,
@@ -353,7 +348,7 @@ impl Analysis {
                 // about half the molecules.
                 let mut text = String::with_capacity(36 + w.len());
                 text.push_str("site at atom ");
-                push_decimal(&mut text, self.origin[site.atom]);
+                text.push_str(mol::decimal(self.origin[site.atom] as u64, &mut [0; 20]));
                 text.push_str(": ");
                 text.push_str(w);
                 out.push(text);
@@ -619,18 +614,4 @@ pub fn plot_svg(curve: &Curve) -> String {
         ..Default::default()
     };
     speciation::svg_plot(&curve.inner, &labels, &options)
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn decimals_are_written_as_display_writes_them() {
-        for n in [0, 7, 10, 99, 100, 12345, usize::MAX] {
-            let mut s = String::from("x");
-            push_decimal(&mut s, n);
-            assert_eq!(s, format!("x{n}"));
-        }
-    }
 }
