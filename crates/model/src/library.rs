@@ -153,6 +153,11 @@ pub struct SiteClass {
     /// calibrated).
     #[serde(default)]
     pub n_alkyl_term: f64,
+    /// Coefficient on the summed sigma* of the site's own N-substituents, walked as the
+    /// amine classes walk theirs (aromatic scales with an exocyclic N site: an N-allyl or
+    /// N-(2-hydroxyethyl) aniline; set by calibration, 0 when not calibrated).
+    #[serde(default)]
+    pub n_substituent_term: f64,
     /// Statistical factor (number of equivalent protons or positions the class counts);
     /// contributes -log10(factor) for acids and +log10(factor) for bases when not 1.
     #[serde(default = "one")]
@@ -279,6 +284,9 @@ pub struct Calibration {
     /// Fitted correction per carbon on the site's N-alkyl alpha carbons.
     #[serde(default)]
     pub n_alkyl_term: Option<f64>,
+    /// Fitted coefficient on the summed sigma* of the site's N-substituents.
+    #[serde(default)]
+    pub n_substituent_term: Option<f64>,
     /// Number of measurements fitted.
     pub points: usize,
     /// Residual error of the fit (RMS, pKa units).

@@ -127,6 +127,10 @@ pub enum Counted {
     /// N-ethyl counts 1, N-isopropyl 2, N-tert-butyl 3. Bulkier N-alkyls twist the lone pair
     /// out of conjugation with the ring (N,N-dimethylaniline 5.07, N,N-diethylaniline 6.56).
     NAlkylBranch,
+    /// The polar effect of the site's own N-substituents on an aromatic scale (an N-allyl,
+    /// N-propargyl or N-(2-hydroxyethyl) aniline): the count is their summed sigma*, walked
+    /// from the site N as the amine classes walk theirs, for a per-class coefficient.
+    NSubstituent,
 }
 
 /// A scored site.
@@ -172,6 +176,7 @@ struct Constants<'l> {
     fused_substituent_term: f64,
     fused_conjugated_term: f64,
     n_alkyl_term: f64,
+    n_substituent_term: f64,
     uncertainty: f64,
 }
 
@@ -247,6 +252,7 @@ fn constants(library: &Library, class_index: usize) -> Constants<'_> {
                     .fused_conjugated_term
                     .unwrap_or(class.fused_conjugated_term),
                 n_alkyl_term: fit.n_alkyl_term.unwrap_or(class.n_alkyl_term),
+                n_substituent_term: fit.n_substituent_term.unwrap_or(class.n_substituent_term),
                 // The class's cross-validated error, as a standard deviation (for normal errors
                 // sd = MAE * sqrt(pi / 2)); never below the residual of the fit itself.
                 uncertainty: (fit.cv_mae * 1.2533).max(fit.rmse).max(0.1),
@@ -269,6 +275,7 @@ fn constants(library: &Library, class_index: usize) -> Constants<'_> {
             fused_substituent_term: class.fused_substituent_term,
             fused_conjugated_term: class.fused_conjugated_term,
             n_alkyl_term: class.n_alkyl_term,
+            n_substituent_term: class.n_substituent_term,
             uncertainty: class.uncertainty,
         },
     }
@@ -311,7 +318,7 @@ fn numbered(number: usize, name: &str) -> String {
 const NUMBERED_KEPT: usize = 12;
 
 /// Number of [`Counted`] kinds: slots per class for their sources.
-const COUNTED_KINDS: usize = 11;
+const COUNTED_KINDS: usize = 12;
 
 /// The slot of a [`Counted`] kind among a class's [`COUNTED_KINDS`]. Exhaustive on
 /// purpose: a new kind does not compile until it has a slot of its own (two kinds sharing
@@ -329,6 +336,7 @@ fn counted_slot(what: Counted) -> usize {
         Counted::FusedSubstituents => 8,
         Counted::FusedConjugated => 9,
         Counted::NAlkylBranch => 10,
+        Counted::NSubstituent => 11,
     }
 }
 
@@ -1072,6 +1080,9 @@ fn hammett(
             k.n_alkyl_term,
             "carbon on the site's N-alkyl alpha carbons",
         );
+        if molecule.atoms()[found.atom].element == 7 {
+            n_substituents(library, recognizer, found, k, account);
+        }
     }
     push_counted(
         account,
@@ -1332,6 +1343,61 @@ fn counted_label(what: Counted, count: usize, label: &str) -> Text {
         }
     }
     Cow::Owned(write())
+}
+
+/// The polar effect of an exocyclic N site's own substituents on an aromatic scale (the
+/// N-allyl of an N-allylaniline): what hangs on the N besides the ring is walked as the
+/// amine classes walk their N-substituents (the alpha carbon as the sigma* 0 reference,
+/// groups beyond it attenuated per bond), and each group found enters with its sigma* on
+/// the class's fitted coefficient ([`Counted::NSubstituent`]). The ring's own transmission
+/// (rho) does not apply to them: they sit on the protonated N itself.
+///
+/// # Reference
+///
+/// Taft sigma* for the N-substituents of anilinium ions as for ammonium ions: Perrin,
+/// Dempsey and Serjeant, *pKa Prediction for Organic Acids and Bases*, 1981 (from memory);
+/// the coefficient is fitted per class by the calibration program.
+fn n_substituents(
+    library: &Library,
+    recognizer: &mut Recognizer<'_, '_>,
+    found: &FoundSite,
+    k: &Constants,
+    account: &mut Account,
+) {
+    let mut walk = Account {
+        rho_source: account.rho_source,
+        texts: account.texts,
+        terms: Vec::new(),
+        warnings: Vec::new(),
+        approximate: 0,
+    };
+    taft(library, recognizer, found, k, found.atom, &mut walk);
+    let per = k.n_substituent_term;
+    for t in walk.terms {
+        // The walk's own coefficient term (the solvation offset of alkyl branches) belongs
+        // to Taft classes; only the sigma* of what was found is kept.
+        if t.role != TermRole::Substituent {
+            continue;
+        }
+        let sigma = t.sigma.unwrap_or(0.0);
+        account.terms.push(Term {
+            label: Cow::Owned(concat(&["on the N: ", &t.label])),
+            contribution: per * sigma,
+            source: if per == 0.0 {
+                Cow::Borrowed("class correction, not calibrated for this class (0)")
+            } else {
+                t.source
+            },
+            sigma: Some(sigma),
+            rho: Some(-per),
+            position: t.position,
+            role: TermRole::Correction,
+            ortho_substituent: false,
+            counted: Some((Counted::NSubstituent, sigma)),
+        });
+    }
+    account.warnings.extend(walk.warnings);
+    account.approximate += walk.approximate;
 }
 
 fn push_counted(account: &mut Account, what: Counted, count: usize, per: f64, label: &str) {
@@ -1944,6 +2010,44 @@ pub fn interactions(library: &Library, molecule: &Molecule, sites: &[Site]) -> V
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    fn base_site(smiles: &str) -> Site {
+        let read = mol::parse(smiles).expect("test SMILES parses");
+        let m = mol::standardize(&read)
+            .expect("test SMILES standardizes")
+            .parent;
+        let found = crate::find_sites(Library::builtin(), &m);
+        score_sites(Library::builtin(), &m, &found)
+            .into_iter()
+            .find(|s| s.kind == Kind::Base && m.atoms()[s.atom].element == 7)
+            .expect("an N base site")
+    }
+
+    #[test]
+    fn an_anilines_own_n_substituents_enter_with_their_sigma_star() {
+        // N-(2-hydroxyethyl)aniline: the OH two bonds out from the N's alpha carbon is
+        // found by the amine-style walk and counted with its (positive) sigma*; the
+        // N-methyl of N-methylaniline is the walk's sigma* 0 reference and adds nothing.
+        let with = base_site("OCCNc1ccccc1");
+        let on_n: Vec<&Term> = with
+            .terms
+            .iter()
+            .filter(|t| matches!(t.counted, Some((Counted::NSubstituent, _))))
+            .collect();
+        assert_eq!(on_n.len(), 1, "{:?}", with.terms);
+        let t = on_n[0];
+        let sigma = t.sigma.expect("the term carries its sigma*");
+        assert!(sigma > 0.0, "an OH withdraws: {sigma}");
+        assert_eq!(t.counted, Some((Counted::NSubstituent, sigma)));
+        assert_eq!(t.role, TermRole::Correction);
+        let sum: f64 = with.terms.iter().map(|t| t.contribution).sum();
+        assert!((sum - with.pka).abs() < 1e-9);
+        let plain = base_site("CNc1ccccc1");
+        assert!(plain
+            .terms
+            .iter()
+            .all(|t| !matches!(t.counted, Some((Counted::NSubstituent, _)))));
+    }
 
     #[test]
     fn a_term_cites_the_part_of_the_source_for_its_constant() {
