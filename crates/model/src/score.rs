@@ -961,6 +961,38 @@ fn hammett(
                         }
                     }
                 }
+                // The N of a fused pyrrole ring (azaindoles, carbolines) bonded to this fusion
+                // atom, at a base site: its lone pair conjugates with the site's ring as an
+                // amino group on the fusion atom does, which the benzo term below does not
+                // carry. Ortho to a ring-member site it is scored, like an ortho substituent
+                // there, by its inductive constant. Only a ring of carbons besides that N:
+                // in a fused imidazole, pyrazole or imidazolone the N's lone pair is held by
+                // the other heteroatoms (purine 2.4, not above pyrimidine's 1.3 by an amino
+                // group's 3 to 4 units; from memory of Albert and Brown, J. Chem. Soc. 1954,
+                // 2060).
+                if class.kind == Kind::Base
+                    && is_pyrrole_type_n(molecule, s)
+                    && molecule.rings().iter().any(|r| {
+                        r.len() == 5
+                            && r.contains(&s)
+                            && r.contains(&atom)
+                            && r.iter()
+                                .all(|&a| a == s || is_plain_ring_carbon(molecule, a))
+                    })
+                {
+                    if let Some(entry) = entry_by_id(library, "fused-ring-nh") {
+                        let label = account.texts.numbered(number, entry);
+                        if pos == Position::Ortho && site_in_ring {
+                            push_ortho_inductive(account, entry, k.rho, label);
+                            if let Some(t) = account.terms.last_mut() {
+                                // Not one of the substituents the class's ortho term counts.
+                                t.ortho_substituent = false;
+                            }
+                        } else {
+                            push_hammett(account, entry, pos, class.scale, k.rho, label, false);
+                        }
+                    }
+                }
                 // A ring fused to the site's ring: one term per fusion atom.
                 match fused {
                     Some(entry) => push_hammett(
@@ -1287,6 +1319,27 @@ fn push_ortho_sum(
     }
     let label = Cow::Owned(concat(&["ortho ", part, " (", groups, ")"]));
     push_coefficient_term(account, what, label, position, on, sum, per);
+}
+
+/// Whether `atom` is a pyrrole-type ring N (aromatic, neutral, with an H or a third
+/// neighbour: its lone pair is part of the ring's pi system).
+fn is_pyrrole_type_n(molecule: &Molecule, atom: usize) -> bool {
+    let at = &molecule.atoms()[atom];
+    at.element == 7
+        && at.aromatic
+        && at.charge == 0
+        && (molecule.total_hydrogens(atom) > 0 || molecule.degree(atom) == 3)
+}
+
+/// Whether `atom` is an aromatic carbon with no exocyclic double bond (not a ring C=O,
+/// C=S or C=N).
+fn is_plain_ring_carbon(molecule: &Molecule, atom: usize) -> bool {
+    molecule.atoms()[atom].element == 6
+        && molecule.atoms()[atom].aromatic
+        && !molecule.neighbors(atom).iter().any(|n| {
+            let b = &molecule.bonds()[n.bond];
+            b.order == 2 && !b.aromatic && !b.in_ring
+        })
 }
 
 /// Whether `atom` is a pyridine-type ring N (aromatic, neutral, two neighbours, no H).
