@@ -958,6 +958,12 @@ fn hammett(
                         }
                         if !fused_atoms.contains(&a) {
                             fused_atoms.push(a);
+                            // A lactam C=O of a fused ring (pteridinones, lumazines) draws
+                            // on the site's ring as the ring's own C=O does; at base sites
+                            // it is counted with them.
+                            if class.kind == Kind::Base && has_exocyclic_oxo(molecule, a) {
+                                ring_oxo += 1;
+                            }
                         }
                     }
                 }
@@ -1329,6 +1335,18 @@ fn is_pyrrole_type_n(molecule: &Molecule, atom: usize) -> bool {
         && at.aromatic
         && at.charge == 0
         && (molecule.total_hydrogens(atom) > 0 || molecule.degree(atom) == 3)
+}
+
+/// Whether `atom` carries an exocyclic C=O or C=S (a ring lactam or thiolactam).
+fn has_exocyclic_oxo(molecule: &Molecule, atom: usize) -> bool {
+    molecule.neighbors(atom).iter().any(|n| {
+        let b = &molecule.bonds()[n.bond];
+        b.order == 2
+            && !b.aromatic
+            && !b.in_ring
+            && matches!(molecule.atoms()[n.atom].element, 8 | 16)
+            && molecule.degree(n.atom) == 1
+    })
 }
 
 /// Whether `atom` is an aromatic carbon with no exocyclic double bond (not a ring C=O,
