@@ -967,26 +967,40 @@ fn hammett(
                         }
                     }
                 }
-                // The N of a fused pyrrole ring (azaindoles, carbolines) bonded to this fusion
-                // atom, at a base site: its lone pair conjugates with the site's ring as an
-                // amino group on the fusion atom does, which the benzo term below does not
-                // carry. Ortho to a ring-member site it is scored, like an ortho substituent
-                // there, by its inductive constant. Only a ring of carbons besides that N:
-                // in a fused imidazole, pyrazole or imidazolone the N's lone pair is held by
-                // the other heteroatoms (purine 2.4, not above pyrimidine's 1.3 by an amino
-                // group's 3 to 4 units; from memory of Albert and Brown, J. Chem. Soc. 1954,
-                // 2060).
-                if class.kind == Kind::Base
-                    && is_pyrrole_type_n(molecule, s)
-                    && molecule.rings().iter().any(|r| {
+                // The heteroatom of a fused five-membered ring bonded to this fusion atom, at a
+                // base site: the N of a fused pyrrole (azaindoles, carbolines) conjugates with
+                // the site's ring as an amino group on the fusion atom does, the S or O of a
+                // fused thiophene, thiazole or furan acts as an alkylthio or alkoxy group
+                // there; the benzo term below carries neither. Ortho to a ring-member site it
+                // is scored, like an ortho substituent there, by its inductive constant. The
+                // N only in a ring of carbons besides it: in a fused imidazole, pyrazole or
+                // imidazolone its lone pair is held by the other heteroatoms (purine 2.4, not
+                // above pyrimidine's 1.3 by an amino group's 3 to 4 units; from memory of
+                // Albert and Brown, J. Chem. Soc. 1954, 2060).
+                let in_five_ring = |plain: bool| {
+                    molecule.rings().iter().any(|r| {
                         r.len() == 5
                             && r.contains(&s)
                             && r.contains(&atom)
-                            && r.iter()
-                                .all(|&a| a == s || is_plain_ring_carbon(molecule, a))
+                            && (!plain
+                                || r.iter()
+                                    .all(|&a| a == s || is_plain_ring_carbon(molecule, a)))
                     })
-                {
-                    if let Some(entry) = entry_by_id(library, "fused-ring-nh") {
+                };
+                let fused_hetero = match molecule.atoms()[s].element {
+                    7 if is_pyrrole_type_n(molecule, s) && in_five_ring(true) => {
+                        Some("fused-ring-nh")
+                    }
+                    16 if molecule.atoms()[s].aromatic && in_five_ring(false) => {
+                        Some("fused-ring-s")
+                    }
+                    8 if molecule.atoms()[s].aromatic && in_five_ring(false) => {
+                        Some("fused-ring-o")
+                    }
+                    _ => None,
+                };
+                if let Some(id) = fused_hetero.filter(|_| class.kind == Kind::Base) {
+                    if let Some(entry) = entry_by_id(library, id) {
                         let label = account.texts.numbered(number, entry);
                         if pos == Position::Ortho && site_in_ring {
                             push_ortho_inductive(account, entry, k.rho, label);
