@@ -1094,12 +1094,13 @@ fn hammett(
             }
         }
     }
-    fused_ring_substituents(
+    ortho_hbond += fused_ring_substituents(
         recognizer,
         (ring, anchor, class.scale),
         &fused_atoms,
         &avoid,
         k,
+        site_in_ring && class.kind == Kind::Base,
         account,
     );
     if !site_in_ring {
@@ -1248,11 +1249,13 @@ fn fused_ring_substituents(
     fused_atoms: &[usize],
     avoid: &[usize],
     k: &Constants,
+    peri: bool,
     account: &mut Account,
-) {
+) -> usize {
     if fused_atoms.is_empty() {
-        return;
+        return 0;
     }
+    let mut peri_hbond = 0;
     let molecule = recognizer.molecule();
     let mut keep_out: Vec<usize> = Vec::with_capacity(avoid.len() + fused_atoms.len());
     keep_out.extend_from_slice(avoid);
@@ -1279,6 +1282,39 @@ fn fused_ring_substituents(
             let Some(r) = recognizer.recognize(x, f, &keep_out) else {
                 continue;
             };
+            // A peri group (8-substituted quinolines): on the fused six-ring atom next to
+            // the fusion atom ortho to a ring-member base site, it crowds the site as an
+            // ortho group does (8-methylquinoline 4.6, 8-aminoquinoline 3.99 against
+            // quinoline 4.90; from memory of Albert, Goldacre and Phillips, J. Chem. Soc.
+            // 1948, 2240), and is scored so: sigma_I and the class's ortho term.
+            if peri
+                && d == 2
+                && molecule.rings().iter().any(|rg| {
+                    rg.len() == 6 && rg.contains(&f) && rg.iter().any(|a| ring.contains(a))
+                })
+            {
+                // A peri O (hydroxy as well as alkoxy) takes a hydrogen bond from the site's
+                // N-H+ (8-hydroxyquinoline 4.91, near quinoline's 4.90; from memory of CRC).
+                if r.entry.hbond_acceptor || molecule.atoms()[x].element == 8 {
+                    peri_hbond += 1;
+                }
+                let name = concat(&["peri ", &r.entry.name]);
+                push_ortho_inductive(account, r.entry, k.rho, Cow::Owned(name.clone()));
+                if k.ortho_term != 0.0 {
+                    account.terms.push(Term {
+                        label: Cow::Owned(concat(&["ortho correction (", &name, ")"])),
+                        contribution: k.ortho_term,
+                        source: account.texts.ortho_source(account.rho_source),
+                        sigma: None,
+                        rho: None,
+                        position: Some(Cow::Borrowed("ortho")),
+                        role: TermRole::Correction,
+                        ortho_substituent: false,
+                        counted: None,
+                    });
+                }
+                continue;
+            }
             let (i, pos) = if d % 2 == 1 {
                 (1, Position::Para)
             } else {
@@ -1320,6 +1356,7 @@ fn fused_ring_substituents(
             per,
         );
     }
+    peri_hbond
 }
 
 /// The ortho field or resonance term over the named ortho groups, when there are any.
