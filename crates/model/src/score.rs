@@ -966,6 +966,58 @@ fn hammett(
                         }
                         if !fused_atoms.contains(&a) {
                             fused_atoms.push(a);
+                            // A lactam C=O of a fused ring (pteridinones, lumazines) draws
+                            // on the site's ring as the ring's own C=O does; at base sites
+                            // it is counted with them.
+                            if class.kind == Kind::Base && has_exocyclic_oxo(molecule, a) {
+                                ring_oxo += 1;
+                            }
+                        }
+                    }
+                }
+                // The heteroatom of a fused five-membered ring bonded to this fusion atom, at a
+                // base site: the N of a fused pyrrole (azaindoles, carbolines) conjugates with
+                // the site's ring as an amino group on the fusion atom does, the S or O of a
+                // fused thiophene, thiazole or furan acts as an alkylthio or alkoxy group
+                // there; the benzo term below carries neither. Ortho to a ring-member site it
+                // is scored, like an ortho substituent there, by its inductive constant. The
+                // N only in a ring of carbons besides it: in a fused imidazole, pyrazole or
+                // imidazolone its lone pair is held by the other heteroatoms (purine 2.4, not
+                // above pyrimidine's 1.3 by an amino group's 3 to 4 units; from memory of
+                // Albert and Brown, J. Chem. Soc. 1954, 2060).
+                let in_five_ring = |plain: bool| {
+                    molecule.rings().iter().any(|r| {
+                        r.len() == 5
+                            && r.contains(&s)
+                            && r.contains(&atom)
+                            && (!plain
+                                || r.iter()
+                                    .all(|&a| a == s || is_plain_ring_carbon(molecule, a)))
+                    })
+                };
+                let fused_hetero = match molecule.atoms()[s].element {
+                    7 if is_pyrrole_type_n(molecule, s) && in_five_ring(true) => {
+                        Some("fused-ring-nh")
+                    }
+                    16 if molecule.atoms()[s].aromatic && in_five_ring(false) => {
+                        Some("fused-ring-s")
+                    }
+                    8 if molecule.atoms()[s].aromatic && in_five_ring(false) => {
+                        Some("fused-ring-o")
+                    }
+                    _ => None,
+                };
+                if let Some(id) = fused_hetero.filter(|_| class.kind == Kind::Base) {
+                    if let Some(entry) = entry_by_id(library, id) {
+                        let label = account.texts.numbered(number, entry);
+                        if pos == Position::Ortho && site_in_ring {
+                            push_ortho_inductive(account, entry, k.rho, label);
+                            if let Some(t) = account.terms.last_mut() {
+                                // Not one of the substituents the class's ortho term counts.
+                                t.ortho_substituent = false;
+                            }
+                        } else {
+                            push_hammett(account, entry, pos, class.scale, k.rho, label, false);
                         }
                     }
                 }
@@ -1050,12 +1102,13 @@ fn hammett(
             }
         }
     }
-    fused_ring_substituents(
+    ortho_hbond += fused_ring_substituents(
         recognizer,
         (ring, anchor, class.scale),
         &fused_atoms,
         &avoid,
         k,
+        site_in_ring && class.kind == Kind::Base,
         account,
     );
     if !site_in_ring {
@@ -1207,11 +1260,13 @@ fn fused_ring_substituents(
     fused_atoms: &[usize],
     avoid: &[usize],
     k: &Constants,
+    peri: bool,
     account: &mut Account,
-) {
+) -> usize {
     if fused_atoms.is_empty() {
-        return;
+        return 0;
     }
+    let mut peri_hbond = 0;
     let molecule = recognizer.molecule();
     let mut keep_out: Vec<usize> = Vec::with_capacity(avoid.len() + fused_atoms.len());
     keep_out.extend_from_slice(avoid);
@@ -1238,6 +1293,39 @@ fn fused_ring_substituents(
             let Some(r) = recognizer.recognize(x, f, &keep_out) else {
                 continue;
             };
+            // A peri group (8-substituted quinolines): on the fused six-ring atom next to
+            // the fusion atom ortho to a ring-member base site, it crowds the site as an
+            // ortho group does (8-methylquinoline 4.6, 8-aminoquinoline 3.99 against
+            // quinoline 4.90; from memory of Albert, Goldacre and Phillips, J. Chem. Soc.
+            // 1948, 2240), and is scored so: sigma_I and the class's ortho term.
+            if peri
+                && d == 2
+                && molecule.rings().iter().any(|rg| {
+                    rg.len() == 6 && rg.contains(&f) && rg.iter().any(|a| ring.contains(a))
+                })
+            {
+                // A peri O (hydroxy as well as alkoxy) takes a hydrogen bond from the site's
+                // N-H+ (8-hydroxyquinoline 4.91, near quinoline's 4.90; from memory of CRC).
+                if r.entry.hbond_acceptor || molecule.atoms()[x].element == 8 {
+                    peri_hbond += 1;
+                }
+                let name = concat(&["peri ", &r.entry.name]);
+                push_ortho_inductive(account, r.entry, k.rho, Cow::Owned(name.clone()));
+                if k.ortho_term != 0.0 {
+                    account.terms.push(Term {
+                        label: Cow::Owned(concat(&["ortho correction (", &name, ")"])),
+                        contribution: k.ortho_term,
+                        source: account.texts.ortho_source(account.rho_source),
+                        sigma: None,
+                        rho: None,
+                        position: Some(Cow::Borrowed("ortho")),
+                        role: TermRole::Correction,
+                        ortho_substituent: false,
+                        counted: None,
+                    });
+                }
+                continue;
+            }
             let (i, pos) = if d % 2 == 1 {
                 (1, Position::Para)
             } else {
@@ -1279,6 +1367,7 @@ fn fused_ring_substituents(
             per,
         );
     }
+    peri_hbond
 }
 
 /// The ortho field or resonance term over the named ortho groups, when there are any.
@@ -1298,6 +1387,39 @@ fn push_ortho_sum(
     }
     let label = Cow::Owned(concat(&["ortho ", part, " (", groups, ")"]));
     push_coefficient_term(account, what, label, position, on, sum, per);
+}
+
+/// Whether `atom` is a pyrrole-type ring N (aromatic, neutral, with an H or a third
+/// neighbour: its lone pair is part of the ring's pi system).
+fn is_pyrrole_type_n(molecule: &Molecule, atom: usize) -> bool {
+    let at = &molecule.atoms()[atom];
+    at.element == 7
+        && at.aromatic
+        && at.charge == 0
+        && (molecule.total_hydrogens(atom) > 0 || molecule.degree(atom) == 3)
+}
+
+/// Whether `atom` carries an exocyclic C=O or C=S (a ring lactam or thiolactam).
+fn has_exocyclic_oxo(molecule: &Molecule, atom: usize) -> bool {
+    molecule.neighbors(atom).iter().any(|n| {
+        let b = &molecule.bonds()[n.bond];
+        b.order == 2
+            && !b.aromatic
+            && !b.in_ring
+            && matches!(molecule.atoms()[n.atom].element, 8 | 16)
+            && molecule.degree(n.atom) == 1
+    })
+}
+
+/// Whether `atom` is an aromatic carbon with no exocyclic double bond (not a ring C=O,
+/// C=S or C=N).
+fn is_plain_ring_carbon(molecule: &Molecule, atom: usize) -> bool {
+    molecule.atoms()[atom].element == 6
+        && molecule.atoms()[atom].aromatic
+        && !molecule.neighbors(atom).iter().any(|n| {
+            let b = &molecule.bonds()[n.bond];
+            b.order == 2 && !b.aromatic && !b.in_ring
+        })
 }
 
 /// Whether `atom` is a pyridine-type ring N (aromatic, neutral, two neighbours, no H).
