@@ -1586,8 +1586,19 @@ fn taft(
 ) {
     let molecule = recognizer.molecule();
     // Hydrogens on the reaction centre count as substituents, except the site's own protons.
-    if anchor != found.atom {
-        let h = molecule.total_hydrogens(anchor);
+    // An acid site that is its own anchor (a C-H acid) loses one proton: its other
+    // hydrogens are substituents on the carbanion carbon like any other group (Taft's
+    // sum runs over all groups on the centre but the departing proton; dinitromethane
+    // against 1,1-dinitroethane, acetylacetone against its 3-alkyl derivatives).
+    let own = if anchor != found.atom {
+        0
+    } else if library.classes[found.class].kind == Kind::Acid {
+        1
+    } else {
+        molecule.total_hydrogens(anchor)
+    };
+    {
+        let h = molecule.total_hydrogens(anchor).saturating_sub(own);
         if h > 0 {
             let texts = account.texts;
             let (sigma, source) = match fixed_entry(library, Fixed::Hydrogen)
