@@ -1023,15 +1023,27 @@ fn hammett(
                 }
                 // A ring fused to the site's ring: one term per fusion atom.
                 match fused {
-                    Some(entry) => push_hammett(
-                        account,
-                        entry,
-                        pos,
-                        class.scale,
-                        k.rho,
-                        account.texts.numbered(number, entry),
-                        false,
-                    ),
+                    Some(entry) => {
+                        // Beside an acid site the fused ring is an ortho group like any
+                        // other (the peri C-H crowds the site: 1-naphthoic acid 3.69 against
+                        // 2-naphthoic 4.17, 1-naphthol 9.34 against 2-naphthol 9.51, from
+                        // memory of CRC), so it takes the class's ortho term.
+                        let ortho = pos == Position::Ortho && class.kind == Kind::Acid;
+                        let name = account.texts.numbered(number, entry);
+                        let correction = (ortho && k.ortho_term != 0.0).then(|| Term {
+                            label: account.texts.ortho_label(number, entry, &name),
+                            contribution: k.ortho_term,
+                            source: account.texts.ortho_source(&k.rho_source),
+                            sigma: None,
+                            rho: None,
+                            position: Some(Cow::Borrowed("ortho")),
+                            role: TermRole::Correction,
+                            ortho_substituent: false,
+                            counted: None,
+                        });
+                        push_hammett(account, entry, pos, class.scale, k.rho, name, ortho);
+                        account.terms.extend(correction);
+                    }
                     None => account
                         .warnings
                         .push("no fused-ring entry in the table".into()),
@@ -1774,8 +1786,19 @@ fn taft(
 ) {
     let molecule = recognizer.molecule();
     // Hydrogens on the reaction centre count as substituents, except the site's own protons.
-    if anchor != found.atom {
-        let h = molecule.total_hydrogens(anchor);
+    // An acid site that is its own anchor (a C-H acid) loses one proton: its other
+    // hydrogens are substituents on the carbanion carbon like any other group (Taft's
+    // sum runs over all groups on the centre but the departing proton; dinitromethane
+    // against 1,1-dinitroethane, acetylacetone against its 3-alkyl derivatives).
+    let own = if anchor != found.atom {
+        0
+    } else if library.classes[found.class].kind == Kind::Acid {
+        1
+    } else {
+        molecule.total_hydrogens(anchor)
+    };
+    {
+        let h = molecule.total_hydrogens(anchor).saturating_sub(own);
         if h > 0 {
             let texts = account.texts;
             let (sigma, source) = match fixed_entry(library, Fixed::Hydrogen)

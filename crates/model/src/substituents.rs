@@ -305,7 +305,9 @@ fn nearest_type(molecule: &Molecule, atom: usize, fence: &[usize]) -> Option<&'s
             } else if a.aromatic {
                 Some("pyrrol-1-yl")
             } else if beyond.iter().any(|&(e, o, _, t)| {
-                (e == 6 || e == 16) && o == 1 && carries_oxo(molecule, t, atom)
+                // An N-nitro or N-nitroso N (nitramine, nitrosamine) gives its lone pair to
+                // the N=O as an amide N gives it to the C=O: acylamino is the nearer type.
+                (e == 6 || e == 16 || e == 7) && o == 1 && carries_oxo(molecule, t, atom)
             }) {
                 Some("acylamino")
             } else {
