@@ -910,6 +910,8 @@ fn hammett(
     let mut ortho_alkyl = 0usize;
     let mut ortho_resonance = 0.0;
     let mut ortho_resonance_groups = String::new();
+    // Ring groups flanking a meta or para dialkylamino donor of a ring-N base site.
+    let mut twisted_donors = 0usize;
     for step in 1..n {
         let atom = ring[(start + step) % n];
         let distance = step.min(n - step);
@@ -1067,6 +1069,10 @@ fn hammett(
                     if ortho && r.entry.hbond_acceptor {
                         ortho_hbond += 1;
                     }
+                    if !ortho && site_in_ring && class.kind == Kind::Base {
+                        twisted_donors +=
+                            flanked_dialkylamino(molecule, ring, start + step, s, r.entry);
+                    }
                     // `walk` marks the plain hydrocarbon alkyls (methyl ... tert-butyl).
                     if ortho && r.entry.walk {
                         ortho_alkyl += 1;
@@ -1149,6 +1155,20 @@ fn hammett(
             n_substituents(library, recognizer, found, k, account);
         }
     }
+    // Steric inhibition of resonance: a dialkylamino donor with a group on a neighbouring
+    // ring atom turns its lone pair out of the ring plane, and gives the ring N less than
+    // its sigma_p says (4-dimethylaminopyridine 9.6, its 3-methyl homologue 8.7, while
+    // 4-amino-3-methylpyridine stays above 4-aminopyridine; from memory of CRC; the effect
+    // in dialkylanilines: Wepster, Rec. Trav. Chim. Pays-Bas 1957, 76, 335, from memory).
+    // Counted in the N-alkyl column, which holds the same twist for an exocyclic amino
+    // site and is otherwise empty for a ring-member site.
+    push_counted(
+        account,
+        Counted::NAlkylBranch,
+        twisted_donors,
+        k.n_alkyl_term,
+        "group flanking a dialkylamino donor (steric inhibition of resonance)",
+    );
     push_counted(
         account,
         Counted::FusedAza,
@@ -1403,6 +1423,47 @@ fn push_ortho_sum(
 
 /// Whether `atom` is a pyrrole-type ring N (aromatic, neutral, with an H or a third
 /// neighbour: its lone pair is part of the ring's pi system).
+/// The groups on the ring atoms beside `ring[at % len]` when its substituent `donor` is a
+/// dialkylamino-type donor (an N with no H, not aromatic, three heavy neighbours, a
+/// resonance donor by its sigma_p): each such group crowds the N-alkyls and twists the lone
+/// pair out of conjugation with the ring. Only open-chain groups count (a fused ring's
+/// peri H is left out).
+fn flanked_dialkylamino(
+    molecule: &Molecule,
+    ring: &[usize],
+    at: usize,
+    donor: usize,
+    entry: &SubstituentEntry,
+) -> usize {
+    let d = &molecule.atoms()[donor];
+    let donor_type = d.element == 7
+        && !d.aromatic
+        && d.charge == 0
+        && molecule.total_hydrogens(donor) == 0
+        && molecule.degree(donor) == 3
+        && entry.sigma_p.is_some_and(|p| p <= -0.4);
+    let n = ring.len();
+    // A donor N held in a ring with its ring atom (a tetrahydronaphthyridine) cannot twist.
+    let held = molecule
+        .rings()
+        .iter()
+        .any(|r| r.contains(&donor) && r.contains(&ring[at % n]));
+    if !donor_type || held {
+        return 0;
+    }
+    [ring[(at + 1) % n], ring[(at + n - 1) % n]]
+        .iter()
+        .filter(|&&a| {
+            molecule.neighbors(a).iter().any(|nb| {
+                !ring.contains(&nb.atom)
+                    && !molecule.bonds()[nb.bond].in_ring
+                    && molecule.atoms()[nb.atom].element != 1
+                    && molecule.bonds()[nb.bond].order == 1
+            })
+        })
+        .count()
+}
+
 fn is_pyrrole_type_n(molecule: &Molecule, atom: usize) -> bool {
     let at = &molecule.atoms()[atom];
     at.element == 7
