@@ -1457,11 +1457,25 @@ fn flanked_dialkylamino(
             molecule.neighbors(a).iter().any(|nb| {
                 !ring.contains(&nb.atom)
                     && !molecule.bonds()[nb.bond].in_ring
-                    && molecule.atoms()[nb.atom].element != 1
                     && molecule.bonds()[nb.bond].order == 1
+                    && bulky_flank(molecule, nb.atom)
             })
         })
         .count()
+}
+
+/// A flanking group that crowds a dialkylamino donor without conjugating with the ring
+/// itself: a heavy halogen or an sp3 carbon. A flanking C=O, C#N or NO2 is left out: it is
+/// twisted as much as the donor, and its own lost resonance works the other way.
+fn bulky_flank(molecule: &Molecule, atom: usize) -> bool {
+    match molecule.atoms()[atom].element {
+        17 | 35 | 53 => true,
+        6 => {
+            !molecule.atoms()[atom].aromatic
+                && molecule.degree(atom) + molecule.total_hydrogens(atom) == 4
+        }
+        _ => false,
+    }
 }
 
 fn is_pyrrole_type_n(molecule: &Molecule, atom: usize) -> bool {
