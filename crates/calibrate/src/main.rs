@@ -296,7 +296,7 @@ impl Fit {
 }
 
 /// Number of class corrections the fit sets besides parent and rho.
-const N_CORRECTIONS: usize = 13;
+const N_CORRECTIONS: usize = 14;
 
 /// The class corrections, in column order after parent and rho: what the scorer counts
 /// for each (`None`: the ortho substituents, flagged on their terms) and the field of
@@ -315,6 +315,7 @@ const CORRECTIONS: [(Option<Counted>, &str); N_CORRECTIONS] = [
     (Some(Counted::FusedConjugated), "fused_conjugated_term"),
     (Some(Counted::NAlkylBranch), "n_alkyl_term"),
     (Some(Counted::NSubstituent), "n_substituent_term"),
+    (Some(Counted::TwistedDonor), "twisted_donor_term"),
 ];
 
 /// The fields of `SiteClass` that hold the class corrections, in [`CORRECTIONS`] order, as
@@ -335,6 +336,7 @@ macro_rules! correction_fields {
             $c.fused_conjugated_term,
             $c.n_alkyl_term,
             $c.n_substituent_term,
+            $c.twisted_donor_term,
         ]
     };
 }

@@ -158,6 +158,10 @@ pub struct SiteClass {
     /// N-(2-hydroxyethyl) aniline; set by calibration, 0 when not calibrated).
     #[serde(default)]
     pub n_substituent_term: f64,
+    /// Correction per group flanking a dialkylamino donor on the ring of a ring-member base
+    /// site (steric inhibition of resonance; set by calibration, 0 when not calibrated).
+    #[serde(default)]
+    pub twisted_donor_term: f64,
     /// Statistical factor (number of equivalent protons or positions the class counts);
     /// contributes -log10(factor) for acids and +log10(factor) for bases when not 1.
     #[serde(default = "one")]
@@ -287,6 +291,9 @@ pub struct Calibration {
     /// Fitted coefficient on the summed sigma* of the site's N-substituents.
     #[serde(default)]
     pub n_substituent_term: Option<f64>,
+    /// Fitted correction per group flanking a ring dialkylamino donor.
+    #[serde(default)]
+    pub twisted_donor_term: Option<f64>,
     /// Number of measurements fitted.
     pub points: usize,
     /// Residual error of the fit (RMS, pKa units).

@@ -131,6 +131,10 @@ pub enum Counted {
     /// N-propargyl or N-(2-hydroxyethyl) aniline): the count is their summed sigma*, walked
     /// from the site N as the amine classes walk theirs, for a per-class coefficient.
     NSubstituent,
+    /// Groups on the ring atoms beside a dialkylamino donor of a ring-member base site
+    /// (4-dimethylamino-3-methylpyridine): they turn the donor's lone pair out of the ring
+    /// plane (steric inhibition of resonance).
+    TwistedDonor,
 }
 
 /// A scored site.
@@ -177,6 +181,7 @@ struct Constants<'l> {
     fused_conjugated_term: f64,
     n_alkyl_term: f64,
     n_substituent_term: f64,
+    twisted_donor_term: f64,
     uncertainty: f64,
 }
 
@@ -253,6 +258,7 @@ fn constants(library: &Library, class_index: usize) -> Constants<'_> {
                     .unwrap_or(class.fused_conjugated_term),
                 n_alkyl_term: fit.n_alkyl_term.unwrap_or(class.n_alkyl_term),
                 n_substituent_term: fit.n_substituent_term.unwrap_or(class.n_substituent_term),
+                twisted_donor_term: fit.twisted_donor_term.unwrap_or(class.twisted_donor_term),
                 // The class's cross-validated error, as a standard deviation (for normal errors
                 // sd = MAE * sqrt(pi / 2)); never below the residual of the fit itself.
                 uncertainty: (fit.cv_mae * 1.2533).max(fit.rmse).max(0.1),
@@ -276,6 +282,7 @@ fn constants(library: &Library, class_index: usize) -> Constants<'_> {
             fused_conjugated_term: class.fused_conjugated_term,
             n_alkyl_term: class.n_alkyl_term,
             n_substituent_term: class.n_substituent_term,
+            twisted_donor_term: class.twisted_donor_term,
             uncertainty: class.uncertainty,
         },
     }
@@ -318,7 +325,7 @@ fn numbered(number: usize, name: &str) -> String {
 const NUMBERED_KEPT: usize = 12;
 
 /// Number of [`Counted`] kinds: slots per class for their sources.
-const COUNTED_KINDS: usize = 12;
+const COUNTED_KINDS: usize = 13;
 
 /// The slot of a [`Counted`] kind among a class's [`COUNTED_KINDS`]. Exhaustive on
 /// purpose: a new kind does not compile until it has a slot of its own (two kinds sharing
@@ -337,6 +344,7 @@ fn counted_slot(what: Counted) -> usize {
         Counted::FusedConjugated => 9,
         Counted::NAlkylBranch => 10,
         Counted::NSubstituent => 11,
+        Counted::TwistedDonor => 12,
     }
 }
 
@@ -1160,13 +1168,11 @@ fn hammett(
     // its sigma_p says (4-dimethylaminopyridine 9.6, its 3-methyl homologue 8.7, while
     // 4-amino-3-methylpyridine stays above 4-aminopyridine; from memory of CRC; the effect
     // in dialkylanilines: Wepster, Rec. Trav. Chim. Pays-Bas 1957, 76, 335, from memory).
-    // Counted in the N-alkyl column, which holds the same twist for an exocyclic amino
-    // site and is otherwise empty for a ring-member site.
     push_counted(
         account,
-        Counted::NAlkylBranch,
+        Counted::TwistedDonor,
         twisted_donors,
-        k.n_alkyl_term,
+        k.twisted_donor_term,
         "group flanking a dialkylamino donor (steric inhibition of resonance)",
     );
     push_counted(
@@ -1421,8 +1427,6 @@ fn push_ortho_sum(
     push_coefficient_term(account, what, label, position, on, sum, per);
 }
 
-/// Whether `atom` is a pyrrole-type ring N (aromatic, neutral, with an H or a third
-/// neighbour: its lone pair is part of the ring's pi system).
 /// The groups on the ring atoms beside `ring[at % len]` when its substituent `donor` is a
 /// dialkylamino-type donor (an N with no H, not aromatic, three heavy neighbours, a
 /// resonance donor by its sigma_p): each such group crowds the N-alkyls and twists the lone
@@ -1478,6 +1482,8 @@ fn bulky_flank(molecule: &Molecule, atom: usize) -> bool {
     }
 }
 
+/// Whether `atom` is a pyrrole-type ring N (aromatic, neutral, with an H or a third
+/// neighbour: its lone pair is part of the ring's pi system).
 fn is_pyrrole_type_n(molecule: &Molecule, atom: usize) -> bool {
     let at = &molecule.atoms()[atom];
     at.element == 7
