@@ -1112,6 +1112,21 @@ fn hammett(
                     if ortho && site_in_ring {
                         push_ortho_inductive(account, r.entry, k.rho, name);
                     } else {
+                        // The anion of a five-ring N-H acid scored on sigma-minus (pyrrole,
+                        // indole) takes an acceptor on a beta carbon into through-conjugation,
+                        // N=C-C=C-O- as from a para position, not a meta one (the
+                        // vinylogous amide anion; common practice, sigma-minus for an
+                        // acceptor conjugated with the anionic centre).
+                        let pos = if site_in_ring
+                            && n == 5
+                            && pos == Position::Meta
+                            && class.kind == Kind::Acid
+                            && class.scale == Scale::HammettMinus
+                        {
+                            Position::Para
+                        } else {
+                            pos
+                        };
                         push_hammett(account, r.entry, pos, class.scale, k.rho, name, ortho);
                     }
                     account.terms.extend(correction);
