@@ -1040,17 +1040,7 @@ fn hammett(
                         // memory of CRC), so it takes the class's ortho term.
                         let ortho = pos == Position::Ortho && class.kind == Kind::Acid;
                         let name = account.texts.numbered(number, entry);
-                        let correction = (ortho && k.ortho_term != 0.0).then(|| Term {
-                            label: account.texts.ortho_label(number, entry, &name),
-                            contribution: k.ortho_term,
-                            source: account.texts.ortho_source(&k.rho_source),
-                            sigma: None,
-                            rho: None,
-                            position: Some(Cow::Borrowed("ortho")),
-                            role: TermRole::Correction,
-                            ortho_substituent: false,
-                            counted: None,
-                        });
+                        let correction = ortho_correction(account, k, ortho, number, entry, &name);
                         push_hammett(account, entry, pos, class.scale, k.rho, name, ortho);
                         account.terms.extend(correction);
                     }
@@ -1098,17 +1088,7 @@ fn hammett(
                     }
                     // Built before the name moves into the substituent's term; listed after
                     // it.
-                    let correction = (ortho && k.ortho_term != 0.0).then(|| Term {
-                        label: account.texts.ortho_label(number, r.entry, &name),
-                        contribution: k.ortho_term,
-                        source: account.texts.ortho_source(&k.rho_source),
-                        sigma: None,
-                        rho: None,
-                        position: Some(Cow::Borrowed("ortho")),
-                        role: TermRole::Correction,
-                        ortho_substituent: false,
-                        counted: None,
-                    });
+                    let correction = ortho_correction(account, k, ortho, number, r.entry, &name);
                     if ortho && site_in_ring {
                         push_ortho_inductive(account, r.entry, k.rho, name);
                     } else {
@@ -1628,6 +1608,29 @@ fn n_substituents(
     }
     account.warnings.extend(walk.warnings);
     account.approximate += walk.approximate;
+}
+
+/// The class's ortho correction for the group `entry` at ring position `number` (named
+/// `name`), when it is ortho and the class has one.
+fn ortho_correction(
+    account: &Account,
+    k: &Constants,
+    ortho: bool,
+    number: usize,
+    entry: &SubstituentEntry,
+    name: &str,
+) -> Option<Term> {
+    (ortho && k.ortho_term != 0.0).then(|| Term {
+        label: account.texts.ortho_label(number, entry, name),
+        contribution: k.ortho_term,
+        source: account.texts.ortho_source(&k.rho_source),
+        sigma: None,
+        rho: None,
+        position: Some(Cow::Borrowed("ortho")),
+        role: TermRole::Correction,
+        ortho_substituent: false,
+        counted: None,
+    })
 }
 
 fn push_counted(account: &mut Account, what: Counted, count: usize, per: f64, label: &str) {
