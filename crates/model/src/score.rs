@@ -1345,17 +1345,9 @@ fn fused_ring_substituents(
                 let name = concat(&["peri ", &r.entry.name]);
                 push_ortho_inductive(account, r.entry, k.rho, Cow::Owned(name.clone()));
                 if k.ortho_term != 0.0 {
-                    account.terms.push(Term {
-                        label: Cow::Owned(concat(&["ortho correction (", &name, ")"])),
-                        contribution: k.ortho_term,
-                        source: account.texts.ortho_source(account.rho_source),
-                        sigma: None,
-                        rho: None,
-                        position: Some(Cow::Borrowed("ortho")),
-                        role: TermRole::Correction,
-                        ortho_substituent: false,
-                        counted: None,
-                    });
+                    let label = Cow::Owned(concat(&["ortho correction (", &name, ")"]));
+                    let term = ortho_term(account, k, label);
+                    account.terms.push(term);
                 }
                 continue;
             }
@@ -1620,8 +1612,14 @@ fn ortho_correction(
     entry: &SubstituentEntry,
     name: &str,
 ) -> Option<Term> {
-    (ortho && k.ortho_term != 0.0).then(|| Term {
-        label: account.texts.ortho_label(number, entry, name),
+    (ortho && k.ortho_term != 0.0)
+        .then(|| ortho_term(account, k, account.texts.ortho_label(number, entry, name)))
+}
+
+/// The class's ortho correction as a term labelled `label`.
+fn ortho_term(account: &Account, k: &Constants, label: Text) -> Term {
+    Term {
+        label,
         contribution: k.ortho_term,
         source: account.texts.ortho_source(&k.rho_source),
         sigma: None,
@@ -1630,7 +1628,7 @@ fn ortho_correction(
         role: TermRole::Correction,
         ortho_substituent: false,
         counted: None,
-    })
+    }
 }
 
 fn push_counted(account: &mut Account, what: Counted, count: usize, per: f64, label: &str) {
