@@ -950,12 +950,7 @@ fn hammett(
             // of a saturated or partly saturated fused ring (tetralin, tetralone, indane)
             // are ordinary substituents and are recognized as such.
             let shares_ring = molecule.bonds()[nb.bond].in_ring && molecule.atoms()[s].aromatic;
-            let exocyclic_double = !shares_ring
-                && molecule.bonds()[nb.bond].order == 2
-                && !molecule.bonds()[nb.bond].aromatic
-                && matches!(molecule.atoms()[s].element, 8 | 16)
-                && molecule.degree(s) == 1;
-            if exocyclic_double {
+            if is_oxo(molecule, nb) {
                 // A ring C=O / C=S (pyridones, pyrimidinones): a class correction, not a
                 // sigma substituent.
                 ring_oxo += 1;
@@ -1479,16 +1474,19 @@ fn is_pyrrole_type_n(molecule: &Molecule, atom: usize) -> bool {
         && (molecule.total_hydrogens(atom) > 0 || molecule.degree(atom) == 3)
 }
 
+/// Whether the bond to `nb` is an exocyclic C=O or C=S: a double, non-aromatic bond to an O
+/// or S with no other neighbour (which therefore lies in no ring).
+fn is_oxo(molecule: &Molecule, nb: &mol::Neighbor) -> bool {
+    let b = &molecule.bonds()[nb.bond];
+    b.order == 2
+        && !b.aromatic
+        && matches!(molecule.atoms()[nb.atom].element, 8 | 16)
+        && molecule.degree(nb.atom) == 1
+}
+
 /// Whether `atom` carries an exocyclic C=O or C=S (a ring lactam or thiolactam).
 fn has_exocyclic_oxo(molecule: &Molecule, atom: usize) -> bool {
-    molecule.neighbors(atom).iter().any(|n| {
-        let b = &molecule.bonds()[n.bond];
-        b.order == 2
-            && !b.aromatic
-            && !b.in_ring
-            && matches!(molecule.atoms()[n.atom].element, 8 | 16)
-            && molecule.degree(n.atom) == 1
-    })
+    molecule.neighbors(atom).iter().any(|n| is_oxo(molecule, n))
 }
 
 /// Whether `atom` is an aromatic carbon with no exocyclic double bond (not a ring C=O,
