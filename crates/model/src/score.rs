@@ -1149,7 +1149,10 @@ fn hammett(
             k.n_alkyl_term,
             "carbon on the site's N-alkyl alpha carbons",
         );
-        if molecule.atoms()[found.atom].element == 7 {
+        // A base site's protons are all its own; at an acid N the walk would count the H
+        // left on the anion as a group on its centre (as for a C-H acid), which is no
+        // N-substituent.
+        if molecule.atoms()[found.atom].element == 7 && class.kind == Kind::Base {
             n_substituents(library, recognizer, found, k, account);
         }
     }
@@ -1545,7 +1548,7 @@ fn counted_label(what: Counted, count: usize, label: &str) -> Text {
     Cow::Owned(write())
 }
 
-/// The polar effect of an exocyclic N site's own substituents on an aromatic scale (the
+/// The polar effect of an exocyclic N base site's own substituents on an aromatic scale (the
 /// N-allyl of an N-allylaniline): what hangs on the N besides the ring is walked as the
 /// amine classes walk their N-substituents (the alpha carbon as the sigma* 0 reference,
 /// groups beyond it attenuated per bond), and each group found enters with its sigma* on
