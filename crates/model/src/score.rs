@@ -1895,39 +1895,37 @@ fn taft(
     } else {
         molecule.total_hydrogens(anchor)
     };
-    {
-        let h = molecule.total_hydrogens(anchor).saturating_sub(own);
-        if h > 0 {
-            let texts = account.texts;
-            let (sigma, source) = match fixed_entry(library, Fixed::Hydrogen)
-                .and_then(|e| e.sigma_star.map(|s| (s, texts.cite_star(e))))
-            {
-                Some(x) => x,
-                None => (
-                    SIGMA_STAR_H,
-                    Cow::Borrowed("Taft 1956, sigma*(H) = 0.49 (from memory)"),
-                ),
-            };
-            account.terms.push(Term {
-                label: match h {
-                    1 => Cow::Borrowed("1 H on the reaction centre"),
-                    2 => Cow::Borrowed("2 H on the reaction centre"),
-                    3 => Cow::Borrowed("3 H on the reaction centre"),
-                    _ => Cow::Owned(concat(&[
-                        decimal(h, &mut [0; 20]),
-                        " H on the reaction centre",
-                    ])),
-                },
-                contribution: -k.rho * sigma * h as f64,
-                source,
-                sigma: Some(sigma * h as f64),
-                rho: Some(k.rho),
-                position: Some(Cow::Borrowed("1 bond")),
-                role: TermRole::Substituent,
-                ortho_substituent: false,
-                counted: None,
-            });
-        }
+    let h = molecule.total_hydrogens(anchor).saturating_sub(own);
+    if h > 0 {
+        let texts = account.texts;
+        let (sigma, source) = match fixed_entry(library, Fixed::Hydrogen)
+            .and_then(|e| e.sigma_star.map(|s| (s, texts.cite_star(e))))
+        {
+            Some(x) => x,
+            None => (
+                SIGMA_STAR_H,
+                Cow::Borrowed("Taft 1956, sigma*(H) = 0.49 (from memory)"),
+            ),
+        };
+        account.terms.push(Term {
+            label: match h {
+                1 => Cow::Borrowed("1 H on the reaction centre"),
+                2 => Cow::Borrowed("2 H on the reaction centre"),
+                3 => Cow::Borrowed("3 H on the reaction centre"),
+                _ => Cow::Owned(concat(&[
+                    decimal(h, &mut [0; 20]),
+                    " H on the reaction centre",
+                ])),
+            },
+            contribution: -k.rho * sigma * h as f64,
+            source,
+            sigma: Some(sigma * h as f64),
+            rho: Some(k.rho),
+            position: Some(Cow::Borrowed("1 bond")),
+            role: TermRole::Substituent,
+            ortho_substituent: false,
+            counted: None,
+        });
     }
     // Atoms enter once each: room for them all, so that the walk never moves the list.
     let mut visited: Vec<usize> =
