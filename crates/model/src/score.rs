@@ -1827,6 +1827,27 @@ fn has_taft_value(entry: &SubstituentEntry) -> bool {
     entry.sigma_star.is_some() || entry.sigma_star_ch2.is_some()
 }
 
+/// A neutral saturated N of a class's pattern that is bonded to no C=X carbon of the
+/// pattern: the partner N of a hydrazine, the far N of a piperazine. (The N of an amidine
+/// or amide pattern sits on its C=X carbon; what it carries is part of the class.)
+fn is_pattern_amine_n(molecule: &Molecule, matched: &[usize], atom: usize) -> bool {
+    let a = &molecule.atoms()[atom];
+    a.element == 7
+        && a.charge == 0
+        && !a.aromatic
+        && a.hybridization == Hybridization::Sp3
+        && molecule
+            .neighbors(atom)
+            .iter()
+            .filter(|n| matched.contains(&n.atom))
+            .all(|n| {
+                molecule.neighbors(n.atom).iter().all(|m| {
+                    let b = &molecule.bonds()[m.bond];
+                    b.order == 1 && !b.aromatic
+                })
+            })
+}
+
 fn is_plain_carbon(molecule: &Molecule, atom: usize) -> bool {
     let a = &molecule.atoms()[atom];
     a.element == 6 && a.charge == 0 && !a.aromatic && a.hybridization == Hybridization::Sp3
@@ -1872,7 +1893,9 @@ fn parent_carbon_branches(
     // Through the pattern's atoms only.
     let dist = distances_within(molecule, anchor, |b| matched.contains(&b));
     for &(c, d) in &dist[1..] {
-        if d > TAFT_MAX_DEPTH || !is_plain_carbon(molecule, c) {
+        if d > TAFT_MAX_DEPTH
+            || !(is_plain_carbon(molecule, c) || is_pattern_amine_n(molecule, matched, c))
+        {
             continue;
         }
         for nb in molecule.neighbors(c) {
