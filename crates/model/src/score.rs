@@ -1987,6 +1987,13 @@ fn taft(
     let mut from_parent = parent_carbon_branches(molecule, found, anchor, &visited);
     let mut alkyl = 0.0;
     let mut alkyl_source = None;
+    // Atoms a recognized group took beyond its own first atom. A group met along two paths
+    // (the C=C of a 3-pyrroline, reached from both ring CH2) has its far atom queued by the
+    // second path before the first path recognizes it; it is one group and counts once, at
+    // its nearer distance (N-methyl-3-pyrroline 9.88 against N-methylpyrrolidine 10.46,
+    // from memory of Perrin 1965: one alkenyl's worth, not two).
+    let mut claimed: Vec<usize> = Vec::new();
+    let mut fence: Vec<usize> = Vec::with_capacity(visited.capacity());
     loop {
         let take_parent = match (from_parent.last(), queue.front()) {
             (Some(p), Some(q)) => p.2 <= q.2,
@@ -2005,11 +2012,23 @@ fn taft(
                 None => break,
             }
         };
+        if claimed.contains(&atom) {
+            continue;
+        }
         // The atom was marked visited when it was queued; it must not fence itself off.
         if let Some(i) = visited.iter().position(|&a| a == atom) {
             visited.swap_remove(i);
         }
-        let recognized = recognizer.recognize(atom, from, &visited);
+        // Atoms only queued (not yet reached) are no fence: a group may take them (the far
+        // C of a ring C=C queued from the other side), and `claimed` then drops them.
+        fence.clear();
+        fence.extend(
+            visited
+                .iter()
+                .copied()
+                .filter(|a| !queue.iter().any(|q| q.0 == *a)),
+        );
+        let recognized = recognizer.recognize(atom, from, &fence);
         visited.push(atom);
         let walk = match &recognized {
             // A saturated carbon the table has no sigma* for (CHF2, CH2CN...) is taken
@@ -2077,6 +2096,9 @@ fn taft(
         for &a in &r.atoms {
             if !visited.contains(&a) {
                 visited.push(a);
+            }
+            if a != atom {
+                claimed.push(a);
             }
         }
         match taft_sigma(r.entry, depth) {
