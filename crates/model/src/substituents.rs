@@ -199,12 +199,13 @@ fn best_match<'a>(
             approximate: false,
         });
     }
-    let id = nearest_type(matcher.molecule(), atom, fence)?;
+    let molecule = matcher.molecule();
+    let id = nearest_type(molecule, atom, fence)?;
     let entry = entry_by_id(library, id)?;
     Some(Recognized {
         entry,
         atoms: vec![atom],
-        approximate: true,
+        approximate: !is_bridge_heteroatom(molecule, atom, fence, id),
     })
 }
 
@@ -250,6 +251,22 @@ impl<'a, 'm> Recognizer<'a, 'm> {
 ///
 /// Common practice in fragment schemes: an unknown group is scored as the commonest group
 /// with the same first atom in the same bonding state, and the estimate is widened.
+/// Whether `atom` is a saturated N, O or S whose every heavy neighbour lies inside the
+/// fence (the ring O of a sugar, the far NH of a homopiperazine, reached along one side of
+/// the ring while the other side is already walked): its groups are the chain atoms already
+/// scored, so the alkylamino, dialkylamino, alkoxy or alkylthio entry is the group itself,
+/// not a nearest type.
+fn is_bridge_heteroatom(molecule: &Molecule, atom: usize, fence: &[usize], id: &str) -> bool {
+    let a = &molecule.atoms()[atom];
+    matches!(id, "alkylamino" | "dialkylamino" | "alkoxy" | "alkylthio")
+        && a.charge == 0
+        && !a.aromatic
+        && molecule
+            .neighbors(atom)
+            .iter()
+            .all(|nb| fence.contains(&nb.atom) || molecule.atoms()[nb.atom].element == 1)
+}
+
 fn nearest_type(molecule: &Molecule, atom: usize, fence: &[usize]) -> Option<&'static str> {
     let a = &molecule.atoms()[atom];
     // Neighbours beyond the attachment: (element, bond order, neighbour charge).
