@@ -691,7 +691,12 @@ fn score_one(library: &Library, recognizer: &mut Recognizer<'_, '_>, found: &Fou
         Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus => {
             hammett(library, recognizer, found, class, &k, anchor, &mut account)
         }
-        Scale::Taft => taft(library, recognizer, found, &k, anchor, &mut account),
+        Scale::Taft => {
+            taft(library, recognizer, found, &k, anchor, &mut account);
+            if anchor != found.atom {
+                site_aryl_substituents(recognizer, found, &k, &mut account);
+            }
+        }
         Scale::None => {}
     }
     if (class.statistical_factor - 1.0).abs() > 1e-12 && class.statistical_factor > 0.0 {
@@ -1316,6 +1321,99 @@ fn push_coefficient_term(
 /// conjugated positions of naphthalenes and quinolines take sigma_p-type constants, the
 /// others sigma_m-type).
 #[allow(clippy::too_many_arguments)]
+/// For a Taft class scored from an anchor other than its site (a 3,4-dihydroquinazoline,
+/// scored from its amidine carbon): the substituents of an aromatic ring of the pattern that
+/// carries the site atom itself (the benzo ring on the imino N), in the two coefficient
+/// terms of the fused-ring substituents. Ortho and para to the site's ring atom they are in
+/// conjugation with the site and enter on sigma_p, meta on sigma_m; each class's fitted
+/// coefficients stand for the transmission (as for an N-aryl amidine, whose ring is scored
+/// by Hammett sigma from the imino N: common practice).
+fn site_aryl_substituents(
+    recognizer: &mut Recognizer<'_, '_>,
+    found: &FoundSite,
+    k: &Constants,
+    account: &mut Account,
+) {
+    let molecule = recognizer.molecule();
+    let Some(ar) = molecule
+        .neighbors(found.atom)
+        .iter()
+        .map(|n| n.atom)
+        .find(|&a| molecule.atoms()[a].aromatic && found.matched.contains(&a))
+    else {
+        return;
+    };
+    let Some(ring) = molecule
+        .rings()
+        .iter()
+        .filter(|r| {
+            r.len() == 6 && r.contains(&ar) && r.iter().all(|&a| molecule.atoms()[a].aromatic)
+        })
+        .min_by_key(|r| r.len())
+    else {
+        return;
+    };
+    let mut keep_out: Vec<usize> = Vec::with_capacity(ring.len() + found.matched.len());
+    keep_out.extend_from_slice(ring);
+    keep_out.extend_from_slice(&found.matched);
+    let dist = distances_within(molecule, ar, |b| ring.contains(&b));
+    let mut sum = [0.0; 2];
+    let mut groups = [String::new(), String::new()];
+    for &(r, d) in &dist[1..] {
+        for nb in molecule.neighbors(r) {
+            let x = nb.atom;
+            if keep_out.contains(&x)
+                || molecule.bonds()[nb.bond].in_ring
+                || molecule.atoms()[x].element == 1
+            {
+                continue;
+            }
+            let Some(rec) = recognizer.recognize(x, r, &keep_out) else {
+                continue;
+            };
+            let (i, pos) = if d % 2 == 1 {
+                (1, Position::Para)
+            } else {
+                (0, Position::Meta)
+            };
+            if let Some((sigma, _)) = hammett_sigma(rec.entry, pos, Scale::Hammett) {
+                sum[i] += sigma;
+                push_group(&mut groups[i], &rec.entry.name);
+            }
+        }
+    }
+    let parts = [
+        (
+            Counted::FusedSubstituents,
+            "substituents on the site's aryl ring, meta (",
+            "aryl ring on the site, meta (sigma_m)",
+            "their summed sigma_m",
+            k.fused_substituent_term,
+        ),
+        (
+            Counted::FusedConjugated,
+            "substituents on the site's aryl ring, ortho and para (",
+            "aryl ring on the site, ortho and para (sigma_p)",
+            "their summed sigma_p",
+            k.fused_conjugated_term,
+        ),
+    ];
+    for (i, (what, label, position, on, per)) in parts.into_iter().enumerate() {
+        if groups[i].is_empty() {
+            continue;
+        }
+        push_coefficient_term(
+            account,
+            what,
+            concat(&[label, &groups[i], ")"]).into(),
+            position,
+            on,
+            sum[i],
+            per,
+        );
+    }
+}
+
 fn fused_ring_substituents(
     recognizer: &mut Recognizer<'_, '_>,
     (ring, anchor, scale): (&[usize], usize, Scale),
