@@ -216,6 +216,11 @@ pub struct SubstituentEntry {
     pub sigma_p_minus: Option<f64>,
     /// sigma-plus (para).
     pub sigma_p_plus: Option<f64>,
+    /// sigma_n (para) of a donor: its constant where it cannot conjugate with the reaction
+    /// centre (van Bekkum, Verkade and Wepster); used for acid sites scored on sigma-minus,
+    /// whose anion is itself a donor.
+    #[serde(default)]
+    pub sigma_p_n: Option<f64>,
     /// Taft sigma* of the group bonded directly to the reaction centre, where tabulated.
     pub sigma_star: Option<f64>,
     /// Taft sigma* of X-CH2 (the group one methylene away), where tabulated.

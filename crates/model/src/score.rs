@@ -572,10 +572,12 @@ enum Used {
     Inductive,
     /// sigma_I derived from sigma_m and sigma_p, or a sigma* derived from that.
     FromHammett,
+    /// sigma_n (a para donor out of conjugation with the centre).
+    Normal,
 }
 
 impl Used {
-    const KINDS: usize = 6;
+    const KINDS: usize = 7;
 
     /// The constant behind the one [`hammett_sigma`] picked.
     fn of_hammett(which: Hammett) -> Used {
@@ -594,6 +596,7 @@ impl Used {
             Used::Plus => "sigma_p+",
             Used::Star => "sigma*",
             Used::Inductive => "sigma_I",
+            Used::Normal => "sigma_n",
         }
     }
 
@@ -1124,7 +1127,7 @@ fn hammett(
                         } else {
                             pos
                         };
-                        push_hammett(account, r.entry, pos, class.scale, k.rho, name, ortho);
+                        push_acid_hammett(account, r.entry, pos, class, k.rho, name, ortho);
                     }
                     account.terms.extend(correction);
                 }
@@ -1784,6 +1787,49 @@ fn push_counted(account: &mut Account, what: Counted, count: usize, per: f64, la
         ortho_substituent: false,
         counted: Some((what, count as f64)),
     });
+}
+
+/// [`push_hammett`], but a para donor with a tabulated sigma_n on an acid site scored on
+/// sigma-minus takes sigma_n: the anion (phenoxide, amide anion) is itself a strong donor,
+/// so the donor's own resonance with the ring is not felt at the centre (4-methoxyphenol
+/// 10.21 against phenol 9.99, from memory of CRC: sigma -0.10 at rho 2.23, where sigma_p is
+/// -0.27).
+///
+/// # Reference
+///
+/// van Bekkum, Verkade and Wepster, Recl. Trav. Chim. Pays-Bas 1959, 78, 815 (sigma_n);
+/// Biggs and Robinson, J. Chem. Soc. 1961, 388 (phenols) (from memory).
+#[allow(clippy::too_many_arguments)]
+fn push_acid_hammett(
+    account: &mut Account,
+    entry: &SubstituentEntry,
+    pos: Position,
+    class: &SiteClass,
+    rho: f64,
+    label: Text,
+    ortho_substituent: bool,
+) {
+    let normal = entry.sigma_p_n.filter(|_| {
+        pos == Position::Para && class.kind == Kind::Acid && class.scale == Scale::HammettMinus
+    });
+    match normal {
+        Some(sigma) => {
+            let position = Cow::Borrowed("para (sigma_n)");
+            account.substituent(label, sigma, rho, position, entry, Used::Normal);
+            if let Some(t) = account.terms.last_mut() {
+                t.ortho_substituent = ortho_substituent;
+            }
+        }
+        None => push_hammett(
+            account,
+            entry,
+            pos,
+            class.scale,
+            rho,
+            label,
+            ortho_substituent,
+        ),
+    }
 }
 
 fn push_hammett(
@@ -2688,6 +2734,7 @@ mod tests {
             Used::Star,
             Used::Inductive,
             Used::FromHammett,
+            Used::Normal,
         ];
         assert_eq!(kinds.len(), Used::KINDS);
         for source in &sources {
@@ -2746,6 +2793,7 @@ mod tests {
             sigma_p: None,
             sigma_p_minus: None,
             sigma_p_plus: None,
+            sigma_p_n: None,
             sigma_star: None,
             sigma_star_ch2: Some(1.0),
             sigma_i: None,
