@@ -1324,6 +1324,46 @@ fn push_coefficient_term(
 /// conjugated positions of naphthalenes and quinolines take sigma_p-type constants, the
 /// others sigma_m-type).
 #[allow(clippy::too_many_arguments)]
+/// The two ring-group coefficient terms over the groups found: those out of conjugation
+/// with the site on their summed sigma_m, those in conjugation on their summed sigma_p,
+/// each with the class's fitted coefficient and labelled by `labels` (label opening,
+/// position).
+fn push_ring_group_sums(
+    account: &mut Account,
+    k: &Constants,
+    labels: [(&str, &'static str); 2],
+    sum: [f64; 2],
+    groups: &[String; 2],
+) {
+    let parts = [
+        (
+            Counted::FusedSubstituents,
+            "their summed sigma_m",
+            k.fused_substituent_term,
+        ),
+        (
+            Counted::FusedConjugated,
+            "their summed sigma_p",
+            k.fused_conjugated_term,
+        ),
+    ];
+    for (i, (what, on, per)) in parts.into_iter().enumerate() {
+        if groups[i].is_empty() {
+            continue;
+        }
+        let (label, position) = labels[i];
+        push_coefficient_term(
+            account,
+            what,
+            concat(&[label, &groups[i], ")"]).into(),
+            position,
+            on,
+            sum[i],
+            per,
+        );
+    }
+}
+
 /// For a Taft class scored from an anchor other than its site (a 3,4-dihydroquinazoline,
 /// scored from its amidine carbon): the substituents of an aromatic ring of the pattern that
 /// carries the site atom itself (the benzo ring on the imino N), in the two coefficient
@@ -1385,36 +1425,22 @@ fn site_aryl_substituents(
             }
         }
     }
-    let parts = [
-        (
-            Counted::FusedSubstituents,
-            "substituents on the site's aryl ring, meta (",
-            "aryl ring on the site, meta (sigma_m)",
-            "their summed sigma_m",
-            k.fused_substituent_term,
-        ),
-        (
-            Counted::FusedConjugated,
-            "substituents on the site's aryl ring, ortho and para (",
-            "aryl ring on the site, ortho and para (sigma_p)",
-            "their summed sigma_p",
-            k.fused_conjugated_term,
-        ),
-    ];
-    for (i, (what, label, position, on, per)) in parts.into_iter().enumerate() {
-        if groups[i].is_empty() {
-            continue;
-        }
-        push_coefficient_term(
-            account,
-            what,
-            concat(&[label, &groups[i], ")"]).into(),
-            position,
-            on,
-            sum[i],
-            per,
-        );
-    }
+    push_ring_group_sums(
+        account,
+        k,
+        [
+            (
+                "substituents on the site's aryl ring, meta (",
+                "aryl ring on the site, meta (sigma_m)",
+            ),
+            (
+                "substituents on the site's aryl ring, ortho and para (",
+                "aryl ring on the site, ortho and para (sigma_p)",
+            ),
+        ],
+        sum,
+        &groups,
+    );
 }
 
 fn fused_ring_substituents(
@@ -1492,36 +1518,22 @@ fn fused_ring_substituents(
             }
         }
     }
-    let parts = [
-        (
-            Counted::FusedSubstituents,
-            "substituents on the fused ring (",
-            "fused ring, out of conjugation (sigma_m)",
-            "their summed sigma_m",
-            k.fused_substituent_term,
-        ),
-        (
-            Counted::FusedConjugated,
-            "conjugated substituents on the fused ring (",
-            "fused ring, in conjugation (sigma_p)",
-            "their summed sigma_p",
-            k.fused_conjugated_term,
-        ),
-    ];
-    for (i, (what, label, position, on, per)) in parts.into_iter().enumerate() {
-        if groups[i].is_empty() {
-            continue;
-        }
-        push_coefficient_term(
-            account,
-            what,
-            concat(&[label, &groups[i], ")"]).into(),
-            position,
-            on,
-            sum[i],
-            per,
-        );
-    }
+    push_ring_group_sums(
+        account,
+        k,
+        [
+            (
+                "substituents on the fused ring (",
+                "fused ring, out of conjugation (sigma_m)",
+            ),
+            (
+                "conjugated substituents on the fused ring (",
+                "fused ring, in conjugation (sigma_p)",
+            ),
+        ],
+        sum,
+        &groups,
+    );
     peri_hbond
 }
 
