@@ -1316,14 +1316,6 @@ fn push_coefficient_term(
     });
 }
 
-/// The substituents on the aromatic rings fused to the site's ring, in two coefficient
-/// terms: those an even number of bonds from the site's ring atom on their summed sigma_m,
-/// those an odd number away (in conjugation, as from ortho or para) on their summed sigma_p
-/// of the class's scale. Transmission across a ring fusion is weaker than within a ring and
-/// differs by position; each class's fitted coefficients stand for it (common practice:
-/// conjugated positions of naphthalenes and quinolines take sigma_p-type constants, the
-/// others sigma_m-type).
-#[allow(clippy::too_many_arguments)]
 /// The two ring-group coefficient terms over the groups found: those out of conjugation
 /// with the site on their summed sigma_m, those in conjugation on their summed sigma_p,
 /// each with the class's fitted coefficient and labelled by `labels` (label opening,
@@ -1443,6 +1435,14 @@ fn site_aryl_substituents(
     );
 }
 
+/// The substituents on the aromatic rings fused to the site's ring, in two coefficient
+/// terms: those an even number of bonds from the site's ring atom on their summed sigma_m,
+/// those an odd number away (in conjugation, as from ortho or para) on their summed sigma_p
+/// of the class's scale. Transmission across a ring fusion is weaker than within a ring and
+/// differs by position; each class's fitted coefficients stand for it (common practice:
+/// conjugated positions of naphthalenes and quinolines take sigma_p-type constants, the
+/// others sigma_m-type).
+#[allow(clippy::too_many_arguments)]
 fn fused_ring_substituents(
     recognizer: &mut Recognizer<'_, '_>,
     (ring, anchor, scale): (&[usize], usize, Scale),
