@@ -1378,14 +1378,9 @@ fn site_aryl_substituents(
     else {
         return;
     };
-    let Some(ring) = molecule
-        .rings()
-        .iter()
-        .filter(|r| {
-            r.len() == 6 && r.contains(&ar) && r.iter().all(|&a| molecule.atoms()[a].aromatic)
-        })
-        .min_by_key(|r| r.len())
-    else {
+    let Some(ring) = molecule.rings().iter().find(|r| {
+        r.len() == 6 && r.contains(&ar) && r.iter().all(|&a| molecule.atoms()[a].aromatic)
+    }) else {
         return;
     };
     let mut keep_out: Vec<usize> = Vec::with_capacity(ring.len() + found.matched.len());
@@ -2390,26 +2385,13 @@ fn aryl_ring_groups(
         ipso = next;
         before += 1;
     }
-    // Ring distance from the ipso carbon, by walking the ring both ways.
+    // Ring distance from the ipso carbon.
+    let ring_dist = distances_within(molecule, ipso, |b| ring.contains(&b));
     let ring_distance = |target: usize| -> usize {
-        let mut frontier = vec![ipso];
-        let mut done = vec![ipso];
-        for d in 0..=3 {
-            if frontier.contains(&target) {
-                return d;
-            }
-            let mut next = Vec::new();
-            for &a in &frontier {
-                for n in molecule.neighbors(a) {
-                    if ring.contains(&n.atom) && !done.contains(&n.atom) {
-                        done.push(n.atom);
-                        next.push(n.atom);
-                    }
-                }
-            }
-            frontier = next;
-        }
-        3
+        ring_dist
+            .iter()
+            .find(|&&(a, _)| a == target)
+            .map_or(3, |&(_, d)| d)
     };
     let mut sum = 0.0;
     let mut names = String::new();
