@@ -282,16 +282,18 @@ fn nearest_type(molecule: &Molecule, atom: usize, fence: &[usize]) -> Option<&'s
         })
         .collect();
     let double_to = |el: u8| beyond.iter().any(|&(e, o, _, _)| e == el && o == 2);
-    // A carbon beyond with two or more F on it (CF3, CF2CF3, CF2H).
-    let perfluoro = beyond.iter().any(|&(e, _, _, t)| {
-        e == 6
-            && molecule
-                .neighbors(t)
-                .iter()
-                .filter(|n| molecule.atoms()[n.atom].element == 9)
-                .count()
-                >= 2
-    });
+    // A carbon beyond with two or more F on it (CF3, CF2CF3, CF2H); asked only of O and S.
+    let perfluoro = || {
+        beyond.iter().any(|&(e, _, _, t)| {
+            e == 6
+                && molecule
+                    .neighbors(t)
+                    .iter()
+                    .filter(|n| molecule.atoms()[n.atom].element == 9)
+                    .count()
+                    >= 2
+        })
+    };
     let has = |el: u8| beyond.iter().any(|&(e, _, _, _)| e == el);
     // Oxygens that are terminal (=O or -O-) count as the "oxo" of an oxoacid group.
     let terminal_o = beyond
@@ -359,7 +361,7 @@ fn nearest_type(molecule: &Molecule, atom: usize, fence: &[usize]) -> Option<&'s
                 (e == 6 || e == 16) && o == 1 && carries_oxo(molecule, t, atom)
             }) {
                 Some("acyloxy")
-            } else if perfluoro {
+            } else if perfluoro() {
                 // A perfluoroalkoxy O (OCF2CF3, OCF2CHF2) withdraws as OCF3 does, not as an
                 // alkoxy donates: its fluorines take the O lone pairs.
                 Some("trifluoromethoxy")
@@ -373,7 +375,7 @@ fn nearest_type(molecule: &Molecule, atom: usize, fence: &[usize]) -> Option<&'s
                 .any(|&(e, _, _, t)| e == 8 && molecule.total_hydrogens(t) > 0);
             match terminal_o {
                 // SCF2CF3 as SCF3, for the reason given for the perfluoroalkoxy O.
-                0 if a.charge == 0 && perfluoro => Some("trifluoromethylthio"),
+                0 if a.charge == 0 && perfluoro() => Some("trifluoromethylthio"),
                 0 if a.charge == 0 => Some("alkylthio"),
                 0 => None,
                 1 => Some("sulfinyl"),
