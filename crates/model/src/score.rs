@@ -702,6 +702,24 @@ fn score_one(library: &Library, recognizer: &mut Recognizer<'_, '_>, found: &Fou
         }
         Scale::None => {}
     }
+    if class.kind == Kind::Acid
+        && class.id.starts_with("acid.carboxylic")
+        && chelating_carboxyl(recognizer.molecule(), found.atom).is_some()
+    {
+        account.terms.push(Term {
+            label: Cow::Borrowed(
+                "hydrogen bond from the neighbouring CO2H to the carboxylate (monoanion)",
+            ),
+            contribution: -COUPLING.monoanion_hbond,
+            source: Cow::Borrowed(MONOANION_HBOND_SOURCE),
+            sigma: None,
+            rho: None,
+            position: None,
+            role: TermRole::Correction,
+            ortho_substituent: false,
+            counted: None,
+        });
+    }
     if (class.statistical_factor - 1.0).abs() > 1e-12 && class.statistical_factor > 0.0 {
         let sign = match class.kind {
             Kind::Acid => -1.0,
@@ -2451,6 +2469,79 @@ fn aryl_ring_groups(
     });
 }
 
+/// Where the monoanion hydrogen-bond term comes from (its value is in
+/// `fragments/interactions.toml`).
+const MONOANION_HBOND_SOURCE: &str = "fragments/interactions.toml: monoanion_hbond, from the spreads of maleic (1.92 / 6.23) and diethylmalonic (2.21 / 7.29) acids, handbook values from memory";
+
+/// The hydroxyl O of the carboxylic acid that a carboxylic acid's hydroxyl O `o` is held
+/// beside, such that in the monoanion the CO2H left gives the carboxylate a strong
+/// intramolecular hydrogen bond: the two carboxyl carbons on the two atoms of a ring C=C
+/// (cis, in a ring of up to eight atoms), or on one quaternary carbon whose two other
+/// groups are both larger than methyl (dialkylmalonic acids; dimethylmalonic acid's spread
+/// is malonic acid's).
+///
+/// # Reference
+///
+/// McDaniel and Brown, Science 1953 (maleic acid); Eberson, Acta Chem. Scand. 1959
+/// (dialkylmalonic acids); both from memory.
+fn chelating_carboxyl(molecule: &Molecule, o: usize) -> Option<usize> {
+    let atoms = molecule.atoms();
+    // The carboxyl carbon of a CO2H (or CO2-) single-bonded O, and its one other neighbour.
+    let carboxyl = |o: usize| -> Option<(usize, usize)> {
+        if atoms[o].element != 8
+            || molecule.degree(o) != 1
+            || molecule.bonds()[molecule.neighbors(o)[0].bond].order != 1
+        {
+            return None;
+        }
+        let c = molecule.neighbors(o)[0].atom;
+        let nbs = molecule.neighbors(c);
+        if atoms[c].element != 6 || nbs.len() != 3 || !nbs.iter().any(|n| is_oxo(molecule, n)) {
+            return None;
+        }
+        let rest = nbs.iter().find(|n| n.atom != o && !is_oxo(molecule, n))?;
+        Some((c, rest.atom))
+    };
+    // The hydroxyl O of a CO2H on `atom` other than the one on carbon `c`.
+    let other_on = |atom: usize, c: usize| -> Option<usize> {
+        molecule.neighbors(atom).iter().find_map(|n| {
+            if n.atom == c {
+                return None;
+            }
+            molecule
+                .neighbors(n.atom)
+                .iter()
+                .find_map(|m| (carboxyl(m.atom) == Some((n.atom, atom))).then_some(m.atom))
+        })
+    };
+    let (c, alpha) = carboxyl(o)?;
+    if atoms[alpha].element != 6 || atoms[alpha].aromatic {
+        return None;
+    }
+    if molecule.degree(alpha) == 4 && molecule.total_hydrogens(alpha) == 0 {
+        let partner = other_on(alpha, c)?;
+        let partner_c = molecule.neighbors(partner)[0].atom;
+        let larger_than_methyl = molecule
+            .neighbors(alpha)
+            .iter()
+            .filter(|n| n.atom != c && n.atom != partner_c)
+            .all(|n| atoms[n.atom].element == 6 && molecule.degree(n.atom) > 1);
+        return larger_than_methyl.then_some(partner);
+    }
+    molecule.neighbors(alpha).iter().find_map(|n| {
+        let b = &molecule.bonds()[n.bond];
+        let beta = &atoms[n.atom];
+        (b.order == 2
+            && !b.aromatic
+            && b.in_ring
+            && beta.element == 6
+            && atoms[alpha].smallest_ring <= 8
+            && beta.smallest_ring <= 8)
+            .then(|| other_on(n.atom, usize::MAX))
+            .flatten()
+    })
+}
+
 /// The coupling constants of `fragments/interactions.toml`.
 #[derive(Debug, Deserialize)]
 struct Coupling {
@@ -2459,6 +2550,7 @@ struct Coupling {
     extra_path: f64,
     unlike: f64,
     max_bonds: usize,
+    monoanion_hbond: f64,
 }
 
 static COUPLING: Lazy<Coupling> = Lazy::new(|| {
@@ -2593,11 +2685,22 @@ pub fn interactions(library: &Library, molecule: &Molecule, sites: &[Site]) -> V
             // strongly than like ones repel at the same distance (see the header of
             // fragments/interactions.toml).
             let same_sign = sites[i].kind == sites[j].kind;
-            let value = if same_sign {
+            let mut value = if same_sign {
                 magnitude
             } else {
                 -magnitude * c.unlike
             };
+            // A CO2H pair whose monoanion is hydrogen-bonded: each site's own estimate
+            // already carries the bond (-h, the other CO2H neutral); the dianion has none, so
+            // the pair's energy with both charged takes back 2h.
+            if sites[i].kind == Kind::Acid
+                && sites[j].kind == Kind::Acid
+                && sites[i].class.starts_with("acid.carboxylic")
+                && sites[j].class.starts_with("acid.carboxylic")
+                && chelating_carboxyl(molecule, sites[i].atom) == Some(sites[j].atom)
+            {
+                value += 2.0 * c.monoanion_hbond;
+            }
             w[i][j] = value;
             w[j][i] = value;
         }
@@ -2768,6 +2871,62 @@ mod tests {
                 );
             }
         }
+    }
+
+    /// The parent and its scored sites.
+    fn parent_sites(smiles: &str) -> (Molecule, Vec<Site>) {
+        let read = mol::parse(smiles).expect("test SMILES parses");
+        let m = mol::standardize(&read)
+            .expect("test SMILES standardizes")
+            .parent;
+        let found = crate::find_sites(Library::builtin(), &m);
+        let sites = score_sites(Library::builtin(), &m, &found);
+        (m, sites)
+    }
+
+    #[test]
+    fn monoanion_hydrogen_bond_only_where_the_carboxyls_are_held_together() {
+        let h = COUPLING.monoanion_hbond;
+        let carries = |smiles: &str| -> Vec<bool> {
+            let (_, sites) = parent_sites(smiles);
+            sites
+                .iter()
+                .filter(|s| s.class.starts_with("acid.carboxylic"))
+                .map(|s| {
+                    s.terms.iter().any(|t| {
+                        t.label
+                            .starts_with("hydrogen bond from the neighbouring CO2H")
+                    })
+                })
+                .collect()
+        };
+        // Diethylmalonic acid and a ring C=C diacid: both carboxyls carry it.
+        assert_eq!(carries("CCC(CC)(C(=O)O)C(=O)O"), [true, true]);
+        assert_eq!(carries("OC(=O)C1=C(CCC1)C(O)=O"), [true, true]);
+        // Dimethylmalonic acid (malonic acid's spread), malonic and succinic acids, phthalic
+        // acid (aromatic), and a diacid on a ring single bond between two C=C: none.
+        for smiles in [
+            "CC(C)(C(=O)O)C(=O)O",
+            "OC(=O)CC(O)=O",
+            "OC(=O)CCC(O)=O",
+            "OC(=O)c1ccccc1C(O)=O",
+            "OC(=O)C1=CCCC=C1C(O)=O",
+        ] {
+            assert!(carries(smiles).iter().all(|c| !c), "{smiles}");
+        }
+        // The pair's both-charged energy takes the bond back twice; the same pair without
+        // the bond (dimethylmalonic acid) has the plain geminal coupling.
+        let (m, sites) = parent_sites("CCC(CC)(C(=O)O)C(=O)O");
+        let w = interactions(Library::builtin(), &m, &sites);
+        let (m0, sites0) = parent_sites("CC(C)(C(=O)O)C(=O)O");
+        let w0 = interactions(Library::builtin(), &m0, &sites0);
+        let pair = |sites: &[Site], w: &[Vec<f64>]| {
+            let idx: Vec<usize> = (0..sites.len())
+                .filter(|&i| sites[i].class.starts_with("acid.carboxylic"))
+                .collect();
+            w[idx[0]][idx[1]]
+        };
+        assert!((pair(&sites, &w) - pair(&sites0, &w0) - 2.0 * h).abs() < 1e-9);
     }
 
     #[test]
