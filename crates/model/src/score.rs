@@ -702,23 +702,22 @@ fn score_one(library: &Library, recognizer: &mut Recognizer<'_, '_>, found: &Fou
         }
         Scale::None => {}
     }
-    if class.kind == Kind::Acid
-        && class.id.starts_with("acid.carboxylic")
-        && chelating_carboxyl(recognizer.molecule(), found.atom).is_some()
-    {
-        account.terms.push(Term {
-            label: Cow::Borrowed(
-                "hydrogen bond from the neighbouring CO2H to the carboxylate (monoanion)",
-            ),
-            contribution: -COUPLING.monoanion_hbond,
-            source: Cow::Borrowed(MONOANION_HBOND_SOURCE),
-            sigma: None,
-            rho: None,
-            position: None,
-            role: TermRole::Correction,
-            ortho_substituent: false,
-            counted: None,
-        });
+    if class.kind == Kind::Acid && class.id.starts_with("acid.carboxylic") {
+        if let Some((_, h)) = chelating_carboxyl(recognizer.molecule(), found.atom) {
+            account.terms.push(Term {
+                label: Cow::Borrowed(
+                    "hydrogen bond from the neighbouring CO2H to the carboxylate (monoanion)",
+                ),
+                contribution: -h,
+                source: Cow::Borrowed(MONOANION_HBOND_SOURCE),
+                sigma: None,
+                rho: None,
+                position: None,
+                role: TermRole::Correction,
+                ortho_substituent: false,
+                counted: None,
+            });
+        }
     }
     if (class.statistical_factor - 1.0).abs() > 1e-12 && class.statistical_factor > 0.0 {
         let sign = match class.kind {
@@ -2471,20 +2470,21 @@ fn aryl_ring_groups(
 
 /// Where the monoanion hydrogen-bond term comes from (its value is in
 /// `fragments/interactions.toml`).
-const MONOANION_HBOND_SOURCE: &str = "fragments/interactions.toml: monoanion_hbond, from the spreads of maleic (1.92 / 6.23) and diethylmalonic (2.21 / 7.29) acids, handbook values from memory";
+const MONOANION_HBOND_SOURCE: &str = "fragments/interactions.toml: monoanion_hbond, from the spreads of maleic (1.92 / 6.23) and diethylmalonic (2.21 / 7.29) acids; monoanion_hbond_aromatic, from phthalic acid (2.94 / 5.43); handbook values from memory";
 
 /// The hydroxyl O of the carboxylic acid that a carboxylic acid's hydroxyl O `o` is held
 /// beside, such that in the monoanion the CO2H left gives the carboxylate a strong
 /// intramolecular hydrogen bond: the two carboxyl carbons on the two atoms of a ring C=C
 /// (cis, in a ring of up to eight atoms), or on one quaternary carbon whose two other
 /// groups are both larger than methyl (dialkylmalonic acids; dimethylmalonic acid's spread
-/// is malonic acid's).
+/// is malonic acid's), with the bond's strength `monoanion_hbond`; or on two neighbouring
+/// aromatic ring carbons (phthalic acids), with the weaker `monoanion_hbond_aromatic`.
 ///
 /// # Reference
 ///
 /// McDaniel and Brown, Science 1953 (maleic acid); Eberson, Acta Chem. Scand. 1959
 /// (dialkylmalonic acids); both from memory.
-fn chelating_carboxyl(molecule: &Molecule, o: usize) -> Option<usize> {
+fn chelating_carboxyl(molecule: &Molecule, o: usize) -> Option<(usize, f64)> {
     let atoms = molecule.atoms();
     // The carboxyl carbon of a CO2H (or CO2-) single-bonded O, and its one other neighbour.
     let carboxyl = |o: usize| -> Option<(usize, usize)> {
@@ -2515,8 +2515,18 @@ fn chelating_carboxyl(molecule: &Molecule, o: usize) -> Option<usize> {
         })
     };
     let (c, alpha) = carboxyl(o)?;
-    if atoms[alpha].element != 6 || atoms[alpha].aromatic {
+    if atoms[alpha].element != 6 {
         return None;
+    }
+    let held = COUPLING.monoanion_hbond;
+    if atoms[alpha].aromatic {
+        return molecule.neighbors(alpha).iter().find_map(|n| {
+            let ortho = molecule.bonds()[n.bond].aromatic && atoms[n.atom].element == 6;
+            ortho
+                .then(|| other_on(n.atom, usize::MAX))
+                .flatten()
+                .map(|p| (p, COUPLING.monoanion_hbond_aromatic))
+        });
     }
     if molecule.degree(alpha) == 4 && molecule.total_hydrogens(alpha) == 0 {
         let partner = other_on(alpha, c)?;
@@ -2526,7 +2536,7 @@ fn chelating_carboxyl(molecule: &Molecule, o: usize) -> Option<usize> {
             .iter()
             .filter(|n| n.atom != c && n.atom != partner_c)
             .all(|n| atoms[n.atom].element == 6 && molecule.degree(n.atom) > 1);
-        return larger_than_methyl.then_some(partner);
+        return larger_than_methyl.then_some((partner, held));
     }
     molecule.neighbors(alpha).iter().find_map(|n| {
         let b = &molecule.bonds()[n.bond];
@@ -2539,6 +2549,7 @@ fn chelating_carboxyl(molecule: &Molecule, o: usize) -> Option<usize> {
             && beta.smallest_ring <= 8)
             .then(|| other_on(n.atom, usize::MAX))
             .flatten()
+            .map(|p| (p, held))
     })
 }
 
@@ -2551,6 +2562,7 @@ struct Coupling {
     unlike: f64,
     max_bonds: usize,
     monoanion_hbond: f64,
+    monoanion_hbond_aromatic: f64,
 }
 
 static COUPLING: Lazy<Coupling> = Lazy::new(|| {
@@ -2697,9 +2709,12 @@ pub fn interactions(library: &Library, molecule: &Molecule, sites: &[Site]) -> V
                 && sites[j].kind == Kind::Acid
                 && sites[i].class.starts_with("acid.carboxylic")
                 && sites[j].class.starts_with("acid.carboxylic")
-                && chelating_carboxyl(molecule, sites[i].atom) == Some(sites[j].atom)
             {
-                value += 2.0 * c.monoanion_hbond;
+                if let Some((partner, h)) = chelating_carboxyl(molecule, sites[i].atom) {
+                    if partner == sites[j].atom {
+                        value += 2.0 * h;
+                    }
+                }
             }
             w[i][j] = value;
             w[j][i] = value;
@@ -2903,13 +2918,14 @@ mod tests {
         // Diethylmalonic acid and a ring C=C diacid: both carboxyls carry it.
         assert_eq!(carries("CCC(CC)(C(=O)O)C(=O)O"), [true, true]);
         assert_eq!(carries("OC(=O)C1=C(CCC1)C(O)=O"), [true, true]);
-        // Dimethylmalonic acid (malonic acid's spread), malonic and succinic acids, phthalic
-        // acid (aromatic), and a diacid on a ring single bond between two C=C: none.
+        assert_eq!(carries("OC(=O)c1ccccc1C(O)=O"), [true, true]);
+        // Dimethylmalonic acid (malonic acid's spread), malonic and succinic acids,
+        // isophthalic acid, and a diacid on a ring single bond between two C=C: none.
         for smiles in [
             "CC(C)(C(=O)O)C(=O)O",
             "OC(=O)CC(O)=O",
             "OC(=O)CCC(O)=O",
-            "OC(=O)c1ccccc1C(O)=O",
+            "OC(=O)c1cccc(c1)C(O)=O",
             "OC(=O)C1=CCCC=C1C(O)=O",
         ] {
             assert!(carries(smiles).iter().all(|c| !c), "{smiles}");
