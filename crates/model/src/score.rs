@@ -1996,6 +1996,73 @@ fn derived_label(entry: &SubstituentEntry) -> &'static str {
 
 /// The position text of a chain term `depth` saturated carbons out (`1 bond`, `2 bonds`...),
 /// with how its sigma* was derived where it was.
+/// Longest route followed from a Taft anchor: the walk's farthest group (`TAFT_MAX_DEPTH`
+/// + 1 bonds) by four more bonds, past which a route's share (0.4^4 = 0.026 of the
+/// shortest's) is below the method's resolution.
+const ROUTE_MAX: usize = TAFT_MAX_DEPTH + 5;
+
+/// How much a polar effect reaches each atom from a Taft anchor along every route through
+/// the bonds: the sum over the simple paths of up to [`ROUTE_MAX`] bonds of the fall-off
+/// factor to the power of their length.
+///
+/// # Reference
+///
+/// The inductive effect is relayed along each bond path and the paths add: Roberts and
+/// Moreland, J. Am. Chem. Soc. 1953 (4-substituted bicyclo[2.2.2]octane-1-carboxylic acids,
+/// three paths); Perrin, Dempsey and Serjeant 1981 on ring compounds (both from memory).
+struct RouteWeights {
+    /// Per atom: the summed weight of its routes, and its distance in bonds (`u32::MAX` when
+    /// beyond [`ROUTE_MAX`]).
+    atoms: Vec<(f64, u32)>,
+}
+
+impl RouteWeights {
+    fn from(molecule: &Molecule, anchor: usize) -> RouteWeights {
+        let mut atoms = vec![(0.0, u32::MAX); molecule.atoms().len()];
+        // Depth-first over simple paths: (atom, index of the next neighbour to try).
+        let mut path: Vec<(usize, usize)> = vec![(anchor, 0)];
+        let mut on = vec![false; molecule.atoms().len()];
+        on[anchor] = true;
+        loop {
+            let len = path.len();
+            let Some((a, next)) = path.last_mut() else {
+                break;
+            };
+            let nbs = molecule.neighbors(*a);
+            if *next >= nbs.len() || len > ROUTE_MAX {
+                on[*a] = false;
+                path.pop();
+                continue;
+            }
+            let b = nbs[*next].atom;
+            *next += 1;
+            if on[b] || molecule.atoms()[b].element == 1 {
+                continue;
+            }
+            let len = len as u32;
+            let slot = &mut atoms[b];
+            slot.0 += TAFT_FALLOFF.powi(len as i32);
+            slot.1 = slot.1.min(len);
+            on[b] = true;
+            path.push((b, 0));
+        }
+        RouteWeights { atoms }
+    }
+
+    /// The factor on a group at `atom`, `bonds` from the anchor along the walk: its routes'
+    /// summed weight over the weight of the one shortest route (1 for a group reached by a
+    /// single route, 2 for the 4-position of a piperidine). A group the walk reached by a
+    /// longer way than the shortest keeps 1.
+    fn factor(&self, atom: usize, bonds: usize) -> f64 {
+        let (weight, distance) = self.atoms[atom];
+        if distance as usize == bonds && weight > 0.0 {
+            weight / TAFT_FALLOFF.powi(bonds as i32)
+        } else {
+            1.0
+        }
+    }
+}
+
 fn taft_position(depth: usize, derived: Option<&'static str>) -> Text {
     const PLAIN: [&str; 5] = ["1 bond", "2 bonds", "3 bonds", "4 bonds", "5 bonds"];
     match (PLAIN.get(depth), derived) {
@@ -2179,6 +2246,7 @@ fn taft(
     // from memory of Perrin 1965: one alkenyl's worth, not two).
     let mut claimed: Vec<usize> = Vec::new();
     let mut fence: Vec<usize> = Vec::with_capacity(visited.capacity());
+    let routes = RouteWeights::from(molecule, anchor);
     loop {
         let take_parent = match (from_parent.last(), queue.front()) {
             (Some(p), Some(q)) => p.2 <= q.2,
@@ -2288,11 +2356,18 @@ fn taft(
         }
         match taft_sigma(r.entry, depth) {
             Some((sigma, derived)) => {
+                let factor = routes.factor(atom, depth + 1);
+                let mut position = taft_position(depth, derived.then(|| derived_label(r.entry)));
+                if factor > 1.0005 {
+                    // The explanation names the factor, so that sigma x rho still reads as the
+                    // contribution.
+                    position = Cow::Owned(format!("{position}, all routes x {factor:.2}"));
+                }
                 account.substituent(
                     account.texts.name(r.entry),
-                    sigma,
+                    sigma * factor,
                     k.rho,
-                    taft_position(depth, derived.then(|| derived_label(r.entry))),
+                    position,
                     r.entry,
                     match (derived, r.entry.sigma_i.is_some()) {
                         (false, _) => Used::Star,
@@ -2943,6 +3018,24 @@ mod tests {
             w[idx[0]][idx[1]]
         };
         assert!((pair(&sites, &w) - pair(&sites0, &w0) - 2.0 * h).abs() < 1e-9);
+    }
+
+    #[test]
+    fn route_factor_counts_every_path_through_the_bonds() {
+        let factor = |smiles: &str, anchor: usize, atom: usize, bonds: usize| {
+            let m = mol::parse(smiles).expect("test SMILES parses");
+            RouteWeights::from(&m, anchor).factor(atom, bonds)
+        };
+        // Piperidine's 4-position: two routes of three bonds from the N, and nothing longer.
+        assert!((factor("N1CCC(O)CC1", 0, 4, 4) - 2.0).abs() < 1e-9);
+        // Its 3-position: one route of two bonds and one of four (0.4^2 more).
+        assert!((factor("N1CC(O)CCC1", 0, 3, 3) - 1.16).abs() < 1e-9);
+        // An open chain: one route.
+        assert!((factor("NCCCO", 0, 4, 4) - 1.0).abs() < 1e-12);
+        // The far bridgehead of bicyclo[2.2.2]octane: three routes.
+        assert!((factor("C12CCC(CC1)CC2", 0, 3, 3) - 3.0).abs() < 1e-9);
+        // A group reached the long way round keeps 1.
+        assert!((factor("N1CC(O)CCC1", 0, 3, 5) - 1.0).abs() < 1e-12);
     }
 
     #[test]
