@@ -2100,6 +2100,28 @@ fn is_pattern_amine_n(molecule: &Molecule, matched: &[usize], atom: usize) -> bo
             })
 }
 
+/// Whether the pattern atom `atom` is a ring carbon with a double bond (C=C, C=O) in the
+/// ring of a saturated amine anchor, not bonded to it: such a ring's parent value is the
+/// saturated ring's, and the double bond is scored by the walk as a group.
+fn is_walked_ring_unsaturation(
+    molecule: &Molecule,
+    found: &FoundSite,
+    anchor: usize,
+    atom: usize,
+) -> bool {
+    let a = &molecule.atoms()[atom];
+    atom != anchor
+        && a.element == 6
+        && !a.aromatic
+        && a.hybridization != Hybridization::Sp3
+        && molecule.bond_between(atom, anchor).is_none()
+        && is_pattern_amine_n(molecule, &found.matched, anchor)
+        && molecule
+            .rings()
+            .iter()
+            .any(|r| r.contains(&anchor) && r.contains(&atom) && r.len() <= 7)
+}
+
 fn is_plain_carbon(molecule: &Molecule, atom: usize) -> bool {
     let a = &molecule.atoms()[atom];
     a.element == 6 && a.charge == 0 && !a.aromatic && a.hybridization == Hybridization::Sp3
@@ -2219,7 +2241,16 @@ fn taft(
     // Atoms enter once each: room for them all, so that the walk never moves the list.
     let mut visited: Vec<usize> =
         Vec::with_capacity(found.matched.len().max(molecule.atoms().len()) + 1);
-    visited.extend_from_slice(&found.matched);
+    // The ring C=C or C=O of a ring amine class (a 1,2,3,6-tetrahydropyridine, a
+    // 4-piperidone) is part of the pattern but of no parent value (the class's parent is the
+    // saturated ring): it is left to the walk, which reaches it from the ring carbon before it.
+    visited.extend(
+        found
+            .matched
+            .iter()
+            .copied()
+            .filter(|&a| !is_walked_ring_unsaturation(molecule, found, anchor, a)),
+    );
     if !visited.contains(&anchor) {
         visited.push(anchor);
     }
