@@ -446,6 +446,74 @@ fn fit_keeping_sign(pts: &[&Point], published: Fit, fixed_rho: bool, parent_prio
     }
 }
 
+/// The published constants of a class, as a fit, and the weight of the prior on its parent.
+fn published_fit(c: &SiteClass) -> (Fit, f64) {
+    let fit = Fit {
+        parent: c.parent_pka,
+        rho: c.rho,
+        corrections: class_corrections(c),
+    };
+    let prior = if c.scale == Scale::None {
+        PARENT_PRIOR
+    } else {
+        SCALED_PARENT_PRIOR
+    };
+    (fit, prior)
+}
+
+/// The classes a correction's pooled prior is shared by: one kind (acid or base) on one
+/// scale.
+fn family(c: &SiteClass) -> (Kind, Scale) {
+    (c.kind, c.scale)
+}
+
+/// Per family, per correction column: the fits of the family's classes averaged with the
+/// weight of what each class's data hold on the column (its sum of squares), and that
+/// weight's total.
+type Pooled = Vec<((Kind, Scale), [(f64, f64); N_CORRECTIONS])>;
+
+/// Partial pooling of the class corrections that a class has no published value for (0:
+/// not calibrated): each class is fitted alone first, and the family's information-weighted
+/// mean of those fits becomes the value its prior pulls towards, in place of 0. A class
+/// with few points on a column (a pyridine class with two 2-methyl rows) then borrows the
+/// family's value rather than none; a class with many keeps its own.
+///
+/// # Reference
+///
+/// Empirical-Bayes shrinkage of group estimates towards their pooled mean (Efron and Morris,
+/// J. Am. Stat. Assoc. 1975, 70, 311; from memory). Against shrinking towards 0 (5-fold CV
+/// MAE, acids / bases): 0.7291 / 0.6764 -> 0.7260 / 0.6713. Families of one kind, scale and
+/// id prefix (acid.phenol, base.pyridine) gave 0.7298 / 0.6668, and either family without
+/// the class's own fit in its mean 0.7281 / 0.6720 (kind and scale) or 0.7292 / 0.6704 (id
+/// prefix): the family was chosen by looking at this cross-validation, so its figures are
+/// slightly optimistic.
+fn pooled_corrections(published: &Library, by_class: &BTreeMap<usize, Vec<&Point>>) -> Pooled {
+    let mut pooled = Pooled::new();
+    for (&class, cp) in by_class {
+        let c = &published.classes[class];
+        if cp.len() < MIN_POINTS || !c.calibrate {
+            continue;
+        }
+        let (start, prior) = published_fit(c);
+        let fit = fit_keeping_sign(cp, start, c.fixed_rho, prior);
+        let key = family(c);
+        let at = match pooled.iter().position(|(k, _)| *k == key) {
+            Some(at) => at,
+            None => {
+                pooled.push((key, [(0.0, 0.0); N_CORRECTIONS]));
+                pooled.len() - 1
+            }
+        };
+        let columns = &mut pooled[at].1;
+        for (k, (sum, weight)) in columns.iter_mut().enumerate() {
+            let information: f64 = cp.iter().map(|pt| pt.corrections[k].powi(2)).sum();
+            *sum += information * fit.corrections[k];
+            *weight += information;
+        }
+    }
+    pooled
+}
+
 /// Calibrates a copy of `published` on `data`; returns it with fitted classes changed.
 fn calibrate(
     published: &Library,
@@ -459,23 +527,23 @@ fn calibrate(
         for p in &pts {
             by_class.entry(p.class).or_default().push(p);
         }
+        let pooled = pooled_corrections(published, &by_class);
         stats.clear();
         for (class, cp) in by_class {
-            if cp.len() < MIN_POINTS || !published.classes[class].calibrate {
+            let pub_class = &published.classes[class];
+            if cp.len() < MIN_POINTS || !pub_class.calibrate {
                 continue;
             }
-            let pub_class = &published.classes[class];
-            let published_fit = Fit {
-                parent: pub_class.parent_pka,
-                rho: pub_class.rho,
-                corrections: class_corrections(pub_class),
-            };
-            let prior = if pub_class.scale == Scale::None {
-                PARENT_PRIOR
-            } else {
-                SCALED_PARENT_PRIOR
-            };
-            let fit = fit_keeping_sign(&cp, published_fit, pub_class.fixed_rho, prior);
+            let (mut start, prior) = published_fit(pub_class);
+            let key = family(pub_class);
+            if let Some((_, columns)) = pooled.iter().find(|(k, _)| *k == key) {
+                for (value, &(sum, weight)) in start.corrections.iter_mut().zip(columns) {
+                    if *value == 0.0 && weight > 1e-9 {
+                        *value = sum / weight;
+                    }
+                }
+            }
+            let fit = fit_keeping_sign(&cp, start, pub_class.fixed_rho, prior);
             let rmse = (cp
                 .iter()
                 .map(|p| (p.y - fit.predict(p)).powi(2))
@@ -759,6 +827,59 @@ mod tests {
             "rho held at 0.9: {}",
             kept.rho
         );
+    }
+
+    #[test]
+    fn pooled_corrections_average_the_family_by_information() {
+        // Two calibrated base classes on one scale, each of whose points carry column 0
+        // (sigma values 0 so that only the correction is read): one with a correction of 1.0
+        // on a column value of 1, one of 3.0 on a column value of 2 (four times the
+        // information). Their pooled value leans to the second.
+        let lib = Library::builtin();
+        let scale = lib.classes[0].scale;
+        let kind = lib.classes[0].kind;
+        let same: Vec<usize> = (0..lib.classes.len())
+            .filter(|&i| {
+                let c = &lib.classes[i];
+                c.scale == scale
+                    && c.kind == kind
+                    && c.calibrate
+                    && class_corrections(c)[0] == 0.0
+                    && !c.fixed_rho
+            })
+            .take(2)
+            .collect();
+        assert_eq!(same.len(), 2, "two classes of one family");
+        let make = |class: usize, column: f64, value: f64| -> Vec<Point> {
+            (0..40)
+                .map(|_| {
+                    let mut corrections = [0.0; N_CORRECTIONS];
+                    corrections[0] = column;
+                    let parent = lib.classes[class].parent_pka;
+                    Point {
+                        class,
+                        x: 0.0,
+                        corrections,
+                        y: parent + value * column,
+                    }
+                })
+                .collect()
+        };
+        let (a, b) = (make(same[0], 1.0, 1.0), make(same[1], 2.0, 3.0));
+        let mut by_class: BTreeMap<usize, Vec<&Point>> = BTreeMap::new();
+        by_class.insert(same[0], a.iter().collect());
+        by_class.insert(same[1], b.iter().collect());
+        let pooled = pooled_corrections(lib, &by_class);
+        let (_, columns) = pooled
+            .iter()
+            .find(|(k, _)| *k == (kind, scale))
+            .expect("the family is pooled");
+        let (sum, weight) = columns[0];
+        assert!((weight - 200.0).abs() < 1e-9, "information 40 x 1 + 40 x 4");
+        // Each class's own fit is shrunk a little towards 0 by its prior: the pooled value
+        // lies just under the exact (40 x 1.0 + 160 x 3.0) / 200 = 2.6.
+        let mean = sum / weight;
+        assert!(mean > 2.3 && mean < 2.6, "pooled {mean}");
     }
 
     #[test]
