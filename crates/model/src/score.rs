@@ -1994,11 +1994,9 @@ fn derived_label(entry: &SubstituentEntry) -> &'static str {
     }
 }
 
-/// The position text of a chain term `depth` saturated carbons out (`1 bond`, `2 bonds`...),
-/// with how its sigma* was derived where it was.
-/// Longest route followed from a Taft anchor: the walk's farthest group (`TAFT_MAX_DEPTH`
-/// + 1 bonds) by four more bonds, past which a route's share (0.4^4 = 0.026 of the
-/// shortest's) is below the method's resolution.
+/// Longest route followed from a Taft anchor: four bonds past the walk's farthest group
+/// (`TAFT_MAX_DEPTH` plus one bonds out), beyond which a route's share (0.4^4 = 0.026 of
+/// the shortest's) is below the method's resolution.
 const ROUTE_MAX: usize = TAFT_MAX_DEPTH + 5;
 
 /// How much a polar effect reaches each atom from a Taft anchor along every route through
@@ -2063,6 +2061,8 @@ impl RouteWeights {
     }
 }
 
+/// The position text of a chain term `depth` saturated carbons out (`1 bond`, `2 bonds`...),
+/// with how its sigma* was derived where it was.
 fn taft_position(depth: usize, derived: Option<&'static str>) -> Text {
     const PLAIN: [&str; 5] = ["1 bond", "2 bonds", "3 bonds", "4 bonds", "5 bonds"];
     match (PLAIN.get(depth), derived) {
