@@ -185,6 +185,12 @@ pub struct SiteClass {
     /// Where `geminal_interaction` comes from.
     #[serde(default)]
     pub geminal_source: String,
+    /// For carboxylic acid classes whose parent is a measured first constant that already
+    /// holds the monoanion's intramolecular hydrogen bond (maleic-type, dialkylmalonic
+    /// acids): the site's estimate takes no hydrogen-bond term of its own, while the pair's
+    /// both-charged energy still takes it back (`fragments/interactions.toml`).
+    #[serde(default)]
+    pub monoanion_hbond_in_parent: bool,
 }
 
 fn one() -> f64 {

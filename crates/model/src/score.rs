@@ -702,7 +702,10 @@ fn score_one(library: &Library, recognizer: &mut Recognizer<'_, '_>, found: &Fou
         }
         Scale::None => {}
     }
-    if class.kind == Kind::Acid && class.id.starts_with("acid.carboxylic") {
+    if class.kind == Kind::Acid
+        && class.id.starts_with("acid.carboxylic")
+        && !class.monoanion_hbond_in_parent
+    {
         if let Some((_, h)) = chelating_carboxyl(recognizer.molecule(), found.atom) {
             account.terms.push(Term {
                 label: Cow::Borrowed(
@@ -2582,8 +2585,8 @@ const MONOANION_HBOND_SOURCE: &str = "fragments/interactions.toml: monoanion_hbo
 /// beside, such that in the monoanion the CO2H left gives the carboxylate a strong
 /// intramolecular hydrogen bond: the two carboxyl carbons on the two atoms of a ring C=C
 /// (cis, in a ring of up to eight atoms), or on one quaternary carbon whose two other
-/// groups are both larger than methyl (dialkylmalonic acids; dimethylmalonic acid's spread
-/// is malonic acid's), with the bond's strength `monoanion_hbond`; or on two neighbouring
+/// groups are carbons, one at least larger than methyl (dialkylmalonic acids;
+/// dimethylmalonic acid's spread is malonic acid's), with the bond's strength `monoanion_hbond`; or on two neighbouring
 /// aromatic ring carbons (phthalic acids), with the weaker `monoanion_hbond_aromatic`.
 ///
 /// # Reference
@@ -2641,7 +2644,13 @@ fn chelating_carboxyl(molecule: &Molecule, o: usize) -> Option<(usize, f64)> {
             .neighbors(alpha)
             .iter()
             .filter(|n| n.atom != c && n.atom != partner_c)
-            .all(|n| atoms[n.atom].element == 6 && molecule.degree(n.atom) > 1);
+            .fold((true, false), |(all_carbon, larger), n| {
+                (
+                    all_carbon && atoms[n.atom].element == 6,
+                    larger || molecule.degree(n.atom) > 1,
+                )
+            });
+        let larger_than_methyl = larger_than_methyl.0 && larger_than_methyl.1;
         return larger_than_methyl.then_some((partner, held));
     }
     molecule.neighbors(alpha).iter().find_map(|n| {
@@ -3021,10 +3030,12 @@ mod tests {
                 })
                 .collect()
         };
-        // Diethylmalonic acid and a ring C=C diacid: both carboxyls carry it.
-        assert_eq!(carries("CCC(CC)(C(=O)O)C(=O)O"), [true, true]);
-        assert_eq!(carries("OC(=O)C1=C(CCC1)C(O)=O"), [true, true]);
+        // Phthalic acid: both carboxyls carry it.
         assert_eq!(carries("OC(=O)c1ccccc1C(O)=O"), [true, true]);
+        // Diethylmalonic acid and a ring C=C diacid: their classes' parents are measured
+        // first constants that hold the bond already (monoanion_hbond_in_parent).
+        assert_eq!(carries("CCC(CC)(C(=O)O)C(=O)O"), [false, false]);
+        assert_eq!(carries("OC(=O)C1=C(CCC1)C(O)=O"), [false, false]);
         // Dimethylmalonic acid (malonic acid's spread), malonic and succinic acids,
         // isophthalic acid, and a diacid on a ring single bond between two C=C: none.
         for smiles in [
@@ -3036,8 +3047,8 @@ mod tests {
         ] {
             assert!(carries(smiles).iter().all(|c| !c), "{smiles}");
         }
-        // The pair's both-charged energy takes the bond back twice; the same pair without
-        // the bond (dimethylmalonic acid) has the plain geminal coupling.
+        // Either way, the pair's both-charged energy takes the bond back twice; the same pair
+        // without the bond (dimethylmalonic acid) has the plain geminal coupling.
         let (m, sites) = parent_sites("CCC(CC)(C(=O)O)C(=O)O");
         let w = interactions(Library::builtin(), &m, &sites);
         let (m0, sites0) = parent_sites("CC(C)(C(=O)O)C(=O)O");
