@@ -2668,6 +2668,16 @@ fn chelating_carboxyl(molecule: &Molecule, o: usize) -> Option<(usize, f64)> {
     })
 }
 
+/// Whether atoms `a` and `b` are the two ends of one X=C-Y unit: both bonded to one atom,
+/// one of them by a double bond.
+fn tautomeric_ends(molecule: &Molecule, a: usize, b: usize) -> bool {
+    molecule.neighbors(a).iter().any(|na| {
+        molecule.bond_between(na.atom, b).is_some_and(|bb| {
+            molecule.bonds()[na.bond].order == 2 || molecule.bonds()[bb].order == 2
+        })
+    })
+}
+
 /// The coupling constants of `fragments/interactions.toml`.
 #[derive(Debug, Deserialize)]
 struct Coupling {
@@ -2814,6 +2824,12 @@ pub fn interactions(library: &Library, molecule: &Molecule, sites: &[Site]) -> V
             let same_sign = sites[i].kind == sites[j].kind;
             let mut value = if same_sign {
                 magnitude
+            } else if d == 2 && tautomeric_ends(molecule, sites[i].atom, sites[j].atom) {
+                // The two ends of one X=C-Y group (an amide's O and its N-H): the "zwitterion"
+                // with the base end protonated and the acid end deprotonated is the other
+                // tautomer of the neutral group (an imidic acid), not a doubly ionized form,
+                // and each site's estimate already describes its end of the same group.
+                0.0
             } else {
                 -magnitude * c.unlike
             };
@@ -3078,6 +3094,26 @@ mod tests {
         assert!((factor("C12CCC(CC1)CC2", 0, 3, 3) - 3.0).abs() < 1e-9);
         // A group reached the long way round keeps 1.
         assert!((factor("N1CC(O)CCC1", 0, 3, 5) - 1.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn the_two_ends_of_one_amide_group_are_not_coupled() {
+        // Saccharin: the carbonyl O (a weak base) and the N-H (the acid) of one C(=O)-N.
+        let (m, sites) = parent_sites("O=C1NS(=O)(=O)c2ccccc21");
+        let w = interactions(Library::builtin(), &m, &sites);
+        let o = sites
+            .iter()
+            .position(|s| s.kind == Kind::Base)
+            .expect("the C=O");
+        let n = sites
+            .iter()
+            .position(|s| s.kind == Kind::Acid)
+            .expect("the N-H");
+        assert_eq!(w[o][n], 0.0);
+        // Glycine's ammonium and carboxylate are not one group: they attract.
+        let (m, sites) = parent_sites("NCC(=O)O");
+        let w = interactions(Library::builtin(), &m, &sites);
+        assert!(w[0][1] < 0.0, "{}", w[0][1]);
     }
 
     #[test]
