@@ -3045,6 +3045,36 @@ mod tests {
     }
 
     #[test]
+    fn halogen_beside_a_ring_n_base_takes_its_ring_n_constant() {
+        let chloro = Library::builtin()
+            .substituents
+            .iter()
+            .find(|e| e.id == "chloro")
+            .expect("chloro entry");
+        let ring_n = chloro.sigma_i_ring_n.expect("chloro has sigma_i_ring_n");
+        let pyridine_site = |smiles: &str| {
+            let (_, sites) = parent_sites(smiles);
+            sites
+                .into_iter()
+                .find(|s| s.class == "base.pyridine")
+                .expect("a pyridine site")
+        };
+        let sigma_of = |site: &Site, label: &str| {
+            site.terms
+                .iter()
+                .find(|t| t.label.as_ref() == label)
+                .and_then(|t| t.sigma)
+        };
+        let ortho = pyridine_site("Clc1ccccn1");
+        let meta = pyridine_site("Clc1cccnc1");
+        assert_eq!(sigma_of(&ortho, "2-Cl"), Some(ring_n));
+        assert_eq!(sigma_of(&meta, "3-Cl"), chloro.sigma_m);
+        // 2-chloropyridine 0.72 against 3-chloropyridine 2.84 (from memory of CRC): the
+        // halogen beside the N lowers it far more.
+        assert!(ortho.pka + 1.0 < meta.pka, "{} {}", ortho.pka, meta.pka);
+    }
+
+    #[test]
     fn monoanion_hydrogen_bond_only_where_the_carboxyls_are_held_together() {
         let h = COUPLING.monoanion_hbond;
         let carries = |smiles: &str| -> Vec<bool> {
