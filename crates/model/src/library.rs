@@ -235,6 +235,11 @@ pub struct SubstituentEntry {
     /// sigma_m and sigma_p by the scorer).
     #[serde(default)]
     pub sigma_i: Option<f64>,
+    /// The group's inductive constant on the ring carbon beside a pyridine-type ring N base
+    /// site, where it differs from sigma_I (derived from the pKa of the 2-substituted
+    /// pyridine); the scorer uses sigma_I where it is absent.
+    #[serde(default)]
+    pub sigma_i_ring_n: Option<f64>,
     /// The group's first atom carries a C=O or N-O that takes an intramolecular hydrogen
     /// bond with a site ortho to it (salicylaldehyde, 2-nitrophenol type).
     #[serde(default)]

@@ -574,10 +574,12 @@ enum Used {
     FromHammett,
     /// sigma_n (a para donor out of conjugation with the centre).
     Normal,
+    /// The inductive constant beside a ring N base site (`sigma_i_ring_n`).
+    RingN,
 }
 
 impl Used {
-    const KINDS: usize = 7;
+    const KINDS: usize = 8;
 
     /// The constant behind the one [`hammett_sigma`] picked.
     fn of_hammett(which: Hammett) -> Used {
@@ -597,6 +599,7 @@ impl Used {
             Used::Star => "sigma*",
             Used::Inductive => "sigma_I",
             Used::Normal => "sigma_n",
+            Used::RingN => "sigma_i_ring_n",
         }
     }
 
@@ -1113,7 +1116,11 @@ fn hammett(
                     let name = account.texts.numbered(number, r.entry);
                     if ortho {
                         if let Some((s_i, _)) = sigma_inductive(r.entry) {
-                            ortho_field += s_i;
+                            ortho_field += if site_in_ring && class.kind == Kind::Base {
+                                r.entry.sigma_i_ring_n.unwrap_or(s_i)
+                            } else {
+                                s_i
+                            };
                             push_group(&mut ortho_field_groups, &name);
                             if let Some(s_p) = r.entry.sigma_p {
                                 ortho_resonance += s_p - s_i;
@@ -1129,6 +1136,8 @@ fn hammett(
                         if let Some(t) = account.terms.last_mut() {
                             t.ortho_substituent = false;
                         }
+                    } else if ortho && site_in_ring && class.kind == Kind::Base {
+                        push_ortho_ring_n(account, r.entry, k.rho, name);
                     } else if ortho && site_in_ring {
                         push_ortho_inductive(account, r.entry, k.rho, name);
                     } else {
@@ -1957,6 +1966,34 @@ fn push_ortho_inductive(account: &mut Account, entry: &SubstituentEntry, rho: f6
                 ": no sigma_m and sigma_p to derive an ortho constant; not scored",
             ]));
         }
+    }
+}
+
+/// An ortho substituent on the ring carbon beside a pyridine-type ring N base site, scored
+/// by its inductive constant there: `sigma_i_ring_n` where the table has one (halogens,
+/// whose effect beside the ring N is 1.6 to 1.8 times what their sigma_I gives), else
+/// sigma_I.
+///
+/// # Reference
+///
+/// The constants are derived from the pKa of the 2-substituted pyridines with the pyridine
+/// rho 5.90 of Clark and Perrin, Q. Rev. Chem. Soc. 1964, 18, 295 (from memory); see
+/// `fragments/substituents/groups.toml`.
+fn push_ortho_ring_n(account: &mut Account, entry: &SubstituentEntry, rho: f64, label: Text) {
+    let Some(sigma) = entry.sigma_i_ring_n else {
+        push_ortho_inductive(account, entry, rho, label);
+        return;
+    };
+    account.substituent(
+        label,
+        sigma,
+        rho,
+        Cow::Borrowed("ortho beside ring N (sigma_I from the 2-X-pyridine)"),
+        entry,
+        Used::RingN,
+    );
+    if let Some(t) = account.terms.last_mut() {
+        t.ortho_substituent = true;
     }
 }
 
@@ -2978,6 +3015,7 @@ mod tests {
             Used::Inductive,
             Used::FromHammett,
             Used::Normal,
+            Used::RingN,
         ];
         assert_eq!(kinds.len(), Used::KINDS);
         for source in &sources {
@@ -3005,6 +3043,7 @@ mod tests {
                     Used::Star,
                 ),
                 (e.sigma_i.is_some(), Used::Inductive),
+                (e.sigma_i_ring_n.is_some(), Used::RingN),
             ] {
                 if !has {
                     continue;
@@ -3028,6 +3067,36 @@ mod tests {
         let found = crate::find_sites(Library::builtin(), &m);
         let sites = score_sites(Library::builtin(), &m, &found);
         (m, sites)
+    }
+
+    #[test]
+    fn halogen_beside_a_ring_n_base_takes_its_ring_n_constant() {
+        let chloro = Library::builtin()
+            .substituents
+            .iter()
+            .find(|e| e.id == "chloro")
+            .expect("chloro entry");
+        let ring_n = chloro.sigma_i_ring_n.expect("chloro has sigma_i_ring_n");
+        let pyridine_site = |smiles: &str| {
+            let (_, sites) = parent_sites(smiles);
+            sites
+                .into_iter()
+                .find(|s| s.class == "base.pyridine")
+                .expect("a pyridine site")
+        };
+        let sigma_of = |site: &Site, label: &str| {
+            site.terms
+                .iter()
+                .find(|t| t.label.as_ref() == label)
+                .and_then(|t| t.sigma)
+        };
+        let ortho = pyridine_site("Clc1ccccn1");
+        let meta = pyridine_site("Clc1cccnc1");
+        assert_eq!(sigma_of(&ortho, "2-Cl"), Some(ring_n));
+        assert_eq!(sigma_of(&meta, "3-Cl"), chloro.sigma_m);
+        // 2-chloropyridine 0.72 against 3-chloropyridine 2.84 (from memory of CRC): the
+        // halogen beside the N lowers it far more.
+        assert!(ortho.pka + 1.0 < meta.pka, "{} {}", ortho.pka, meta.pka);
     }
 
     #[test]
@@ -3137,6 +3206,7 @@ mod tests {
             sigma_star: None,
             sigma_star_ch2: Some(1.0),
             sigma_i: None,
+            sigma_i_ring_n: None,
             hbond_acceptor: false,
             walk: false,
             source: "test".into(),
