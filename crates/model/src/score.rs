@@ -94,6 +94,24 @@ pub struct Term {
     pub counted: Option<(Counted, f64)>,
 }
 
+impl Term {
+    /// A fixed correction with no sigma, rho, position or count (a statistical factor, a
+    /// hydrogen bond).
+    fn correction(label: Text, contribution: f64, source: Text) -> Term {
+        Term {
+            label,
+            contribution,
+            source,
+            sigma: None,
+            rho: None,
+            position: None,
+            role: TermRole::Correction,
+            ortho_substituent: false,
+            counted: None,
+        }
+    }
+}
+
 /// What a counted class correction counts.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Counted {
@@ -710,19 +728,13 @@ fn score_one(library: &Library, recognizer: &mut Recognizer<'_, '_>, found: &Fou
         && !class.monoanion_hbond_in_parent
     {
         if let Some((_, h)) = chelating_carboxyl(recognizer.molecule(), found.atom) {
-            account.terms.push(Term {
-                label: Cow::Borrowed(
+            account.terms.push(Term::correction(
+                Cow::Borrowed(
                     "hydrogen bond from the neighbouring CO2H to the carboxylate (monoanion)",
                 ),
-                contribution: -h,
-                source: Cow::Borrowed(MONOANION_HBOND_SOURCE),
-                sigma: None,
-                rho: None,
-                position: None,
-                role: TermRole::Correction,
-                ortho_substituent: false,
-                counted: None,
-            });
+                -h,
+                Cow::Borrowed(MONOANION_HBOND_SOURCE),
+            ));
         }
     }
     if (class.statistical_factor - 1.0).abs() > 1e-12 && class.statistical_factor > 0.0 {
@@ -730,17 +742,11 @@ fn score_one(library: &Library, recognizer: &mut Recognizer<'_, '_>, found: &Fou
             Kind::Acid => -1.0,
             Kind::Base => 1.0,
         };
-        account.terms.push(Term {
-            label: texts.statistical_label(class.statistical_factor),
-            contribution: sign * class.statistical_factor.log10(),
-            source: Cow::Borrowed("statistical factor of the class (common practice)"),
-            sigma: None,
-            rho: None,
-            position: None,
-            role: TermRole::Correction,
-            ortho_substituent: false,
-            counted: None,
-        });
+        account.terms.push(Term::correction(
+            texts.statistical_label(class.statistical_factor),
+            sign * class.statistical_factor.log10(),
+            Cow::Borrowed("statistical factor of the class (common practice)"),
+        ));
     }
     // The estimate is the sum of its terms, added in the order they are listed, so that a
     // reader adding them up gets the same number.
