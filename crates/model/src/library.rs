@@ -191,6 +191,14 @@ pub struct SiteClass {
     /// both-charged energy still takes it back (`fragments/interactions.toml`).
     #[serde(default)]
     pub monoanion_hbond_in_parent: bool,
+    /// For such a class: the bond's strength in pK units where the class's own pair of
+    /// constants gives it (the dianion takes back twice this); absent, the general value of
+    /// `fragments/interactions.toml`.
+    #[serde(default)]
+    pub monoanion_hbond: Option<f64>,
+    /// Where `monoanion_hbond` comes from.
+    #[serde(default)]
+    pub monoanion_hbond_source: String,
 }
 
 fn one() -> f64 {
@@ -688,6 +696,18 @@ fn validate(
         }
         if class.scale != Scale::None && class.rho_source.trim().is_empty() {
             return Err(LibraryError::new(format!("{at}: rho has no source")));
+        }
+        if let Some(h) = class.monoanion_hbond {
+            if !h.is_finite() || h < 0.0 {
+                return Err(LibraryError::new(format!(
+                    "{at}: monoanion_hbond must be a finite, non-negative number"
+                )));
+            }
+            if class.monoanion_hbond_source.trim().is_empty() {
+                return Err(LibraryError::new(format!(
+                    "{at}: monoanion_hbond has no source"
+                )));
+            }
         }
         if let Some(w) = class.geminal_interaction {
             if !w.is_finite() {

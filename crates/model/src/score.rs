@@ -2884,10 +2884,23 @@ pub fn interactions(library: &Library, molecule: &Molecule, sites: &[Site]) -> V
                 && sites[i].class.starts_with("acid.carboxylic")
                 && sites[j].class.starts_with("acid.carboxylic")
             {
-                if let Some((partner, h)) = chelating_carboxyl(molecule, sites[i].atom) {
-                    if partner == sites[j].atom {
-                        value += 2.0 * h;
+                // A class whose parent is a hydrogen-bonded first constant, and the bond's
+                // strength where the class gives its own.
+                let flagged = library
+                    .class_index(&sites[i].class)
+                    .map(|k| &library.classes[k])
+                    .filter(|k| k.monoanion_hbond_in_parent && sites[j].class == k.id)
+                    .map(|k| k.monoanion_hbond);
+                match (chelating_carboxyl(molecule, sites[i].atom), flagged) {
+                    (Some((partner, h)), own) if partner == sites[j].atom => {
+                        value += 2.0 * own.flatten().unwrap_or(h)
                     }
+                    // Two carboxyls of one such class in a shape `chelating_carboxyl` does not
+                    // read (a 3,3-dialkylglutaric or tetraalkylsuccinic acid): the class's
+                    // pattern holds them together, and the dianion gives the bond back as
+                    // above.
+                    (_, Some(own)) => value += 2.0 * own.unwrap_or(c.monoanion_hbond),
+                    _ => {}
                 }
             }
             w[i][j] = value;
@@ -3151,6 +3164,23 @@ mod tests {
             w[idx[0]][idx[1]]
         };
         assert!((pair(&sites, &w) - pair(&sites0, &w0) - 2.0 * h).abs() < 1e-9);
+        // A class that gives its own bond strength (3,3-dimethylglutaric acid) against the
+        // same pair without the bond (glutaric acid).
+        let (m, sites) = parent_sites("CC(C)(CC(=O)O)CC(=O)O");
+        let w = interactions(Library::builtin(), &m, &sites);
+        let (m0, sites0) = parent_sites("OC(=O)CCCC(=O)O");
+        let w0 = interactions(Library::builtin(), &m0, &sites0);
+        let acid = sites
+            .iter()
+            .find(|s| s.class.starts_with("acid.carboxylic"))
+            .expect("a carboxylic site");
+        let k = Library::builtin()
+            .class_index(&acid.class)
+            .expect("a class");
+        let own = Library::builtin().classes[k]
+            .monoanion_hbond
+            .expect("the class gives its own strength");
+        assert!((pair(&sites, &w) - pair(&sites0, &w0) - 2.0 * own).abs() < 1e-9);
     }
 
     #[test]
