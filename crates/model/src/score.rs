@@ -1351,6 +1351,33 @@ fn push_coefficient_term(
     });
 }
 
+/// Substituents found on a ring beside the site's (a fused ring, the site's aryl ring),
+/// summed in two columns by their bonds `d` from where the site joins the rings: odd, in
+/// conjugation with the site (sigma_p); even, out of it (sigma_m).
+#[derive(Default)]
+struct RingGroups {
+    /// Summed sigma, out of conjugation then in it.
+    sum: [f64; 2],
+    /// The groups' names, comma-separated, in the same order.
+    names: [String; 2],
+}
+
+impl RingGroups {
+    /// Adds `entry`, `d` bonds out, with its sigma on `scale` (skipped when it has none
+    /// there).
+    fn add(&mut self, entry: &SubstituentEntry, d: usize, scale: Scale) {
+        let (i, pos) = if d % 2 == 1 {
+            (1, Position::Para)
+        } else {
+            (0, Position::Meta)
+        };
+        if let Some((sigma, _)) = hammett_sigma(entry, pos, scale) {
+            self.sum[i] += sigma;
+            push_group(&mut self.names[i], &entry.name);
+        }
+    }
+}
+
 /// The two ring-group coefficient terms over the groups found: those out of conjugation
 /// with the site on their summed sigma_m, those in conjugation on their summed sigma_p,
 /// each with the class's fitted coefficient and labelled by `labels` (label opening,
@@ -1359,8 +1386,7 @@ fn push_ring_group_sums(
     account: &mut Account,
     k: &Constants,
     labels: [(&str, &'static str); 2],
-    sum: [f64; 2],
-    groups: &[String; 2],
+    found: &RingGroups,
 ) {
     let parts = [
         (
@@ -1375,17 +1401,17 @@ fn push_ring_group_sums(
         ),
     ];
     for (i, (what, on, per)) in parts.into_iter().enumerate() {
-        if groups[i].is_empty() {
+        if found.names[i].is_empty() {
             continue;
         }
         let (label, position) = labels[i];
         push_coefficient_term(
             account,
             what,
-            concat(&[label, &groups[i], ")"]).into(),
+            concat(&[label, &found.names[i], ")"]).into(),
             position,
             on,
-            sum[i],
+            found.sum[i],
             per,
         );
     }
@@ -1422,8 +1448,7 @@ fn site_aryl_substituents(
     keep_out.extend_from_slice(ring);
     keep_out.extend_from_slice(&found.matched);
     let dist = distances_within(molecule, ar, |b| ring.contains(&b));
-    let mut sum = [0.0; 2];
-    let mut groups = [String::new(), String::new()];
+    let mut groups = RingGroups::default();
     for &(r, d) in &dist[1..] {
         for nb in molecule.neighbors(r) {
             let x = nb.atom;
@@ -1433,17 +1458,8 @@ fn site_aryl_substituents(
             {
                 continue;
             }
-            let Some(rec) = recognizer.recognize(x, r, &keep_out) else {
-                continue;
-            };
-            let (i, pos) = if d % 2 == 1 {
-                (1, Position::Para)
-            } else {
-                (0, Position::Meta)
-            };
-            if let Some((sigma, _)) = hammett_sigma(rec.entry, pos, Scale::Hammett) {
-                sum[i] += sigma;
-                push_group(&mut groups[i], &rec.entry.name);
+            if let Some(rec) = recognizer.recognize(x, r, &keep_out) {
+                groups.add(rec.entry, d, Scale::Hammett);
             }
         }
     }
@@ -1460,7 +1476,6 @@ fn site_aryl_substituents(
                 "aryl ring on the site, ortho and para (sigma_p)",
             ),
         ],
-        sum,
         &groups,
     );
 }
@@ -1494,8 +1509,7 @@ fn fused_ring_substituents(
     let dist = distances_within(molecule, anchor, |b| {
         ring.contains(&b) || fused_atoms.contains(&b)
     });
-    let mut sum = [0.0; 2];
-    let mut groups = [String::new(), String::new()];
+    let mut groups = RingGroups::default();
     for &f in fused_atoms {
         let Some(&(_, d)) = dist.iter().find(|&&(x, _)| x == f) else {
             continue;
@@ -1537,15 +1551,7 @@ fn fused_ring_substituents(
                 }
                 continue;
             }
-            let (i, pos) = if d % 2 == 1 {
-                (1, Position::Para)
-            } else {
-                (0, Position::Meta)
-            };
-            if let Some((sigma, _)) = hammett_sigma(r.entry, pos, scale) {
-                sum[i] += sigma;
-                push_group(&mut groups[i], &r.entry.name);
-            }
+            groups.add(r.entry, d, scale);
         }
     }
     push_ring_group_sums(
@@ -1561,7 +1567,6 @@ fn fused_ring_substituents(
                 "fused ring, in conjugation (sigma_p)",
             ),
         ],
-        sum,
         &groups,
     );
     peri_hbond
