@@ -2328,7 +2328,8 @@ fn taft(
     // from memory of Perrin 1965: one alkenyl's worth, not two).
     let mut claimed: Vec<usize> = Vec::new();
     let mut fence: Vec<usize> = Vec::with_capacity(visited.capacity());
-    let routes = RouteWeights::from(molecule, anchor);
+    // Walked only when the first group with a sigma* is met: many chains carry none.
+    let mut routes: Option<RouteWeights> = None;
     loop {
         let take_parent = match (from_parent.last(), queue.front()) {
             (Some(p), Some(q)) => p.2 <= q.2,
@@ -2438,7 +2439,9 @@ fn taft(
         }
         match taft_sigma(r.entry, depth) {
             Some((sigma, derived)) => {
-                let factor = routes.factor(atom, depth + 1);
+                let factor = routes
+                    .get_or_insert_with(|| RouteWeights::from(molecule, anchor))
+                    .factor(atom, depth + 1);
                 let mut position = taft_position(depth, derived.then(|| derived_label(r.entry)));
                 if factor > 1.0005 {
                     // The explanation names the factor, so that sigma x rho still reads as the
