@@ -2924,12 +2924,8 @@ mod tests {
     use super::*;
 
     fn base_site(smiles: &str) -> Site {
-        let read = mol::parse(smiles).expect("test SMILES parses");
-        let m = mol::standardize(&read)
-            .expect("test SMILES standardizes")
-            .parent;
-        let found = crate::find_sites(Library::builtin(), &m);
-        score_sites(Library::builtin(), &m, &found)
+        let (m, sites) = parent_sites(smiles);
+        sites
             .into_iter()
             .find(|s| s.kind == Kind::Base && m.atoms()[s.atom].element == 7)
             .expect("an N base site")
