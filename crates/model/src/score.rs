@@ -944,6 +944,10 @@ fn hammett(
     // A site that is itself a ring member (pyridine N, azole N) has its ortho substituents
     // on the next atom, where their inductive and field effect outweighs resonance.
     let site_in_ring = ring.contains(&found.atom);
+    // A ring-member base site (a pyridine-type N): its ortho groups take their constant
+    // beside a ring N (`sigma_i_ring_n`) where they have one, its meta and para donors can be
+    // twisted, and its fused ring's peri groups crowd it.
+    let ring_n_base = site_in_ring && class.kind == Kind::Base;
     let mut fused_aza: Vec<usize> = Vec::new();
     // Atoms of the aromatic rings fused to the site's ring, outside it.
     let mut fused_atoms: Vec<usize> = Vec::new();
@@ -1111,7 +1115,7 @@ fn hammett(
                     if ortho && r.entry.hbond_acceptor {
                         ortho_hbond += 1;
                     }
-                    if !ortho && site_in_ring && class.kind == Kind::Base {
+                    if !ortho && ring_n_base {
                         twisted_donors +=
                             flanked_dialkylamino(molecule, ring, start + step, s, r.entry);
                     }
@@ -1122,7 +1126,7 @@ fn hammett(
                     let name = account.texts.numbered(number, r.entry);
                     if ortho {
                         if let Some((s_i, _)) = sigma_inductive(r.entry) {
-                            ortho_field += if site_in_ring && class.kind == Kind::Base {
+                            ortho_field += if ring_n_base {
                                 r.entry.sigma_i_ring_n.unwrap_or(s_i)
                             } else {
                                 s_i
@@ -1142,7 +1146,7 @@ fn hammett(
                         if let Some(t) = account.terms.last_mut() {
                             t.ortho_substituent = false;
                         }
-                    } else if ortho && site_in_ring && class.kind == Kind::Base {
+                    } else if ortho && ring_n_base {
                         push_ortho_ring_n(account, r.entry, k.rho, name);
                     } else if ortho && site_in_ring {
                         push_ortho_inductive(account, r.entry, k.rho, name);
@@ -1184,7 +1188,7 @@ fn hammett(
         &fused_atoms,
         &avoid,
         k,
-        site_in_ring && class.kind == Kind::Base,
+        ring_n_base,
         account,
     );
     if !site_in_ring {
