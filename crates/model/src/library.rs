@@ -162,6 +162,15 @@ pub struct SiteClass {
     /// site (steric inhibition of resonance; set by calibration, 0 when not calibrated).
     #[serde(default)]
     pub twisted_donor_term: f64,
+    /// Correction per alkyl group on the site's own N, for the classes that set
+    /// `n_alkyl_counted` (set by calibration, 0 when not calibrated).
+    #[serde(default)]
+    pub n_alkyl_group_term: f64,
+    /// The class matches its N both bare and alkylated (a 2-iminopyrimidine's =NH and =NMe),
+    /// so the alkyls on the site's N are counted for `n_alkyl_group_term`; the amine and
+    /// aniline classes, split by N-substitution, leave it unset.
+    #[serde(default)]
+    pub n_alkyl_counted: bool,
     /// Statistical factor (number of equivalent protons or positions the class counts);
     /// contributes -log10(factor) for acids and +log10(factor) for bases when not 1.
     #[serde(default = "one")]
@@ -318,6 +327,9 @@ pub struct Calibration {
     /// Fitted correction per group flanking a ring dialkylamino donor.
     #[serde(default)]
     pub twisted_donor_term: Option<f64>,
+    /// Fitted correction per alkyl group on the site's N.
+    #[serde(default)]
+    pub n_alkyl_group_term: Option<f64>,
     /// Number of measurements fitted.
     pub points: usize,
     /// Residual error of the fit (RMS, pKa units).

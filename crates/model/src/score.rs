@@ -153,6 +153,9 @@ pub enum Counted {
     /// (4-dimethylamino-3-methylpyridine): they turn the donor's lone pair out of the ring
     /// plane (steric inhibition of resonance).
     TwistedDonor,
+    /// Alkyl groups on the site's own exocyclic N, for the classes that match it both bare
+    /// and alkylated (`n_alkyl_counted`).
+    NAlkyl,
 }
 
 /// A scored site.
@@ -200,6 +203,7 @@ struct Constants<'l> {
     n_alkyl_term: f64,
     n_substituent_term: f64,
     twisted_donor_term: f64,
+    n_alkyl_group_term: f64,
     uncertainty: f64,
 }
 
@@ -277,6 +281,7 @@ fn constants(library: &Library, class_index: usize) -> Constants<'_> {
                 n_alkyl_term: fit.n_alkyl_term.unwrap_or(class.n_alkyl_term),
                 n_substituent_term: fit.n_substituent_term.unwrap_or(class.n_substituent_term),
                 twisted_donor_term: fit.twisted_donor_term.unwrap_or(class.twisted_donor_term),
+                n_alkyl_group_term: fit.n_alkyl_group_term.unwrap_or(class.n_alkyl_group_term),
                 // The class's cross-validated error, as a standard deviation (for normal errors
                 // sd = MAE * sqrt(pi / 2)); never below the residual of the fit itself.
                 uncertainty: (fit.cv_mae * 1.2533).max(fit.rmse).max(0.1),
@@ -301,6 +306,7 @@ fn constants(library: &Library, class_index: usize) -> Constants<'_> {
             n_alkyl_term: class.n_alkyl_term,
             n_substituent_term: class.n_substituent_term,
             twisted_donor_term: class.twisted_donor_term,
+            n_alkyl_group_term: class.n_alkyl_group_term,
             uncertainty: class.uncertainty,
         },
     }
@@ -343,7 +349,7 @@ fn numbered(number: usize, name: &str) -> String {
 const NUMBERED_KEPT: usize = 12;
 
 /// Number of [`Counted`] kinds: slots per class for their sources.
-const COUNTED_KINDS: usize = 13;
+const COUNTED_KINDS: usize = 14;
 
 /// The slot of a [`Counted`] kind among a class's [`COUNTED_KINDS`]. Exhaustive on
 /// purpose: a new kind does not compile until it has a slot of its own (two kinds sharing
@@ -363,6 +369,7 @@ fn counted_slot(what: Counted) -> usize {
         Counted::NAlkylBranch => 10,
         Counted::NSubstituent => 11,
         Counted::TwistedDonor => 12,
+        Counted::NAlkyl => 13,
     }
 }
 
@@ -1206,6 +1213,15 @@ fn hammett(
             .iter()
             .filter(|n| n.atom != anchor && is_plain_carbon(molecule, n.atom));
         let branches: usize = n_alkyls.clone().map(alpha_carbons).sum();
+        if class.n_alkyl_counted {
+            push_counted(
+                account,
+                Counted::NAlkyl,
+                n_alkyls.clone().count(),
+                k.n_alkyl_group_term,
+                "alkyl on the site's N",
+            );
+        }
         // A tertiary alkyl on the site's N (N-tert-butylaniline) cannot lie in the ring
         // plane: it turns the N lone pair out of conjugation with the ring, which then
         // withdraws less than its sigma values say (steric inhibition of resonance;
