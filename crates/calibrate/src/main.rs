@@ -305,7 +305,7 @@ impl Fit {
 }
 
 /// Number of class corrections the fit sets besides parent and rho.
-const N_CORRECTIONS: usize = 15;
+const N_CORRECTIONS: usize = 16;
 
 /// The class corrections, in column order after parent and rho: what the scorer counts
 /// for each (`None`: the ortho substituents, flagged on their terms) and the field of
@@ -326,6 +326,7 @@ const CORRECTIONS: [(Option<Counted>, &str); N_CORRECTIONS] = [
     (Some(Counted::NSubstituent), "n_substituent_term"),
     (Some(Counted::TwistedDonor), "twisted_donor_term"),
     (Some(Counted::NAlkyl), "n_alkyl_group_term"),
+    (Some(Counted::NTertiaryAlkyl), "n_tert_alkyl_term"),
 ];
 
 /// The fields of `SiteClass` that hold the class corrections, in [`CORRECTIONS`] order, as
@@ -348,6 +349,7 @@ macro_rules! correction_fields {
             $c.n_substituent_term,
             $c.twisted_donor_term,
             $c.n_alkyl_group_term,
+            $c.n_tert_alkyl_term,
         ]
     };
 }

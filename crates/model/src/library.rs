@@ -166,6 +166,10 @@ pub struct SiteClass {
     /// `n_alkyl_counted` (set by calibration, 0 when not calibrated).
     #[serde(default)]
     pub n_alkyl_group_term: f64,
+    /// Correction per tertiary alkyl on the site's own exocyclic N (N-tert-butylaniline:
+    /// steric inhibition of resonance; set by calibration, 0 when not calibrated).
+    #[serde(default)]
+    pub n_tert_alkyl_term: f64,
     /// The class matches its N both bare and alkylated (a 2-iminopyrimidine's =NH and =NMe),
     /// so the alkyls on the site's N are counted for `n_alkyl_group_term`; the amine and
     /// aniline classes, split by N-substitution, leave it unset.
@@ -330,6 +334,9 @@ pub struct Calibration {
     /// Fitted correction per alkyl group on the site's N.
     #[serde(default)]
     pub n_alkyl_group_term: Option<f64>,
+    /// Fitted correction per tertiary alkyl on the site's N.
+    #[serde(default)]
+    pub n_tert_alkyl_term: Option<f64>,
     /// Number of measurements fitted.
     pub points: usize,
     /// Residual error of the fit (RMS, pKa units).

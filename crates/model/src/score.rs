@@ -156,6 +156,12 @@ pub enum Counted {
     /// Alkyl groups on the site's own exocyclic N, for the classes that match it both bare
     /// and alkylated (`n_alkyl_counted`).
     NAlkyl,
+    /// Tertiary alkyls on the site's own exocyclic N (N-tert-butylaniline): they turn the
+    /// site's lone pair out of conjugation with the ring, which then withdraws less (steric
+    /// inhibition of resonance). Kept apart from [`Counted::TwistedDonor`], the ring-N
+    /// site's flanked donor, whose effect has the other sign: one coefficient for both made
+    /// the pooled prior of either the wrong one.
+    NTertiaryAlkyl,
 }
 
 /// A scored site.
@@ -204,6 +210,7 @@ struct Constants<'l> {
     n_substituent_term: f64,
     twisted_donor_term: f64,
     n_alkyl_group_term: f64,
+    n_tert_alkyl_term: f64,
     uncertainty: f64,
 }
 
@@ -282,6 +289,7 @@ fn constants(library: &Library, class_index: usize) -> Constants<'_> {
                 n_substituent_term: fit.n_substituent_term.unwrap_or(class.n_substituent_term),
                 twisted_donor_term: fit.twisted_donor_term.unwrap_or(class.twisted_donor_term),
                 n_alkyl_group_term: fit.n_alkyl_group_term.unwrap_or(class.n_alkyl_group_term),
+                n_tert_alkyl_term: fit.n_tert_alkyl_term.unwrap_or(class.n_tert_alkyl_term),
                 // The class's cross-validated error, as a standard deviation (for normal errors
                 // sd = MAE * sqrt(pi / 2)); never below the residual of the fit itself.
                 uncertainty: (fit.cv_mae * 1.2533).max(fit.rmse).max(0.1),
@@ -307,6 +315,7 @@ fn constants(library: &Library, class_index: usize) -> Constants<'_> {
             n_substituent_term: class.n_substituent_term,
             twisted_donor_term: class.twisted_donor_term,
             n_alkyl_group_term: class.n_alkyl_group_term,
+            n_tert_alkyl_term: class.n_tert_alkyl_term,
             uncertainty: class.uncertainty,
         },
     }
@@ -349,7 +358,7 @@ fn numbered(number: usize, name: &str) -> String {
 const NUMBERED_KEPT: usize = 12;
 
 /// Number of [`Counted`] kinds: slots per class for their sources.
-const COUNTED_KINDS: usize = 14;
+const COUNTED_KINDS: usize = 15;
 
 /// The slot of a [`Counted`] kind among a class's [`COUNTED_KINDS`]. Exhaustive on
 /// purpose: a new kind does not compile until it has a slot of its own (two kinds sharing
@@ -370,6 +379,7 @@ fn counted_slot(what: Counted) -> usize {
         Counted::NSubstituent => 11,
         Counted::TwistedDonor => 12,
         Counted::NAlkyl => 13,
+        Counted::NTertiaryAlkyl => 14,
     }
 }
 
@@ -1228,7 +1238,13 @@ fn hammett(
         // N-tert-butylaniline about 7.1 against N-methylaniline 4.85, from memory of
         // Perrin 1965; Wepster, Rec. Trav. Chim. Pays-Bas 1957, 76, 335, from memory).
         if class.kind == Kind::Base && molecule.atoms()[found.atom].element == 7 {
-            twisted_donors += n_alkyls.filter(|n| alpha_carbons(n) >= 3).count();
+            push_counted(
+                account,
+                Counted::NTertiaryAlkyl,
+                n_alkyls.clone().filter(|n| alpha_carbons(n) >= 3).count(),
+                k.n_tert_alkyl_term,
+                "tertiary alkyl on the N (steric inhibition of resonance)",
+            );
         }
         push_counted(
             account,
@@ -1254,13 +1270,7 @@ fn hammett(
         Counted::TwistedDonor,
         twisted_donors,
         k.twisted_donor_term,
-        // The two counts never meet: the flanked donor is counted for a site in the ring,
-        // the tertiary N-alkyl for a site on it.
-        if site_in_ring {
-            "group flanking a dialkylamino donor (steric inhibition of resonance)"
-        } else {
-            "tertiary alkyl on the N (steric inhibition of resonance)"
-        },
+        "group flanking a dialkylamino donor (steric inhibition of resonance)",
     );
     push_counted(
         account,
