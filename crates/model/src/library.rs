@@ -175,6 +175,12 @@ pub struct SiteClass {
     /// aniline classes, split by N-substitution, leave it unset.
     #[serde(default)]
     pub n_alkyl_counted: bool,
+    /// For an exocyclic site scored from a ring atom that is not the one it hangs on (a
+    /// 2-iminoazine scored from its ring N): the ring positions para to the site's own ring
+    /// atom, meta to the anchor, take sigma_p. The cation is an amidinium, whose charge the
+    /// central carbon shares, and a group para to that carbon conjugates with it.
+    #[serde(default)]
+    pub para_to_site_carbon: bool,
     /// Statistical factor (number of equivalent protons or positions the class counts);
     /// contributes -log10(factor) for acids and +log10(factor) for bases when not 1.
     #[serde(default = "one")]

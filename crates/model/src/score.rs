@@ -978,10 +978,29 @@ fn hammett(
     let mut ortho_resonance_groups = String::new();
     // Ring groups flanking a meta or para dialkylamino donor of a ring-N base site.
     let mut twisted_donors = 0usize;
+    // The ring atom the site hangs on, for `para_to_site_carbon`.
+    let site_carbon = if class.para_to_site_carbon && !site_in_ring {
+        molecule
+            .neighbors(found.atom)
+            .iter()
+            .find_map(|nb| ring.iter().position(|&a| a == nb.atom))
+    } else {
+        None
+    };
     for step in 1..n {
         let atom = ring[(start + step) % n];
         let distance = step.min(n - step);
-        let pos = position(distance);
+        let pos = match site_carbon {
+            Some(at) if distance == 2 => {
+                let from_site = (start + step + n - at) % n;
+                if from_site.min(n - from_site) == 3 {
+                    Position::Para
+                } else {
+                    position(distance)
+                }
+            }
+            _ => position(distance),
+        };
         // Ring numbering from the anchor as 1, the way chemists name positions.
         let number = step + 1;
         // Ring atoms the class pattern names are part of its parent (the second N of a
