@@ -3007,6 +3007,78 @@ mod tests {
     }
 
     #[test]
+    fn an_iminoazine_counts_the_alkyls_on_its_exocyclic_n() {
+        let amidine_site = |smiles: &str| {
+            let (_, sites) = parent_sites(smiles);
+            sites
+                .into_iter()
+                .find(|s| s.class == "base.imine.cyclic_amidine")
+                .expect("a cyclic amidine site")
+        };
+        let count = |site: &Site| {
+            site.terms
+                .iter()
+                .find_map(|t| match t.counted {
+                    Some((Counted::NAlkyl, n)) => Some(n),
+                    _ => None,
+                })
+                .unwrap_or(0.0)
+        };
+        // =NMe against =NH: one alkyl on the site's N, none on the bare imine.
+        assert_eq!(count(&amidine_site("CN=c1ncccn1C")), 1.0);
+        assert_eq!(count(&amidine_site("Cn1cccnc1=N")), 0.0);
+    }
+
+    #[test]
+    fn an_iminopyrimidines_5_group_is_para_to_the_imine_carbon() {
+        // 5-methoxy-1-methyl-2(1H)-pyrimidinimine: the OMe is meta to the scored ring N
+        // but para to C2, and takes sigma_p (negative for OMe); the ring's second N stays
+        // meta (sigma_m).
+        let (_, sites) = parent_sites("COc1cnc(=N)n(C)c1");
+        let site = sites
+            .into_iter()
+            .find(|s| s.class == "base.imine.cyclic_amidine")
+            .expect("a cyclic amidine site");
+        let methoxy = site
+            .terms
+            .iter()
+            .find(|t| t.label.contains("OCH3"))
+            .expect("an OMe term");
+        assert_eq!(methoxy.position.as_deref(), Some("para (sigma_p)"));
+        assert!(methoxy.sigma.is_some_and(|s| s < 0.0), "{methoxy:?}");
+        let aza = site
+            .terms
+            .iter()
+            .find(|t| t.label.contains("ring N (aza)"))
+            .expect("an aza term");
+        assert_eq!(aza.position.as_deref(), Some("meta (sigma_m)"));
+    }
+
+    #[test]
+    fn a_tertiary_n_alkyl_is_counted_apart_from_a_flanked_donor() {
+        let counted = |site: &Site, what: Counted| {
+            site.terms
+                .iter()
+                .any(|t| matches!(t.counted, Some((w, _)) if w == what))
+        };
+        let tert_butyl = base_site("CC(C)(C)Nc1ccccc1");
+        assert!(counted(&tert_butyl, Counted::NTertiaryAlkyl));
+        assert!(!counted(&tert_butyl, Counted::TwistedDonor));
+        // 4-dimethylamino-3-methylpyridine: the ring N's donor is flanked by the methyl.
+        let (_, sites) = parent_sites("Cc1cnccc1N(C)C");
+        let ring_n = sites
+            .into_iter()
+            .find(|s| s.class.starts_with("base.pyridine"))
+            .expect("a pyridine site");
+        assert!(
+            counted(&ring_n, Counted::TwistedDonor),
+            "{:?}",
+            ring_n.terms
+        );
+        assert!(!counted(&ring_n, Counted::NTertiaryAlkyl));
+    }
+
+    #[test]
     fn a_term_cites_the_part_of_the_source_for_its_constant() {
         let source = "sigma_m, sigma_p: Hansch, Leo and Taft, Chem. Rev. 1991, 91, 165, Table I; \
                       sigma_p-: Hansch, Leo and Taft (sigma-minus column); sigma*: Taft, in \
