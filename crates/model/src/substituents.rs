@@ -394,12 +394,19 @@ fn nearest_type(molecule: &Molecule, atom: usize, fence: &[usize]) -> Option<&'s
     }
 }
 
-/// Whether `atom` carries a terminal oxygen (C=O, S=O) other than through `except`.
+/// Whether `atom` carries a terminal oxygen (C=O, S=O) other than through `except`, or is a
+/// thiocarbonyl carbon (C=S): the N of a thioamide, thiourea or dithiocarbamate, and the O
+/// of a thionocarbamate, give their lone pair to the C=S as an amide's N gives it to the
+/// C=O, more so if anything (common practice: thioamides turn more slowly about the C-N
+/// bond than amides), so they are acylamino and acyloxy types, not alkylamino and alkoxy.
 fn carries_oxo(molecule: &Molecule, atom: usize, except: usize) -> bool {
+    let carbon = molecule.atoms()[atom].element == 6;
     molecule.neighbors(atom).iter().any(|nb| {
+        let t = &molecule.atoms()[nb.atom];
         nb.atom != except
-            && molecule.atoms()[nb.atom].element == 8
             && molecule.total_degree(nb.atom) == 1
+            && (t.element == 8
+                || (carbon && t.element == 16 && molecule.bonds()[nb.bond].order == 2))
     })
 }
 
