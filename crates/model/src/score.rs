@@ -1199,6 +1199,11 @@ fn hammett(
                             && class.scale == Scale::HammettMinus
                         {
                             Position::Para
+                        } else if ring_n_base
+                            && pos == Position::Para
+                            && para_cross_conjugated(molecule, ring, start, step)
+                        {
+                            Position::Meta
                         } else {
                             pos
                         };
@@ -1713,6 +1718,22 @@ fn is_oxo(molecule: &Molecule, nb: &mol::Neighbor) -> bool {
         && !b.aromatic
         && matches!(molecule.atoms()[nb.atom].element, 8 | 16)
         && molecule.degree(nb.atom) == 1
+}
+
+/// Whether a group para to a ring-member base site is cut off from it by cross-conjugation:
+/// both ring paths from the site to the group's ring atom pass a ring atom that carries an
+/// exocyclic C=O / C=S or is a pyrrole-type N (N-R, N-H), so no alternating path of double
+/// bonds joins the group to the site. In a 4(3H)-pyrimidinone a 6-amino group conjugates with
+/// the C4=O (a vinylogous amide), not with N3; its sigma_p (a donor through resonance) would
+/// count a conjugation the ring does not have, so it is read with sigma_m, by its inductive
+/// effect alone (common practice: resonance constants apply only along a conjugated path).
+fn para_cross_conjugated(molecule: &Molecule, ring: &[usize], start: usize, step: usize) -> bool {
+    let n = ring.len();
+    let blocked =
+        |atom: usize| has_exocyclic_oxo(molecule, atom) || is_pyrrole_type_n(molecule, atom);
+    let forward = (1..step).any(|i| blocked(ring[(start + i) % n]));
+    let backward = (step + 1..n).any(|i| blocked(ring[(start + i) % n]));
+    forward && backward
 }
 
 /// Whether `atom` carries an exocyclic C=O or C=S (a ring lactam or thiolactam).
@@ -3211,6 +3232,29 @@ mod tests {
         let found = crate::find_sites(Library::builtin(), &m);
         let sites = score_sites(Library::builtin(), &m, &found);
         (m, sites)
+    }
+
+    #[test]
+    fn a_para_amino_cut_off_by_the_ring_oxo_is_read_with_sigma_m() {
+        let amino = Library::builtin()
+            .substituents
+            .iter()
+            .find(|e| e.id == "amino")
+            .expect("amino entry");
+        let azinone_sigma = |smiles: &str| {
+            let (_, sites) = parent_sites(smiles);
+            sites
+                .iter()
+                .filter(|s| s.class == "base.azinone")
+                .flat_map(|s| s.terms.iter())
+                .find(|t| t.label.ends_with("-NH2"))
+                .and_then(|t| t.sigma)
+        };
+        // 6-amino-3-methyl-4(3H)-pyrimidinone type: between the site N3 and C6 lie the C4=O
+        // on one side and the N1-methyl on the other, so the amino conjugates with the C=O only.
+        assert_eq!(azinone_sigma("Cn1cnc(=O)cc1N"), amino.sigma_m);
+        // 6-amino-1-methyl-2(1H)-pyrimidinone: C6=C5-C4=N3 joins the amino to the site.
+        assert_eq!(azinone_sigma("Cn1c(N)ccnc1=O"), amino.sigma_p);
     }
 
     #[test]

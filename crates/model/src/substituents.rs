@@ -305,7 +305,30 @@ fn nearest_type(molecule: &Molecule, atom: usize, fence: &[usize]) -> Option<&'s
             if a.aromatic {
                 Some("phenyl")
             } else if a.hybridization == Hybridization::Sp3 || molecule.total_degree(atom) == 4 {
-                Some("alkyl")
+                // A saturated carbon that carries an O or N (a CH(OH)R, C(OH)R2, CH(OR)R,
+                // CH(NH2)R group) is no plain alkyl: the nearest type keeps its first-carbon
+                // heteroatom, as CH2OH, CH2OCH3 or CH2NH2, and so is not counted with the
+                // hydrocarbon alkyls (common practice: the nearest group by first atom and
+                // what it bears).
+                // Only an open-chain carbon: a ring CH2 of a partly saturated fused ring is
+                // walked with its ring.
+                let open_chain = !molecule.rings().iter().any(|r| r.contains(&atom));
+                let o_h = beyond
+                    .iter()
+                    .any(|&(e, o, _, t)| e == 8 && o == 1 && molecule.total_hydrogens(t) > 0);
+                if open_chain && o_h {
+                    Some("hydroxymethyl")
+                } else if open_chain && beyond.iter().any(|&(e, o, _, _)| e == 8 && o == 1) {
+                    Some("methoxymethyl")
+                } else if open_chain
+                    && beyond
+                        .iter()
+                        .any(|&(e, o, c, _)| e == 7 && o == 1 && c == 0)
+                {
+                    Some("aminomethyl")
+                } else {
+                    Some("alkyl")
+                }
             } else if double_to(8) || double_to(16) {
                 if has(7) {
                     Some("alkylcarbamoyl")
@@ -676,6 +699,35 @@ mod tests {
             }
             assert!(compared > 100, "only {compared} cases compared");
         }
+    }
+
+    #[test]
+    fn a_saturated_carbon_bearing_o_or_n_is_no_plain_alkyl_as_nearest_type() {
+        let library = Library::builtin();
+        // Diphenyl(hydroxy)methyl, 1-methoxyethyl, 1-aminoethyl (no pattern of their own),
+        // each seen from the ring carbon it is bonded to.
+        let m = mol::parse("OC(c1ccccc1)(c1ccccc1)c1ccccn1").expect("parses");
+        let carbinol = summary(recognize(library, &m, 1, 14, &[]));
+        assert_eq!(
+            carbinol.map(|r| (r.0, r.2)),
+            Some(("hydroxymethyl".to_string(), true))
+        );
+        let m = mol::parse("COC(C)c1ccccc1").expect("parses");
+        let ether = summary(recognize(library, &m, 2, 4, &[]));
+        assert_eq!(
+            ether.map(|r| (r.0, r.2)),
+            Some(("methoxymethyl".to_string(), true))
+        );
+        let m = mol::parse("NC(C)c1ccccc1").expect("parses");
+        let amine = summary(recognize(library, &m, 1, 3, &[]));
+        assert_eq!(
+            amine.map(|r| (r.0, r.2)),
+            Some(("aminomethyl".to_string(), true))
+        );
+        // A plain branched alkyl stays one.
+        let m = mol::parse("CC(CC)c1ccccc1").expect("parses");
+        let alkyl = summary(recognize(library, &m, 1, 4, &[]));
+        assert_eq!(alkyl.map(|r| r.0), Some("alkyl-secondary".to_string()));
     }
 
     #[test]
