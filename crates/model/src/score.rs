@@ -2182,6 +2182,43 @@ fn is_plain_carbon(molecule: &Molecule, atom: usize) -> bool {
     a.element == 6 && a.charge == 0 && !a.aromatic && a.hybridization == Hybridization::Sp3
 }
 
+/// The polar groups on the saturated carbons of a recognized group (the R of an OR, SR or
+/// NHR), queued for the walk at their distance from the anchor. The group's sigma* is that
+/// of its plain R (sigma*(CH3OCH2) for any alkoxy), so a carboxyl on the R carbon, as in
+/// oxydiacetic or thiodiacetic acid, was never scored; sigma* values add along a chain
+/// with the fall-off per atom (Taft 1956; Perrin, Dempsey and Serjeant 1981, from
+/// memory). Plain carbons beyond stay the group's own: its sigma* already stands for
+/// them.
+fn queue_beyond_group(
+    molecule: &Molecule,
+    group: &[usize],
+    first: usize,
+    depth: usize,
+    visited: &mut Vec<usize>,
+    queue: &mut VecDeque<(usize, usize, usize)>,
+) {
+    for (c, d) in distances_within(molecule, first, |b| group.contains(&b)) {
+        if d == 0 || !is_plain_carbon(molecule, c) {
+            continue;
+        }
+        if depth + d + 1 > TAFT_MAX_DEPTH {
+            continue;
+        }
+        for nb in molecule.neighbors(c) {
+            let x = nb.atom;
+            if group.contains(&x)
+                || visited.contains(&x)
+                || molecule.atoms()[x].element == 1
+                || is_plain_carbon(molecule, x)
+            {
+                continue;
+            }
+            visited.push(x);
+            queue.push_back((x, c, depth + d + 1));
+        }
+    }
+}
+
 /// Bond distances from `start` to the atoms reached through atoms that `inside` admits,
 /// breadth-first, as (atom, distance) in the order reached (`start` first, at 0). For the
 /// small atom sets of one site (a pattern, a ring and its fused rings).
@@ -2465,6 +2502,7 @@ fn taft(
                     },
                 );
                 aryl_ring_groups(recognizer, &r.atoms, depth, k.rho, &mut visited, account);
+                queue_beyond_group(molecule, &r.atoms, atom, depth, &mut visited, &mut queue);
             }
             None => {
                 account.approximate += 1;
@@ -3275,6 +3313,23 @@ mod tests {
         // A sulfonate the site's estimate does not reach (on the far side of an azo link)
         // is coupled as any charged site is.
         assert!(pair("Oc1ccc(cc1)N=Nc1ccc(cc1)S(=O)(=O)O") > 0.0);
+    }
+
+    #[test]
+    fn a_carboxyl_beyond_an_ether_o_is_scored() {
+        // Oxydiacetic acid (pKa1 about 3.0 against methoxyacetic acid's 3.57, from memory of
+        // CRC): the second carboxyl, on the alkoxy group's carbon, withdraws too.
+        let site = |smiles: &str| {
+            let (_, sites) = parent_sites(smiles);
+            sites
+                .into_iter()
+                .find(|s| s.class == "acid.carboxylic.aliphatic")
+                .expect("a carboxylic acid site")
+        };
+        let methoxy = site("COCC(=O)O");
+        let oxy = site("OC(=O)COCC(=O)O");
+        assert!(oxy.terms.iter().any(|t| t.label.contains("CO2H")));
+        assert!(oxy.pka < methoxy.pka - 0.1, "{} {}", oxy.pka, methoxy.pka);
     }
 
     #[test]
