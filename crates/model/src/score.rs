@@ -1191,6 +1191,9 @@ fn hammett(
         ring_n_base,
         account,
     );
+    if class.kind == Kind::Acid && molecule.bond_between(found.atom, anchor).is_some() {
+        ortho_hbond += peri_acceptors(recognizer, ring, anchor, &fused_atoms, &avoid);
+    }
     if !site_in_ring {
         // The site's own alkyl groups (an N-ethyl on an aniline N): the carbons on their
         // alpha carbons.
@@ -2217,6 +2220,58 @@ fn queue_beyond_group(
             queue.push_back((x, c, depth + d + 1));
         }
     }
+}
+
+/// Hydrogen-bond acceptors on the peri atom of a fused six-ring (C8 of a 1-naphthol), for an
+/// acid site bonded to its anchor: the peri group holds the site's proton as an ortho
+/// acceptor does (8-hydroxynaphthalene-1-sulfonate far weaker an acid than 1-naphthol,
+/// common practice for peri hydrogen bonds). They are counted with the ortho acceptors;
+/// the groups themselves are scored with the fused ring's others.
+fn peri_acceptors(
+    recognizer: &mut Recognizer<'_, '_>,
+    ring: &[usize],
+    anchor: usize,
+    fused_atoms: &[usize],
+    avoid: &[usize],
+) -> usize {
+    if fused_atoms.is_empty() {
+        return 0;
+    }
+    let molecule = recognizer.molecule();
+    let mut keep_out: Vec<usize> = Vec::with_capacity(avoid.len() + fused_atoms.len());
+    keep_out.extend_from_slice(avoid);
+    keep_out.extend_from_slice(fused_atoms);
+    let dist = distances_within(molecule, anchor, |b| {
+        ring.contains(&b) || fused_atoms.contains(&b)
+    });
+    let mut count = 0;
+    for &f in fused_atoms {
+        let peri = dist.iter().any(|&(x, d)| x == f && d == 2)
+            && molecule
+                .rings()
+                .iter()
+                .any(|rg| rg.len() == 6 && rg.contains(&f) && rg.iter().any(|a| ring.contains(a)));
+        if !peri {
+            continue;
+        }
+        for nb in molecule.neighbors(f) {
+            let x = nb.atom;
+            if molecule.bonds()[nb.bond].in_ring
+                || ring.contains(&x)
+                || fused_atoms.contains(&x)
+                || molecule.atoms()[x].element == 1
+            {
+                continue;
+            }
+            if recognizer
+                .recognize(x, f, &keep_out)
+                .is_some_and(|r| r.entry.hbond_acceptor)
+            {
+                count += 1;
+            }
+        }
+    }
+    count
 }
 
 /// Bond distances from `start` to the atoms reached through atoms that `inside` admits,
@@ -3330,6 +3385,26 @@ mod tests {
         let oxy = site("OC(=O)COCC(=O)O");
         assert!(oxy.terms.iter().any(|t| t.label.contains("CO2H")));
         assert!(oxy.pka < methoxy.pka - 0.1, "{} {}", oxy.pka, methoxy.pka);
+    }
+
+    #[test]
+    fn a_peri_sulfonate_holds_a_naphthol_proton() {
+        // 8-Hydroxynaphthalene-1-sulfonic acid: the peri SO3- takes a hydrogen bond from the
+        // OH, counted as an ortho acceptor; 1-naphthol has none.
+        let hbonds = |smiles: &str| {
+            let (_, sites) = parent_sites(smiles);
+            let phenol = sites
+                .into_iter()
+                .find(|s| s.class == "acid.phenol")
+                .expect("the naphthol OH");
+            phenol
+                .terms
+                .iter()
+                .filter(|t| t.label.contains("ortho hydrogen-bond acceptor"))
+                .count()
+        };
+        assert_eq!(hbonds("Oc1cccc2cccc(c12)S(=O)(=O)O"), 1);
+        assert_eq!(hbonds("Oc1cccc2ccccc12"), 0);
     }
 
     #[test]
