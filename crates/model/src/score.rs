@@ -1232,6 +1232,9 @@ fn hammett(
         ring_n_base,
         account,
     );
+    if class.kind == Kind::Acid && molecule.bond_between(found.atom, anchor).is_some() {
+        ortho_hbond += peri_acceptors(recognizer, ring, anchor, &fused_atoms, &avoid);
+    }
     if !site_in_ring {
         // The site's own alkyl groups (an N-ethyl on an aniline N): the carbons on their
         // alpha carbons.
@@ -2248,6 +2251,95 @@ fn is_plain_carbon(molecule: &Molecule, atom: usize) -> bool {
     a.element == 6 && a.charge == 0 && !a.aromatic && a.hybridization == Hybridization::Sp3
 }
 
+/// The polar groups on the saturated carbons of a recognized group (the R of an OR, SR or
+/// NHR), queued for the walk at their distance from the anchor. The group's sigma* is that
+/// of its plain R (sigma*(CH3OCH2) for any alkoxy), so a carboxyl on the R carbon, as in
+/// oxydiacetic or thiodiacetic acid, was never scored; sigma* values add along a chain
+/// with the fall-off per atom (Taft 1956; Perrin, Dempsey and Serjeant 1981, from
+/// memory). Plain carbons beyond stay the group's own: its sigma* already stands for
+/// them.
+fn queue_beyond_group(
+    molecule: &Molecule,
+    group: &[usize],
+    first: usize,
+    depth: usize,
+    visited: &mut Vec<usize>,
+    queue: &mut VecDeque<(usize, usize, usize)>,
+) {
+    for (c, d) in distances_within(molecule, first, |b| group.contains(&b)) {
+        if d == 0 || !is_plain_carbon(molecule, c) {
+            continue;
+        }
+        if depth + d + 1 > TAFT_MAX_DEPTH {
+            continue;
+        }
+        for nb in molecule.neighbors(c) {
+            let x = nb.atom;
+            if group.contains(&x)
+                || visited.contains(&x)
+                || molecule.atoms()[x].element == 1
+                || is_plain_carbon(molecule, x)
+            {
+                continue;
+            }
+            visited.push(x);
+            queue.push_back((x, c, depth + d + 1));
+        }
+    }
+}
+
+/// Hydrogen-bond acceptors on the peri atom of a fused six-ring (C8 of a 1-naphthol), for an
+/// acid site bonded to its anchor: the peri group holds the site's proton as an ortho
+/// acceptor does (8-hydroxynaphthalene-1-sulfonate far weaker an acid than 1-naphthol,
+/// common practice for peri hydrogen bonds). They are counted with the ortho acceptors;
+/// the groups themselves are scored with the fused ring's others.
+fn peri_acceptors(
+    recognizer: &mut Recognizer<'_, '_>,
+    ring: &[usize],
+    anchor: usize,
+    fused_atoms: &[usize],
+    avoid: &[usize],
+) -> usize {
+    if fused_atoms.is_empty() {
+        return 0;
+    }
+    let molecule = recognizer.molecule();
+    let mut keep_out: Vec<usize> = Vec::with_capacity(avoid.len() + fused_atoms.len());
+    keep_out.extend_from_slice(avoid);
+    keep_out.extend_from_slice(fused_atoms);
+    let dist = distances_within(molecule, anchor, |b| {
+        ring.contains(&b) || fused_atoms.contains(&b)
+    });
+    let mut count = 0;
+    for &f in fused_atoms {
+        let peri = dist.iter().any(|&(x, d)| x == f && d == 2)
+            && molecule
+                .rings()
+                .iter()
+                .any(|rg| rg.len() == 6 && rg.contains(&f) && rg.iter().any(|a| ring.contains(a)));
+        if !peri {
+            continue;
+        }
+        for nb in molecule.neighbors(f) {
+            let x = nb.atom;
+            if molecule.bonds()[nb.bond].in_ring
+                || ring.contains(&x)
+                || fused_atoms.contains(&x)
+                || molecule.atoms()[x].element == 1
+            {
+                continue;
+            }
+            if recognizer
+                .recognize(x, f, &keep_out)
+                .is_some_and(|r| r.entry.hbond_acceptor)
+            {
+                count += 1;
+            }
+        }
+    }
+    count
+}
+
 /// Bond distances from `start` to the atoms reached through atoms that `inside` admits,
 /// breadth-first, as (atom, distance) in the order reached (`start` first, at 0). For the
 /// small atom sets of one site (a pattern, a ring and its fused rings).
@@ -2531,6 +2623,7 @@ fn taft(
                     },
                 );
                 aryl_ring_groups(recognizer, &r.atoms, depth, k.rho, &mut visited, account);
+                queue_beyond_group(molecule, &r.atoms, atom, depth, &mut visited, &mut queue);
             }
             None => {
                 account.approximate += 1;
@@ -2696,6 +2789,25 @@ fn aryl_ring_groups(
         ortho_substituent: false,
         counted: None,
     });
+}
+
+/// Whether `site`'s estimate scored the sulfonic acid site `sulfo` as a substituent. A free
+/// SO3H is ionized at every pH of the aqueous window, and the scorer gives it the constants
+/// of SO3- (measured on the anion, so they carry the field of its charge: Hansch, Leo and
+/// Taft, Chem. Rev. 1991, 91, 165, from memory); the pair coupling would count that charge
+/// a second time. Sulfonates the estimate did not reach (beyond an azo link) keep it.
+/// Known short: the test is by the entry's name among the terms, so with two sulfonates of
+/// which only one was scored both pairs go uncoupled.
+fn scores_sulfonate(library: &Library, site: &Site, sulfo: &Site) -> bool {
+    if sulfo.kind != Kind::Acid || !sulfo.class.starts_with("acid.sulfonic") {
+        return false;
+    }
+    let Some(entry) = entry_by_id(library, "sulfonate") else {
+        return false;
+    };
+    site.terms
+        .iter()
+        .any(|t| t.label.contains(entry.name.as_str()))
 }
 
 /// Where the monoanion hydrogen-bond term comes from (its value is in
@@ -2942,6 +3054,11 @@ pub fn interactions(library: &Library, molecule: &Molecule, sites: &[Site]) -> V
             // Charged forms: acids -1, bases +1; like signs repel, unlike ones attract, less
             // strongly than like ones repel at the same distance (see the header of
             // fragments/interactions.toml).
+            if scores_sulfonate(library, &sites[i], &sites[j])
+                || scores_sulfonate(library, &sites[j], &sites[i])
+            {
+                continue;
+            }
             let same_sign = sites[i].kind == sites[j].kind;
             let mut value = if same_sign {
                 magnitude
@@ -3388,6 +3505,67 @@ mod tests {
         let (m, sites) = parent_sites("NCC(=O)O");
         let w = interactions(Library::builtin(), &m, &sites);
         assert!(w[0][1] < 0.0, "{}", w[0][1]);
+    }
+
+    #[test]
+    fn a_sulfonate_scored_by_the_site_is_not_coupled_again() {
+        // 4-Sulfobenzoic acid: the carboxyl's estimate scores the SO3- (para), whose
+        // constants carry its charge; its measured 3.72 (from memory of CRC) lies below
+        // benzoic acid's 4.20, where a coupling on top would put it above.
+        let pair = |smiles: &str| {
+            let (m, sites) = parent_sites(smiles);
+            let w = interactions(Library::builtin(), &m, &sites);
+            let sulfo = sites
+                .iter()
+                .position(|s| s.class.starts_with("acid.sulfonic"))
+                .expect("the SO3H");
+            let other = sites
+                .iter()
+                .position(|s| s.kind == Kind::Acid && !s.class.starts_with("acid.sulfonic"))
+                .expect("the other acid");
+            w[sulfo][other]
+        };
+        assert_eq!(pair("OC(=O)c1ccc(cc1)S(=O)(=O)O"), 0.0);
+        // A sulfonate the site's estimate does not reach (on the far side of an azo link)
+        // is coupled as any charged site is.
+        assert!(pair("Oc1ccc(cc1)N=Nc1ccc(cc1)S(=O)(=O)O") > 0.0);
+    }
+
+    #[test]
+    fn a_carboxyl_beyond_an_ether_o_is_scored() {
+        // Oxydiacetic acid (pKa1 about 3.0 against methoxyacetic acid's 3.57, from memory of
+        // CRC): the second carboxyl, on the alkoxy group's carbon, withdraws too.
+        let site = |smiles: &str| {
+            let (_, sites) = parent_sites(smiles);
+            sites
+                .into_iter()
+                .find(|s| s.class == "acid.carboxylic.aliphatic")
+                .expect("a carboxylic acid site")
+        };
+        let methoxy = site("COCC(=O)O");
+        let oxy = site("OC(=O)COCC(=O)O");
+        assert!(oxy.terms.iter().any(|t| t.label.contains("CO2H")));
+        assert!(oxy.pka < methoxy.pka - 0.1, "{} {}", oxy.pka, methoxy.pka);
+    }
+
+    #[test]
+    fn a_peri_sulfonate_holds_a_naphthol_proton() {
+        // 8-Hydroxynaphthalene-1-sulfonic acid: the peri SO3- takes a hydrogen bond from the
+        // OH, counted as an ortho acceptor; 1-naphthol has none.
+        let hbonds = |smiles: &str| {
+            let (_, sites) = parent_sites(smiles);
+            let phenol = sites
+                .into_iter()
+                .find(|s| s.class == "acid.phenol")
+                .expect("the naphthol OH");
+            phenol
+                .terms
+                .iter()
+                .filter(|t| t.label.contains("ortho hydrogen-bond acceptor"))
+                .count()
+        };
+        assert_eq!(hbonds("Oc1cccc2cccc(c12)S(=O)(=O)O"), 1);
+        assert_eq!(hbonds("Oc1cccc2ccccc12"), 0);
     }
 
     #[test]
