@@ -722,6 +722,22 @@ fn validate(
         if class.scale != Scale::None && class.rho_source.trim().is_empty() {
             return Err(LibraryError::new(format!("{at}: rho has no source")));
         }
+        // These flags are read by the Hammett scorer alone: on another scale they would
+        // silently do nothing.
+        let on_ring_scale = matches!(
+            class.scale,
+            Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus
+        );
+        for (flag, set) in [
+            ("n_alkyl_counted", class.n_alkyl_counted),
+            ("para_to_site_carbon", class.para_to_site_carbon),
+        ] {
+            if set && !on_ring_scale {
+                return Err(LibraryError::new(format!(
+                    "{at}: {flag} is read on a Hammett scale only"
+                )));
+            }
+        }
         if let Some(h) = class.monoanion_hbond {
             if !h.is_finite() || h < 0.0 {
                 return Err(LibraryError::new(format!(

@@ -288,6 +288,18 @@ fn anchor_without_map_is_refused() {
 }
 
 #[test]
+fn ring_scale_flags_on_a_parent_only_class_are_refused() {
+    for flag in ["n_alkyl_counted", "para_to_site_carbon"] {
+        let err = load(&GOOD.replace("priority = 1", &format!("priority = 1\n{flag} = true")))
+            .unwrap_err();
+        assert!(
+            err.contains(&format!("{flag} is read on a Hammett scale only")),
+            "{err}"
+        );
+    }
+}
+
+#[test]
 fn duplicate_ids_are_refused_across_files() {
     let err = Library::from_sources(&[("a.toml", GOOD), ("b.toml", GOOD)], &[], &[])
         .unwrap_err()
