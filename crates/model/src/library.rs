@@ -267,6 +267,11 @@ pub struct SubstituentEntry {
     /// pyridine); the scorer uses sigma_I where it is absent.
     #[serde(default)]
     pub sigma_i_ring_n: Option<f64>,
+    /// The group's para constant at a pyridine-type ring N base site, where it differs from
+    /// sigma_p (derived from the pKa of the 4-substituted pyridine); the scorer uses sigma_p
+    /// where it is absent.
+    #[serde(default)]
+    pub sigma_p_ring_n: Option<f64>,
     /// The group's first atom carries a C=O or N-O that takes an intramolecular hydrogen
     /// bond with a site ortho to it (salicylaldehyde, 2-nitrophenol type).
     #[serde(default)]

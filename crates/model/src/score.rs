@@ -611,10 +611,12 @@ enum Used {
     Normal,
     /// The inductive constant beside a ring N base site (`sigma_i_ring_n`).
     RingN,
+    /// The para constant at a ring N base site (`sigma_p_ring_n`).
+    RingNPara,
 }
 
 impl Used {
-    const KINDS: usize = 8;
+    const KINDS: usize = 9;
 
     /// The constant behind the one [`hammett_sigma`] picked.
     fn of_hammett(which: Hammett) -> Used {
@@ -635,6 +637,7 @@ impl Used {
             Used::Inductive => "sigma_I",
             Used::Normal => "sigma_n",
             Used::RingN => "sigma_i_ring_n",
+            Used::RingNPara => "sigma_p_ring_n",
         }
     }
 
@@ -1207,7 +1210,14 @@ fn hammett(
                         } else {
                             pos
                         };
-                        push_acid_hammett(account, r.entry, pos, class, k.rho, name, ortho);
+                        match r.entry.sigma_p_ring_n.filter(|_| {
+                            ring_n_base && pos == Position::Para && class.scale == Scale::Hammett
+                        }) {
+                            Some(sigma) => push_para_ring_n(account, r.entry, sigma, k.rho, name),
+                            None => {
+                                push_acid_hammett(account, r.entry, pos, class, k.rho, name, ortho)
+                            }
+                        }
                     }
                     account.terms.extend(correction);
                 }
@@ -2076,6 +2086,33 @@ fn push_ortho_ring_n(account: &mut Account, entry: &SubstituentEntry, rho: f64, 
     if let Some(t) = account.terms.last_mut() {
         t.ortho_substituent = true;
     }
+}
+
+/// A para substituent of a pyridine-type ring N base site scored by its constant there
+/// (`sigma_p_ring_n`): a group whose sigma_p, read from benzoic acids, misses how it acts on
+/// the pyridinium N (an alkylthio group donates to it: 4-(methylthio)pyridine lies 0.7 above
+/// pyridine, where sigma_p 0.00 gives nothing).
+///
+/// # Reference
+///
+/// The constants are derived from the pKa of the 4-substituted pyridines with the pyridine
+/// rho 5.90 of Clark and Perrin, Q. Rev. Chem. Soc. 1964, 18, 295 (from memory); see
+/// `fragments/substituents/groups.toml`.
+fn push_para_ring_n(
+    account: &mut Account,
+    entry: &SubstituentEntry,
+    sigma: f64,
+    rho: f64,
+    label: Text,
+) {
+    account.substituent(
+        label,
+        sigma,
+        rho,
+        Cow::Borrowed("para at ring N (sigma_p from the 4-X-pyridine)"),
+        entry,
+        Used::RingNPara,
+    );
 }
 
 /// sigma_I = 0.45 sigma*(X-CH2): the bridge between the inductive scale and Taft's.
@@ -3181,6 +3218,7 @@ mod tests {
             Used::FromHammett,
             Used::Normal,
             Used::RingN,
+            Used::RingNPara,
         ];
         assert_eq!(kinds.len(), Used::KINDS);
         for source in &sources {
@@ -3209,6 +3247,7 @@ mod tests {
                 ),
                 (e.sigma_i.is_some(), Used::Inductive),
                 (e.sigma_i_ring_n.is_some(), Used::RingN),
+                (e.sigma_p_ring_n.is_some(), Used::RingNPara),
             ] {
                 if !has {
                     continue;
@@ -3255,6 +3294,36 @@ mod tests {
         assert_eq!(azinone_sigma("Cn1cnc(=O)cc1N"), amino.sigma_m);
         // 6-amino-1-methyl-2(1H)-pyrimidinone: C6=C5-C4=N3 joins the amino to the site.
         assert_eq!(azinone_sigma("Cn1c(N)ccnc1=O"), amino.sigma_p);
+    }
+
+    #[test]
+    fn a_para_alkylthio_at_a_ring_n_base_takes_its_ring_n_constant() {
+        let methylthio = Library::builtin()
+            .substituents
+            .iter()
+            .find(|e| e.id == "methylthio")
+            .expect("methylthio entry");
+        let sigma_of_sme = |smiles: &str| {
+            let (_, sites) = parent_sites(smiles);
+            sites
+                .iter()
+                .filter(|s| s.class.starts_with("base.pyridine"))
+                .flat_map(|s| s.terms.iter())
+                .find(|t| t.label.ends_with("-SCH3"))
+                .and_then(|t| t.sigma)
+        };
+        // 4-(methylthio)pyridine: para to the ring N, its pyridine constant; 3-(methylthio)
+        // pyridine: meta, sigma_m as before.
+        assert_eq!(sigma_of_sme("CSc1ccncc1"), methylthio.sigma_p_ring_n);
+        assert_eq!(sigma_of_sme("CSc1cccnc1"), methylthio.sigma_m);
+        // On a benzene ring (thioanisole-type acid site) sigma_p stays.
+        let (_, sites) = parent_sites("CSc1ccc(C(=O)O)cc1");
+        let acid = sites
+            .iter()
+            .flat_map(|s| s.terms.iter())
+            .find(|t| t.label.ends_with("-SCH3"))
+            .and_then(|t| t.sigma);
+        assert_eq!(acid, methylthio.sigma_p);
     }
 
     #[test]
@@ -3412,6 +3481,7 @@ mod tests {
             sigma_star_ch2: Some(1.0),
             sigma_i: None,
             sigma_i_ring_n: None,
+            sigma_p_ring_n: None,
             hbond_acceptor: false,
             walk: false,
             source: "test".into(),
