@@ -1179,7 +1179,15 @@ fn hammett(
                     }
                     // Built before the name moves into the substituent's term; listed after
                     // it.
-                    let correction = ortho_correction(account, k, ortho, number, r.entry, &name);
+                    // An aryl or vinyl group beside a six-ring N base site is no polar ortho
+                    // group: it has no lone pair or dipole at the N-H+, which the class's
+                    // ortho term stands for (2-halo, 2-alkoxy pyridines), and lowers the
+                    // site by its inductive constant (2-phenylpyridine 4.48 against 5.25,
+                    // sigma_I 0.12 giving 4.5; 2-vinylpyridine 4.98; from memory of CRC).
+                    let planar =
+                        ortho && ring_n_base && n == 6 && is_planar_carbon_group(molecule, s);
+                    let correction =
+                        ortho_correction(account, k, ortho && !planar, number, r.entry, &name);
                     if on_ring_n {
                         push_ortho_inductive(account, r.entry, k.rho, name);
                         if let Some(t) = account.terms.last_mut() {
@@ -1187,6 +1195,11 @@ fn hammett(
                         }
                     } else if ortho && ring_n_base {
                         push_ortho_ring_n(account, r.entry, k.rho, name);
+                        if planar {
+                            if let Some(t) = account.terms.last_mut() {
+                                t.ortho_substituent = false;
+                            }
+                        }
                     } else if ortho && site_in_ring {
                         push_ortho_inductive(account, r.entry, k.rho, name);
                     } else {
@@ -1744,6 +1757,26 @@ fn para_cross_conjugated(molecule: &Molecule, ring: &[usize], start: usize, step
     let forward = (1..step).any(|i| blocked(ring[(start + i) % n]));
     let backward = (step + 1..n).any(|i| blocked(ring[(start + i) % n]));
     forward && backward
+}
+
+/// Whether `atom`, a substituent's first atom, is an aromatic carbon (an aryl or heteroaryl
+/// bonded through carbon) or a vinyl-type carbon (a C=C, no double bond to a heteroatom).
+fn is_planar_carbon_group(molecule: &Molecule, atom: usize) -> bool {
+    let a = &molecule.atoms()[atom];
+    if a.element != 6 {
+        return false;
+    }
+    let double_to = |element: Option<u8>| {
+        molecule.neighbors(atom).iter().any(|n| {
+            let b = &molecule.bonds()[n.bond];
+            let e = molecule.atoms()[n.atom].element;
+            b.order == 2 && !b.aromatic && element.map_or(e != 6, |x| e == x)
+        })
+    };
+    if double_to(None) {
+        return false;
+    }
+    a.aromatic || double_to(Some(6))
 }
 
 /// Whether `atom` carries an exocyclic C=O or C=S (a ring lactam or thiolactam).
@@ -3294,6 +3327,26 @@ mod tests {
         assert_eq!(azinone_sigma("Cn1cnc(=O)cc1N"), amino.sigma_m);
         // 6-amino-1-methyl-2(1H)-pyrimidinone: C6=C5-C4=N3 joins the amino to the site.
         assert_eq!(azinone_sigma("Cn1c(N)ccnc1=O"), amino.sigma_p);
+    }
+
+    #[test]
+    fn an_aryl_or_vinyl_beside_a_six_ring_n_base_takes_no_ortho_correction() {
+        let ortho_terms = |smiles: &str| {
+            let (_, sites) = parent_sites(smiles);
+            sites
+                .iter()
+                .filter(|s| s.class == "base.pyridine")
+                .flat_map(|s| s.terms.iter())
+                .filter(|t| t.label.starts_with("ortho correction") || t.ortho_substituent)
+                .count()
+        };
+        // 2-phenylpyridine and 2-vinylpyridine: their inductive term only.
+        assert_eq!(ortho_terms("c1ccc(-c2ccccn2)cc1"), 0);
+        assert_eq!(ortho_terms("C=Cc1ccccn1"), 0);
+        // A polar ortho group (2-chloropyridine) keeps the class's ortho correction, and an
+        // acyl group (2-acetylpyridine, C=O) is no vinyl.
+        assert_eq!(ortho_terms("Clc1ccccn1"), 2);
+        assert_eq!(ortho_terms("CC(=O)c1ccccn1"), 2);
     }
 
     #[test]
