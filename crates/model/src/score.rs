@@ -1009,7 +1009,10 @@ fn hammett(
         // Ring atoms the class pattern names are part of its parent (the second N of a
         // pyrimidine class): their own aza term is in the parent value, but what hangs on
         // them is still scored.
-        let in_parent = found.matched.contains(&atom);
+        let in_parent = found.matched.contains(&atom)
+            || (class.ring_nh_meta_in_parent
+                && pos == Position::Meta
+                && is_pyrrole_type_n(molecule, atom));
         if let Some(entry) = ring_member_entry(library, molecule, atom).filter(|_| !in_parent) {
             push_hammett(
                 account,
@@ -3347,6 +3350,33 @@ mod tests {
         // acyl group (2-acetylpyridine, C=O) is no vinyl.
         assert_eq!(ortho_terms("Clc1ccccn1"), 2);
         assert_eq!(ortho_terms("CC(=O)c1ccccn1"), 2);
+    }
+
+    #[test]
+    fn the_azinone_ring_nh_meta_to_the_site_is_in_the_parent() {
+        for smiles in ["Cn1cccnc1=O", "O=c1ccnc[nH]1"] {
+            let (_, sites) = parent_sites(smiles);
+            let site = sites
+                .iter()
+                .find(|s| s.class == "base.azinone")
+                .expect("an azinone site");
+            assert!(
+                !site.warnings.iter().any(|w| w.contains("ring NH")),
+                "{smiles}: {:?}",
+                site.warnings
+            );
+            assert!(
+                !site.terms.iter().any(|t| t.label.contains("ring NH")),
+                "{smiles}"
+            );
+        }
+        // The N-methyl on that ring N is still scored (meta, sigma_m).
+        let (_, sites) = parent_sites("Cn1cccnc1=O");
+        assert!(sites
+            .iter()
+            .filter(|s| s.class == "base.azinone")
+            .flat_map(|s| s.terms.iter())
+            .any(|t| t.label.ends_with("-CH3")));
     }
 
     #[test]
