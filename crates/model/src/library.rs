@@ -108,6 +108,11 @@ pub struct SiteClass {
     /// a class correction, set by calibration, 0 when not calibrated).
     #[serde(default)]
     pub fused_aza_term: f64,
+    /// A pyrrole-type ring N (N-H, N-R) meta to the site on the site's ring is part of the
+    /// parent value, whose compounds have one there (the ring NH of a 4(3H)-pyrimidinone),
+    /// and is not scored (aromatic scales; the group on it still is).
+    #[serde(default)]
+    pub ring_nh_meta_in_parent: bool,
     /// Correction per exocyclic C=O or C=S on the site's ring (aromatic scales; a class
     /// correction, set by calibration, 0 when not calibrated).
     #[serde(default)]
@@ -267,6 +272,11 @@ pub struct SubstituentEntry {
     /// pyridine); the scorer uses sigma_I where it is absent.
     #[serde(default)]
     pub sigma_i_ring_n: Option<f64>,
+    /// The group's para constant at a pyridine-type ring N base site, where it differs from
+    /// sigma_p (derived from the pKa of the 4-substituted pyridine); the scorer uses sigma_p
+    /// where it is absent.
+    #[serde(default)]
+    pub sigma_p_ring_n: Option<f64>,
     /// The group's first atom carries a C=O or N-O that takes an intramolecular hydrogen
     /// bond with a site ortho to it (salicylaldehyde, 2-nitrophenol type).
     #[serde(default)]

@@ -611,10 +611,12 @@ enum Used {
     Normal,
     /// The inductive constant beside a ring N base site (`sigma_i_ring_n`).
     RingN,
+    /// The para constant at a ring N base site (`sigma_p_ring_n`).
+    RingNPara,
 }
 
 impl Used {
-    const KINDS: usize = 8;
+    const KINDS: usize = 9;
 
     /// The constant behind the one [`hammett_sigma`] picked.
     fn of_hammett(which: Hammett) -> Used {
@@ -635,6 +637,7 @@ impl Used {
             Used::Inductive => "sigma_I",
             Used::Normal => "sigma_n",
             Used::RingN => "sigma_i_ring_n",
+            Used::RingNPara => "sigma_p_ring_n",
         }
     }
 
@@ -1006,7 +1009,10 @@ fn hammett(
         // Ring atoms the class pattern names are part of its parent (the second N of a
         // pyrimidine class): their own aza term is in the parent value, but what hangs on
         // them is still scored.
-        let in_parent = found.matched.contains(&atom);
+        let in_parent = found.matched.contains(&atom)
+            || (class.ring_nh_meta_in_parent
+                && pos == Position::Meta
+                && is_pyrrole_type_n(molecule, atom));
         if let Some(entry) = ring_member_entry(library, molecule, atom).filter(|_| !in_parent) {
             push_hammett(
                 account,
@@ -1176,7 +1182,15 @@ fn hammett(
                     }
                     // Built before the name moves into the substituent's term; listed after
                     // it.
-                    let correction = ortho_correction(account, k, ortho, number, r.entry, &name);
+                    // An aryl or vinyl group beside a six-ring N base site is no polar ortho
+                    // group: it has no lone pair or dipole at the N-H+, which the class's
+                    // ortho term stands for (2-halo, 2-alkoxy pyridines), and lowers the
+                    // site by its inductive constant (2-phenylpyridine 4.48 against 5.25,
+                    // sigma_I 0.12 giving 4.5; 2-vinylpyridine 4.98; from memory of CRC).
+                    let planar =
+                        ortho && ring_n_base && n == 6 && is_planar_carbon_group(molecule, s);
+                    let correction =
+                        ortho_correction(account, k, ortho && !planar, number, r.entry, &name);
                     if on_ring_n {
                         push_ortho_inductive(account, r.entry, k.rho, name);
                         if let Some(t) = account.terms.last_mut() {
@@ -1184,6 +1198,11 @@ fn hammett(
                         }
                     } else if ortho && ring_n_base {
                         push_ortho_ring_n(account, r.entry, k.rho, name);
+                        if planar {
+                            if let Some(t) = account.terms.last_mut() {
+                                t.ortho_substituent = false;
+                            }
+                        }
                     } else if ortho && site_in_ring {
                         push_ortho_inductive(account, r.entry, k.rho, name);
                     } else {
@@ -1207,7 +1226,14 @@ fn hammett(
                         } else {
                             pos
                         };
-                        push_acid_hammett(account, r.entry, pos, class, k.rho, name, ortho);
+                        match r.entry.sigma_p_ring_n.filter(|_| {
+                            ring_n_base && pos == Position::Para && class.scale == Scale::Hammett
+                        }) {
+                            Some(sigma) => push_para_ring_n(account, r.entry, sigma, k.rho, name),
+                            None => {
+                                push_acid_hammett(account, r.entry, pos, class, k.rho, name, ortho)
+                            }
+                        }
                     }
                     account.terms.extend(correction);
                 }
@@ -1739,6 +1765,26 @@ fn para_cross_conjugated(molecule: &Molecule, ring: &[usize], start: usize, step
     forward && backward
 }
 
+/// Whether `atom`, a substituent's first atom, is an aromatic carbon (an aryl or heteroaryl
+/// bonded through carbon) or a vinyl-type carbon (a C=C, no double bond to a heteroatom).
+fn is_planar_carbon_group(molecule: &Molecule, atom: usize) -> bool {
+    let a = &molecule.atoms()[atom];
+    if a.element != 6 {
+        return false;
+    }
+    let double_to = |element: Option<u8>| {
+        molecule.neighbors(atom).iter().any(|n| {
+            let b = &molecule.bonds()[n.bond];
+            let e = molecule.atoms()[n.atom].element;
+            b.order == 2 && !b.aromatic && element.map_or(e != 6, |x| e == x)
+        })
+    };
+    if double_to(None) {
+        return false;
+    }
+    a.aromatic || double_to(Some(6))
+}
+
 /// Whether `atom` carries an exocyclic C=O or C=S (a ring lactam or thiolactam).
 fn has_exocyclic_oxo(molecule: &Molecule, atom: usize) -> bool {
     molecule.neighbors(atom).iter().any(|n| is_oxo(molecule, n))
@@ -2079,6 +2125,33 @@ fn push_ortho_ring_n(account: &mut Account, entry: &SubstituentEntry, rho: f64, 
     if let Some(t) = account.terms.last_mut() {
         t.ortho_substituent = true;
     }
+}
+
+/// A para substituent of a pyridine-type ring N base site scored by its constant there
+/// (`sigma_p_ring_n`): a group whose sigma_p, read from benzoic acids, misses how it acts on
+/// the pyridinium N (an alkylthio group donates to it: 4-(methylthio)pyridine lies 0.7 above
+/// pyridine, where sigma_p 0.00 gives nothing).
+///
+/// # Reference
+///
+/// The constants are derived from the pKa of the 4-substituted pyridines with the pyridine
+/// rho 5.90 of Clark and Perrin, Q. Rev. Chem. Soc. 1964, 18, 295 (from memory); see
+/// `fragments/substituents/groups.toml`.
+fn push_para_ring_n(
+    account: &mut Account,
+    entry: &SubstituentEntry,
+    sigma: f64,
+    rho: f64,
+    label: Text,
+) {
+    account.substituent(
+        label,
+        sigma,
+        rho,
+        Cow::Borrowed("para at ring N (sigma_p from the 4-X-pyridine)"),
+        entry,
+        Used::RingNPara,
+    );
 }
 
 /// sigma_I = 0.45 sigma*(X-CH2): the bridge between the inductive scale and Taft's.
@@ -3298,6 +3371,7 @@ mod tests {
             Used::FromHammett,
             Used::Normal,
             Used::RingN,
+            Used::RingNPara,
         ];
         assert_eq!(kinds.len(), Used::KINDS);
         for source in &sources {
@@ -3326,6 +3400,7 @@ mod tests {
                 ),
                 (e.sigma_i.is_some(), Used::Inductive),
                 (e.sigma_i_ring_n.is_some(), Used::RingN),
+                (e.sigma_p_ring_n.is_some(), Used::RingNPara),
             ] {
                 if !has {
                     continue;
@@ -3372,6 +3447,83 @@ mod tests {
         assert_eq!(azinone_sigma("Cn1cnc(=O)cc1N"), amino.sigma_m);
         // 6-amino-1-methyl-2(1H)-pyrimidinone: C6=C5-C4=N3 joins the amino to the site.
         assert_eq!(azinone_sigma("Cn1c(N)ccnc1=O"), amino.sigma_p);
+    }
+
+    #[test]
+    fn an_aryl_or_vinyl_beside_a_six_ring_n_base_takes_no_ortho_correction() {
+        let ortho_terms = |smiles: &str| {
+            let (_, sites) = parent_sites(smiles);
+            sites
+                .iter()
+                .filter(|s| s.class == "base.pyridine")
+                .flat_map(|s| s.terms.iter())
+                .filter(|t| t.label.starts_with("ortho correction") || t.ortho_substituent)
+                .count()
+        };
+        // 2-phenylpyridine and 2-vinylpyridine: their inductive term only.
+        assert_eq!(ortho_terms("c1ccc(-c2ccccn2)cc1"), 0);
+        assert_eq!(ortho_terms("C=Cc1ccccn1"), 0);
+        // A polar ortho group (2-chloropyridine) keeps the class's ortho correction, and an
+        // acyl group (2-acetylpyridine, C=O) is no vinyl.
+        assert_eq!(ortho_terms("Clc1ccccn1"), 2);
+        assert_eq!(ortho_terms("CC(=O)c1ccccn1"), 2);
+    }
+
+    #[test]
+    fn the_azinone_ring_nh_meta_to_the_site_is_in_the_parent() {
+        for smiles in ["Cn1cccnc1=O", "O=c1ccnc[nH]1"] {
+            let (_, sites) = parent_sites(smiles);
+            let site = sites
+                .iter()
+                .find(|s| s.class == "base.azinone")
+                .expect("an azinone site");
+            assert!(
+                !site.warnings.iter().any(|w| w.contains("ring NH")),
+                "{smiles}: {:?}",
+                site.warnings
+            );
+            assert!(
+                !site.terms.iter().any(|t| t.label.contains("ring NH")),
+                "{smiles}"
+            );
+        }
+        // The N-methyl on that ring N is still scored (meta, sigma_m).
+        let (_, sites) = parent_sites("Cn1cccnc1=O");
+        assert!(sites
+            .iter()
+            .filter(|s| s.class == "base.azinone")
+            .flat_map(|s| s.terms.iter())
+            .any(|t| t.label.ends_with("-CH3")));
+    }
+
+    #[test]
+    fn a_para_alkylthio_at_a_ring_n_base_takes_its_ring_n_constant() {
+        let methylthio = Library::builtin()
+            .substituents
+            .iter()
+            .find(|e| e.id == "methylthio")
+            .expect("methylthio entry");
+        let sigma_of_sme = |smiles: &str| {
+            let (_, sites) = parent_sites(smiles);
+            sites
+                .iter()
+                .filter(|s| s.class.starts_with("base.pyridine"))
+                .flat_map(|s| s.terms.iter())
+                .find(|t| t.label.ends_with("-SCH3"))
+                .and_then(|t| t.sigma)
+        };
+        // 4-(methylthio)pyridine: para to the ring N, its pyridine constant; 3-(methylthio)
+        // pyridine: meta, sigma_m as before.
+        assert_eq!(sigma_of_sme("CSc1ccncc1"), methylthio.sigma_p_ring_n);
+        assert_eq!(sigma_of_sme("CSc1cccnc1"), methylthio.sigma_m);
+        // On a benzene ring (thioanisole-type acid site) sigma_p stays.
+        let (_, sites) = parent_sites("CSc1ccc(C(=O)O)cc1");
+        let acid = sites
+            .iter()
+            .flat_map(|s| s.terms.iter())
+            .find(|t| t.label.ends_with("-SCH3"))
+            .and_then(|t| t.sigma);
+        assert_eq!(acid, methylthio.sigma_p);
     }
 
     #[test]
@@ -3590,6 +3742,7 @@ mod tests {
             sigma_star_ch2: Some(1.0),
             sigma_i: None,
             sigma_i_ring_n: None,
+            sigma_p_ring_n: None,
             hbond_acceptor: false,
             walk: false,
             source: "test".into(),

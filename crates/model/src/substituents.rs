@@ -303,7 +303,21 @@ fn nearest_type(molecule: &Molecule, atom: usize, fence: &[usize]) -> Option<&'s
     match a.element {
         6 => {
             if a.aromatic {
-                Some("phenyl")
+                // A heteroaryl bonded through a carbon beside a pyridine-type ring N
+                // (pyrimidin-2-yl, thiazol-2-yl, benzoxazol-2-yl) is nearer 2-pyridyl, an
+                // acceptor, than phenyl.
+                let beside_aza = beyond.iter().any(|&(e, o, c, t)| {
+                    e == 7
+                        && o == 4
+                        && c == 0
+                        && molecule.degree(t) == 2
+                        && molecule.total_hydrogens(t) == 0
+                });
+                if beside_aza {
+                    Some("pyridin-2-yl")
+                } else {
+                    Some("phenyl")
+                }
             } else if a.hybridization == Hybridization::Sp3 || molecule.total_degree(atom) == 4 {
                 // A saturated carbon that carries an O or N (a CH(OH)R, C(OH)R2, CH(OR)R,
                 // CH(NH2)R group) is no plain alkyl: the nearest type keeps its first-carbon
@@ -728,6 +742,27 @@ mod tests {
         let m = mol::parse("CC(CC)c1ccccc1").expect("parses");
         let alkyl = summary(recognize(library, &m, 1, 4, &[]));
         assert_eq!(alkyl.map(|r| r.0), Some("alkyl-secondary".to_string()));
+    }
+
+    #[test]
+    fn a_heteroaryl_carbon_beside_a_ring_n_is_nearer_2_pyridyl_than_phenyl() {
+        let library = Library::builtin();
+        // Thiazol-2-yl and pyrimidin-2-yl on a benzene ring (atom 0 seen from the phenyl
+        // carbon, atom 1), and a thiophen-3-yl, which has no ring N beside its bond.
+        for (smiles, want) in [
+            ("c1(-c2ccccc2)nccs1", "pyridin-2-yl"),
+            ("c1(-c2ccccc2)ncccn1", "pyridin-2-yl"),
+            ("c1(-c2ccccc2)ccsc1", "phenyl"),
+        ] {
+            let m = mol::parse(smiles).expect("test SMILES parses");
+            let from = 1;
+            let r = summary(recognize(library, &m, 0, from, &[]));
+            assert_eq!(
+                r.map(|r| (r.0, r.2)),
+                Some((want.to_string(), true)),
+                "{smiles}"
+            );
+        }
     }
 
     #[test]
