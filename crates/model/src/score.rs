@@ -2398,6 +2398,59 @@ fn parent_carbon_branches(
     out
 }
 
+/// What hangs beyond the alkyl R of an acyl group that a C-H acid's pattern holds (the two
+/// C=O of a 1,3-diketone): the pattern's parent has acetyl groups, so the R carbon itself is
+/// the reference (sigma* 0, as a carbon bonded to a Taft centre is) and its own carbons and
+/// groups enter the walk two bonds past it (propionyl, isobutyryl and pivaloyl differ from
+/// acetyl by one, two and three alkyl branches: sigma* values add along a chain with the
+/// fall-off per atom; Taft 1956; Perrin, Dempsey and Serjeant 1981, from memory). An R in a
+/// ring with its acyl carbon (cyclohexane-1,3-dione) is the ring's, part of its parent.
+/// The R carbons are marked visited, so the walk does not come back through them.
+fn acyl_alkyl_branches(
+    molecule: &Molecule,
+    found: &FoundSite,
+    anchor: usize,
+    visited: &mut Vec<usize>,
+) -> Vec<(usize, usize, usize)> {
+    let matched = &found.matched;
+    let mut out = Vec::new();
+    for nb in molecule.neighbors(anchor) {
+        let c = nb.atom;
+        let a = &molecule.atoms()[c];
+        if !matched.contains(&c)
+            || a.element != 6
+            || a.aromatic
+            || a.hybridization == Hybridization::Sp3
+            || !molecule.neighbors(c).iter().any(|n| is_oxo(molecule, n))
+        {
+            continue;
+        }
+        for rn in molecule.neighbors(c) {
+            let r = rn.atom;
+            if r == anchor
+                || matched.contains(&r)
+                || visited.contains(&r)
+                || !is_plain_carbon(molecule, r)
+                || molecule
+                    .rings()
+                    .iter()
+                    .any(|ring| ring.contains(&r) && ring.contains(&c))
+            {
+                continue;
+            }
+            visited.push(r);
+            for sn in molecule.neighbors(r) {
+                let x = sn.atom;
+                if x == c || visited.contains(&x) || molecule.atoms()[x].element == 1 {
+                    continue;
+                }
+                out.push((x, r, 2));
+            }
+        }
+    }
+    out
+}
+
 fn taft(
     library: &Library,
     recognizer: &mut Recognizer<'_, '_>,
@@ -2481,6 +2534,10 @@ fn taft(
     // piperidine or morpholine class) is part of no parent value: it enters the walk at its
     // distance from the anchor, nearest first, interleaved with the walk's own levels.
     let mut from_parent = parent_carbon_branches(molecule, found, anchor, &visited);
+    if anchor == found.atom {
+        from_parent.extend(acyl_alkyl_branches(molecule, found, anchor, &mut visited));
+        from_parent.sort_by(|a, b| b.2.cmp(&a.2));
+    }
     let mut alkyl = 0.0;
     let mut alkyl_source = None;
     // Atoms a recognized group took beyond its own first atom. A group met along two paths
