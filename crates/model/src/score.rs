@@ -2631,7 +2631,7 @@ fn taft(
     let mut from_parent = parent_carbon_branches(molecule, found, anchor, &visited);
     if anchor == found.atom {
         from_parent.extend(acyl_alkyl_branches(molecule, found, anchor, &mut visited));
-        from_parent.sort_by(|a, b| b.2.cmp(&a.2));
+        from_parent.sort_by_key(|b| std::cmp::Reverse(b.2));
     }
     let mut alkyl = 0.0;
     let mut alkyl_source = None;
