@@ -733,7 +733,10 @@ fn score_one(library: &Library, recognizer: &mut Recognizer<'_, '_>, found: &Fou
         .unwrap_or(found.atom);
     match class.scale {
         Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus => {
-            hammett(library, recognizer, found, class, &k, anchor, &mut account)
+            hammett(library, recognizer, found, class, &k, anchor, &mut account);
+            if class.kind == Kind::Acid && anchor != found.atom {
+                sulfonyl_aryl_substituents(recognizer, found, &mut account);
+            }
         }
         Scale::Taft => {
             taft(library, recognizer, found, &k, anchor, &mut account);
@@ -789,6 +792,98 @@ fn score_one(library: &Library, recognizer: &mut Recognizer<'_, '_>, found: &Fou
         terms: account.terms,
         warnings: account.warnings,
     }
+}
+
+/// Hammett reaction constant of an N-H acid for substituents on the benzene ring of its
+/// sulfonyl group.
+///
+/// # Reference
+///
+/// Arenesulfonamides ArSO2NH2, rho 1.06 (Perrin, Dempsey and Serjeant, "pKa Prediction for
+/// Organic Acids and Bases", 1981, from memory): the ring acts on the N-H through the SO2 the
+/// same way when the N carries an aryl group.
+const SULFONYL_ARYL_RHO: f64 = 1.06;
+
+/// For an N-H acid class scored on another ring (a sulfonanilide, scored on its N-aryl ring):
+/// the meta and para substituents of a benzene ring on the SO2 bonded to the site, which the
+/// class's parent (benzenesulfonyl) leaves out. A fixed term at [`SULFONYL_ARYL_RHO`], so a
+/// refit of the class's own rho does not move it; ortho groups and fused rings are left out
+/// (no published ortho values recalled).
+fn sulfonyl_aryl_substituents(
+    recognizer: &mut Recognizer<'_, '_>,
+    found: &FoundSite,
+    account: &mut Account,
+) {
+    let molecule = recognizer.molecule();
+    let atoms = molecule.atoms();
+    let mut sum = 0.0;
+    let mut names = String::new();
+    for nb in molecule.neighbors(found.atom) {
+        let s = nb.atom;
+        if atoms[s].element != 16 || !found.matched.contains(&s) {
+            continue;
+        }
+        for sn in molecule.neighbors(s) {
+            let ipso = sn.atom;
+            if atoms[ipso].element != 6 || !atoms[ipso].aromatic || found.matched.contains(&ipso) {
+                continue;
+            }
+            let Some(ring) = molecule.rings().iter().find(|r| {
+                r.len() == 6
+                    && r.contains(&ipso)
+                    && r.iter()
+                        .all(|&a| atoms[a].aromatic && atoms[a].element == 6)
+            }) else {
+                continue;
+            };
+            let mut keep_out: Vec<usize> = Vec::with_capacity(ring.len() + found.matched.len());
+            keep_out.extend_from_slice(ring);
+            keep_out.extend_from_slice(&found.matched);
+            let dist = distances_within(molecule, ipso, |b| ring.contains(&b));
+            for &(r, d) in &dist[1..] {
+                if d < 2 {
+                    continue;
+                }
+                for rn in molecule.neighbors(r) {
+                    let x = rn.atom;
+                    if keep_out.contains(&x)
+                        || molecule.bonds()[rn.bond].in_ring
+                        || atoms[x].element == 1
+                    {
+                        continue;
+                    }
+                    let Some(g) = recognizer.recognize(x, r, &keep_out) else {
+                        continue;
+                    };
+                    let Some((sigma, _)) = hammett_sigma(g.entry, position(d), Scale::Hammett)
+                    else {
+                        continue;
+                    };
+                    if g.approximate {
+                        account.approximate += 1;
+                    }
+                    sum += sigma;
+                    push_group(&mut names, &g.entry.name);
+                }
+            }
+        }
+    }
+    if sum == 0.0 {
+        return;
+    }
+    account.terms.push(Term {
+        label: Cow::Owned(concat(&["groups on the sulfonyl aryl ring (", &names, ")"])),
+        contribution: -SULFONYL_ARYL_RHO * sum,
+        source: Cow::Borrowed(
+            "Hammett sigma_m / sigma_p of the ring groups; rho 1.06 of arenesulfonamides (Perrin, Dempsey and Serjeant 1981, from memory)",
+        ),
+        sigma: Some(sum),
+        rho: Some(SULFONYL_ARYL_RHO),
+        position: Some(Cow::Borrowed("sulfonyl aryl ring (sigma_m, sigma_p)")),
+        role: TermRole::Correction,
+        ortho_substituent: false,
+        counted: None,
+    });
 }
 
 /// The ring (of the smallest set) that positions are counted on: the smallest aromatic ring
@@ -2471,6 +2566,59 @@ fn parent_carbon_branches(
     out
 }
 
+/// What hangs beyond the alkyl R of an acyl group that a C-H acid's pattern holds (the two
+/// C=O of a 1,3-diketone): the pattern's parent has acetyl groups, so the R carbon itself is
+/// the reference (sigma* 0, as a carbon bonded to a Taft centre is) and its own carbons and
+/// groups enter the walk two bonds past it (propionyl, isobutyryl and pivaloyl differ from
+/// acetyl by one, two and three alkyl branches: sigma* values add along a chain with the
+/// fall-off per atom; Taft 1956; Perrin, Dempsey and Serjeant 1981, from memory). An R in a
+/// ring with its acyl carbon (cyclohexane-1,3-dione) is the ring's, part of its parent.
+/// The R carbons are marked visited, so the walk does not come back through them.
+fn acyl_alkyl_branches(
+    molecule: &Molecule,
+    found: &FoundSite,
+    anchor: usize,
+    visited: &mut Vec<usize>,
+) -> Vec<(usize, usize, usize)> {
+    let matched = &found.matched;
+    let mut out = Vec::new();
+    for nb in molecule.neighbors(anchor) {
+        let c = nb.atom;
+        let a = &molecule.atoms()[c];
+        if !matched.contains(&c)
+            || a.element != 6
+            || a.aromatic
+            || a.hybridization == Hybridization::Sp3
+            || !molecule.neighbors(c).iter().any(|n| is_oxo(molecule, n))
+        {
+            continue;
+        }
+        for rn in molecule.neighbors(c) {
+            let r = rn.atom;
+            if r == anchor
+                || matched.contains(&r)
+                || visited.contains(&r)
+                || !is_plain_carbon(molecule, r)
+                || molecule
+                    .rings()
+                    .iter()
+                    .any(|ring| ring.contains(&r) && ring.contains(&c))
+            {
+                continue;
+            }
+            visited.push(r);
+            for sn in molecule.neighbors(r) {
+                let x = sn.atom;
+                if x == c || visited.contains(&x) || molecule.atoms()[x].element == 1 {
+                    continue;
+                }
+                out.push((x, r, 2));
+            }
+        }
+    }
+    out
+}
+
 fn taft(
     library: &Library,
     recognizer: &mut Recognizer<'_, '_>,
@@ -2554,6 +2702,10 @@ fn taft(
     // piperidine or morpholine class) is part of no parent value: it enters the walk at its
     // distance from the anchor, nearest first, interleaved with the walk's own levels.
     let mut from_parent = parent_carbon_branches(molecule, found, anchor, &visited);
+    if anchor == found.atom {
+        from_parent.extend(acyl_alkyl_branches(molecule, found, anchor, &mut visited));
+        from_parent.sort_by_key(|b| std::cmp::Reverse(b.2));
+    }
     let mut alkyl = 0.0;
     let mut alkyl_source = None;
     // Atoms a recognized group took beyond its own first atom. A group met along two paths
