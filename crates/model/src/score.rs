@@ -3615,22 +3615,31 @@ mod tests {
         (m, sites)
     }
 
-    #[test]
-    fn a_para_amino_cut_off_by_the_ring_oxo_is_read_with_sigma_m() {
-        let amino = Library::builtin()
+    /// The built-in substituent entry `id`.
+    fn entry(id: &str) -> &'static SubstituentEntry {
+        Library::builtin()
             .substituents
             .iter()
-            .find(|e| e.id == "amino")
-            .expect("amino entry");
-        let azinone_sigma = |smiles: &str| {
-            let (_, sites) = parent_sites(smiles);
-            sites
-                .iter()
-                .filter(|s| s.class == "base.azinone")
-                .flat_map(|s| s.terms.iter())
-                .find(|t| t.label.ends_with("-NH2"))
-                .and_then(|t| t.sigma)
-        };
+            .find(|e| e.id == id)
+            .unwrap_or_else(|| panic!("no {id} entry"))
+    }
+
+    /// The sigma of the first term whose label ends with `label_end`, on the sites of
+    /// `smiles` whose class `class` accepts.
+    fn term_sigma(smiles: &str, class: impl Fn(&str) -> bool, label_end: &str) -> Option<f64> {
+        let (_, sites) = parent_sites(smiles);
+        sites
+            .iter()
+            .filter(|s| class(&s.class))
+            .flat_map(|s| s.terms.iter())
+            .find(|t| t.label.ends_with(label_end))
+            .and_then(|t| t.sigma)
+    }
+
+    #[test]
+    fn a_para_amino_cut_off_by_the_ring_oxo_is_read_with_sigma_m() {
+        let amino = entry("amino");
+        let azinone_sigma = |smiles: &str| term_sigma(smiles, |c| c == "base.azinone", "-NH2");
         // 6-amino-3-methyl-4(3H)-pyrimidinone type: between the site N3 and C6 lie the C4=O
         // on one side and the N1-methyl on the other, so the amino conjugates with the C=O only.
         assert_eq!(azinone_sigma("Cn1cnc(=O)cc1N"), amino.sigma_m);
@@ -3687,41 +3696,21 @@ mod tests {
 
     #[test]
     fn a_para_alkylthio_at_a_ring_n_base_takes_its_ring_n_constant() {
-        let methylthio = Library::builtin()
-            .substituents
-            .iter()
-            .find(|e| e.id == "methylthio")
-            .expect("methylthio entry");
-        let sigma_of_sme = |smiles: &str| {
-            let (_, sites) = parent_sites(smiles);
-            sites
-                .iter()
-                .filter(|s| s.class.starts_with("base.pyridine"))
-                .flat_map(|s| s.terms.iter())
-                .find(|t| t.label.ends_with("-SCH3"))
-                .and_then(|t| t.sigma)
-        };
+        let methylthio = entry("methylthio");
+        let sigma_of_sme =
+            |smiles: &str| term_sigma(smiles, |c| c.starts_with("base.pyridine"), "-SCH3");
         // 4-(methylthio)pyridine: para to the ring N, its pyridine constant; 3-(methylthio)
         // pyridine: meta, sigma_m as before.
         assert_eq!(sigma_of_sme("CSc1ccncc1"), methylthio.sigma_p_ring_n);
         assert_eq!(sigma_of_sme("CSc1cccnc1"), methylthio.sigma_m);
         // On a benzene ring (thioanisole-type acid site) sigma_p stays.
-        let (_, sites) = parent_sites("CSc1ccc(C(=O)O)cc1");
-        let acid = sites
-            .iter()
-            .flat_map(|s| s.terms.iter())
-            .find(|t| t.label.ends_with("-SCH3"))
-            .and_then(|t| t.sigma);
+        let acid = term_sigma("CSc1ccc(C(=O)O)cc1", |_| true, "-SCH3");
         assert_eq!(acid, methylthio.sigma_p);
     }
 
     #[test]
     fn halogen_beside_a_ring_n_base_takes_its_ring_n_constant() {
-        let chloro = Library::builtin()
-            .substituents
-            .iter()
-            .find(|e| e.id == "chloro")
-            .expect("chloro entry");
+        let chloro = entry("chloro");
         let ring_n = chloro.sigma_i_ring_n.expect("chloro has sigma_i_ring_n");
         let pyridine_site = |smiles: &str| {
             let (_, sites) = parent_sites(smiles);

@@ -720,24 +720,19 @@ mod tests {
         let library = Library::builtin();
         // Diphenyl(hydroxy)methyl, 1-methoxyethyl, 1-aminoethyl (no pattern of their own),
         // each seen from the ring carbon it is bonded to.
-        let m = mol::parse("OC(c1ccccc1)(c1ccccc1)c1ccccn1").expect("parses");
-        let carbinol = summary(recognize(library, &m, 1, 14, &[]));
-        assert_eq!(
-            carbinol.map(|r| (r.0, r.2)),
-            Some(("hydroxymethyl".to_string(), true))
-        );
-        let m = mol::parse("COC(C)c1ccccc1").expect("parses");
-        let ether = summary(recognize(library, &m, 2, 4, &[]));
-        assert_eq!(
-            ether.map(|r| (r.0, r.2)),
-            Some(("methoxymethyl".to_string(), true))
-        );
-        let m = mol::parse("NC(C)c1ccccc1").expect("parses");
-        let amine = summary(recognize(library, &m, 1, 3, &[]));
-        assert_eq!(
-            amine.map(|r| (r.0, r.2)),
-            Some(("aminomethyl".to_string(), true))
-        );
+        for (smiles, atom, from, id) in [
+            ("OC(c1ccccc1)(c1ccccc1)c1ccccn1", 1, 14, "hydroxymethyl"),
+            ("COC(C)c1ccccc1", 2, 4, "methoxymethyl"),
+            ("NC(C)c1ccccc1", 1, 3, "aminomethyl"),
+        ] {
+            let m = mol::parse(smiles).expect("parses");
+            let found = summary(recognize(library, &m, atom, from, &[]));
+            assert_eq!(
+                found.map(|r| (r.0, r.2)),
+                Some((id.to_string(), true)),
+                "{smiles}"
+            );
+        }
         // A plain branched alkyl stays one.
         let m = mol::parse("CC(CC)c1ccccc1").expect("parses");
         let alkyl = summary(recognize(library, &m, 1, 4, &[]));
