@@ -1680,57 +1680,39 @@ fn fused_ring_substituents(
     }
     let mut peri_hbond = 0;
     let molecule = recognizer.molecule();
-    let mut keep_out: Vec<usize> = Vec::with_capacity(avoid.len() + fused_atoms.len());
-    keep_out.extend_from_slice(avoid);
-    keep_out.extend_from_slice(fused_atoms);
-    // Bonds from the anchor through the site's ring and the fused rings.
-    let dist = distances_within(molecule, anchor, |b| {
-        ring.contains(&b) || fused_atoms.contains(&b)
-    });
+    let (keep_out, fused_groups) = fused_ring_groups(molecule, ring, anchor, fused_atoms, avoid);
     let mut groups = RingGroups::default();
-    for &f in fused_atoms {
-        let Some(&(_, d)) = dist.iter().find(|&&(x, _)| x == f) else {
+    for (f, x, d) in fused_groups {
+        let Some(r) = recognizer.recognize(x, f, &keep_out) else {
             continue;
         };
-        for nb in molecule.neighbors(f) {
-            let x = nb.atom;
-            if molecule.bonds()[nb.bond].in_ring
-                || ring.contains(&x)
-                || fused_atoms.contains(&x)
-                || molecule.atoms()[x].element == 1
-            {
-                continue;
+        // A peri group (8-substituted quinolines): on the fused six-ring atom next to
+        // the fusion atom ortho to a ring-member base site, it crowds the site as an
+        // ortho group does (8-methylquinoline 4.6, 8-aminoquinoline 3.99 against
+        // quinoline 4.90; from memory of Albert, Goldacre and Phillips, J. Chem. Soc.
+        // 1948, 2240), and is scored so: sigma_I and the class's ortho term.
+        if peri
+            && d == 2
+            && molecule
+                .rings()
+                .iter()
+                .any(|rg| rg.len() == 6 && rg.contains(&f) && rg.iter().any(|a| ring.contains(a)))
+        {
+            // A peri O (hydroxy as well as alkoxy) takes a hydrogen bond from the site's
+            // N-H+ (8-hydroxyquinoline 4.91, near quinoline's 4.90; from memory of CRC).
+            if r.entry.hbond_acceptor || molecule.atoms()[x].element == 8 {
+                peri_hbond += 1;
             }
-            let Some(r) = recognizer.recognize(x, f, &keep_out) else {
-                continue;
-            };
-            // A peri group (8-substituted quinolines): on the fused six-ring atom next to
-            // the fusion atom ortho to a ring-member base site, it crowds the site as an
-            // ortho group does (8-methylquinoline 4.6, 8-aminoquinoline 3.99 against
-            // quinoline 4.90; from memory of Albert, Goldacre and Phillips, J. Chem. Soc.
-            // 1948, 2240), and is scored so: sigma_I and the class's ortho term.
-            if peri
-                && d == 2
-                && molecule.rings().iter().any(|rg| {
-                    rg.len() == 6 && rg.contains(&f) && rg.iter().any(|a| ring.contains(a))
-                })
-            {
-                // A peri O (hydroxy as well as alkoxy) takes a hydrogen bond from the site's
-                // N-H+ (8-hydroxyquinoline 4.91, near quinoline's 4.90; from memory of CRC).
-                if r.entry.hbond_acceptor || molecule.atoms()[x].element == 8 {
-                    peri_hbond += 1;
-                }
-                let name = concat(&["peri ", &r.entry.name]);
-                push_ortho_inductive(account, r.entry, k.rho, Cow::Owned(name.clone()));
-                if k.ortho_term != 0.0 {
-                    let label = Cow::Owned(concat(&["ortho correction (", &name, ")"]));
-                    let term = ortho_term(account, k, label);
-                    account.terms.push(term);
-                }
-                continue;
+            let name = concat(&["peri ", &r.entry.name]);
+            push_ortho_inductive(account, r.entry, k.rho, Cow::Owned(name.clone()));
+            if k.ortho_term != 0.0 {
+                let label = Cow::Owned(concat(&["ortho correction (", &name, ")"]));
+                let term = ortho_term(account, k, label);
+                account.terms.push(term);
             }
-            groups.add(r.entry, conjugation_distance(molecule, ring, f, d), scale);
+            continue;
         }
+        groups.add(r.entry, conjugation_distance(molecule, ring, f, d), scale);
     }
     push_ring_group_sums(
         account,
@@ -2509,22 +2491,47 @@ fn peri_acceptors(
         return 0;
     }
     let molecule = recognizer.molecule();
+    let (keep_out, groups) = fused_ring_groups(molecule, ring, anchor, fused_atoms, avoid);
+    let mut count = 0;
+    for (f, x, d) in groups {
+        let peri = d == 2
+            && molecule
+                .rings()
+                .iter()
+                .any(|rg| rg.len() == 6 && rg.contains(&f) && rg.iter().any(|a| ring.contains(a)));
+        if peri
+            && recognizer
+                .recognize(x, f, &keep_out)
+                .is_some_and(|r| r.entry.hbond_acceptor)
+        {
+            count += 1;
+        }
+    }
+    count
+}
+
+/// The groups on the aromatic rings fused to the site's ring, as (fused-ring atom, the
+/// group's first atom, bonds from the anchor to the fused-ring atom through the site's and
+/// the fused rings), for the fused atoms that distance reaches; and the atoms a recognizer
+/// walking those groups keeps out (`avoid` and the fused atoms).
+fn fused_ring_groups(
+    molecule: &Molecule,
+    ring: &[usize],
+    anchor: usize,
+    fused_atoms: &[usize],
+    avoid: &[usize],
+) -> (Vec<usize>, Vec<(usize, usize, usize)>) {
     let mut keep_out: Vec<usize> = Vec::with_capacity(avoid.len() + fused_atoms.len());
     keep_out.extend_from_slice(avoid);
     keep_out.extend_from_slice(fused_atoms);
     let dist = distances_within(molecule, anchor, |b| {
         ring.contains(&b) || fused_atoms.contains(&b)
     });
-    let mut count = 0;
+    let mut groups = Vec::new();
     for &f in fused_atoms {
-        let peri = dist.iter().any(|&(x, d)| x == f && d == 2)
-            && molecule
-                .rings()
-                .iter()
-                .any(|rg| rg.len() == 6 && rg.contains(&f) && rg.iter().any(|a| ring.contains(a)));
-        if !peri {
+        let Some(&(_, d)) = dist.iter().find(|&&(x, _)| x == f) else {
             continue;
-        }
+        };
         for nb in molecule.neighbors(f) {
             let x = nb.atom;
             if molecule.bonds()[nb.bond].in_ring
@@ -2534,15 +2541,10 @@ fn peri_acceptors(
             {
                 continue;
             }
-            if recognizer
-                .recognize(x, f, &keep_out)
-                .is_some_and(|r| r.entry.hbond_acceptor)
-            {
-                count += 1;
-            }
+            groups.push((f, x, d));
         }
     }
-    count
+    (keep_out, groups)
 }
 
 /// Bond distances from `start` to the atoms reached through atoms that `inside` admits,
