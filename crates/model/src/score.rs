@@ -3409,6 +3409,33 @@ mod tests {
     }
 
     #[test]
+    fn a_group_on_the_far_ring_of_a_phenanthroline_is_scored() {
+        // 4-cyano-1,10-phenanthroline: at N10 the cyano group sits on the ring fused to the
+        // middle ring, four bonds away through the rings (even: sigma_m, 0.56 in Hansch,
+        // Leo and Taft 1991), and enters the fused-ring sum there; the plain
+        // phenanthroline has no such term.
+        let fused_sums = |smiles: &str| -> Vec<f64> {
+            let (m, sites) = parent_sites(smiles);
+            sites
+                .iter()
+                .filter(|s| s.kind == Kind::Base && m.atoms()[s.atom].aromatic)
+                .flat_map(|s| s.terms.iter())
+                .filter_map(|t| match t.counted {
+                    Some((Counted::FusedSubstituents, sum)) => Some(sum),
+                    _ => None,
+                })
+                .collect()
+        };
+        let cyano = fused_sums("N#Cc1ccnc2c1ccc1cccnc12");
+        let sigma_m = entry("cyano").sigma_m.expect("cyano has sigma_m");
+        assert!(
+            cyano.iter().any(|&sum| (sum - sigma_m).abs() < 1e-9),
+            "{cyano:?}"
+        );
+        assert!(fused_sums("c1cnc2c(c1)ccc1cccnc12").is_empty());
+    }
+
+    #[test]
     fn an_anilines_own_n_substituents_enter_with_their_sigma_star() {
         // N-(2-hydroxyethyl)aniline: the OH two bonds out from the N's alpha carbon is
         // found by the amine-style walk and counted with its (positive) sigma*; the
