@@ -1777,7 +1777,7 @@ fn conjugation_distance(molecule: &Molecule, ring: &[usize], f: usize, d: usize)
         .rings()
         .iter()
         .any(|rg| rg.len() == 6 && rg.contains(&f));
-    if d.is_multiple_of(2) || ring.len() != 6 || !in_six {
+    if d % 2 == 0 || ring.len() != 6 || !in_six {
         return d;
     }
     let beside_fusion = molecule.neighbors(f).iter().any(|nb| {
