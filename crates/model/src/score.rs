@@ -3463,13 +3463,7 @@ mod tests {
 
     #[test]
     fn an_iminoazine_counts_the_alkyls_on_its_exocyclic_n() {
-        let amidine_site = |smiles: &str| {
-            let (_, sites) = parent_sites(smiles);
-            sites
-                .into_iter()
-                .find(|s| s.class == "base.imine.cyclic_amidine")
-                .expect("a cyclic amidine site")
-        };
+        let amidine_site = |smiles: &str| class_site(smiles, "base.imine.cyclic_amidine");
         let count = |site: &Site| {
             site.terms
                 .iter()
@@ -3489,11 +3483,7 @@ mod tests {
         // 5-methoxy-1-methyl-2(1H)-pyrimidinimine: the OMe is meta to the scored ring N
         // but para to C2, and takes sigma_p (negative for OMe); the ring's second N stays
         // meta (sigma_m).
-        let (_, sites) = parent_sites("COc1cnc(=N)n(C)c1");
-        let site = sites
-            .into_iter()
-            .find(|s| s.class == "base.imine.cyclic_amidine")
-            .expect("a cyclic amidine site");
+        let site = class_site("COc1cnc(=N)n(C)c1", "base.imine.cyclic_amidine");
         let methoxy = site
             .terms
             .iter()
@@ -3670,6 +3660,15 @@ mod tests {
         (m, sites)
     }
 
+    /// The first site of class `class` in the parent of `smiles`.
+    fn class_site(smiles: &str, class: &str) -> Site {
+        let (_, sites) = parent_sites(smiles);
+        sites
+            .into_iter()
+            .find(|s| s.class == class)
+            .unwrap_or_else(|| panic!("{smiles}: no {class} site"))
+    }
+
     /// The built-in substituent entry `id`.
     fn entry(id: &str) -> &'static SubstituentEntry {
         Library::builtin()
@@ -3725,11 +3724,7 @@ mod tests {
     #[test]
     fn the_azinone_ring_nh_meta_to_the_site_is_in_the_parent() {
         for smiles in ["Cn1cccnc1=O", "O=c1ccnc[nH]1"] {
-            let (_, sites) = parent_sites(smiles);
-            let site = sites
-                .iter()
-                .find(|s| s.class == "base.azinone")
-                .expect("an azinone site");
+            let site = class_site(smiles, "base.azinone");
             assert!(
                 !site.warnings.iter().any(|w| w.contains("ring NH")),
                 "{smiles}: {:?}",
@@ -3767,13 +3762,7 @@ mod tests {
     fn halogen_beside_a_ring_n_base_takes_its_ring_n_constant() {
         let chloro = entry("chloro");
         let ring_n = chloro.sigma_i_ring_n.expect("chloro has sigma_i_ring_n");
-        let pyridine_site = |smiles: &str| {
-            let (_, sites) = parent_sites(smiles);
-            sites
-                .into_iter()
-                .find(|s| s.class == "base.pyridine")
-                .expect("a pyridine site")
-        };
+        let pyridine_site = |smiles: &str| class_site(smiles, "base.pyridine");
         let sigma_of = |site: &Site, label: &str| {
             site.terms
                 .iter()
@@ -3920,13 +3909,7 @@ mod tests {
     fn a_carboxyl_beyond_an_ether_o_is_scored() {
         // Oxydiacetic acid (pKa1 about 3.0 against methoxyacetic acid's 3.57, from memory of
         // CRC): the second carboxyl, on the alkoxy group's carbon, withdraws too.
-        let site = |smiles: &str| {
-            let (_, sites) = parent_sites(smiles);
-            sites
-                .into_iter()
-                .find(|s| s.class == "acid.carboxylic.aliphatic")
-                .expect("a carboxylic acid site")
-        };
+        let site = |smiles: &str| class_site(smiles, "acid.carboxylic.aliphatic");
         let methoxy = site("COCC(=O)O");
         let oxy = site("OC(=O)COCC(=O)O");
         assert!(oxy.terms.iter().any(|t| t.label.contains("CO2H")));
@@ -3938,11 +3921,7 @@ mod tests {
         // 8-Hydroxynaphthalene-1-sulfonic acid: the peri SO3- takes a hydrogen bond from the
         // OH, counted as an ortho acceptor; 1-naphthol has none.
         let hbonds = |smiles: &str| {
-            let (_, sites) = parent_sites(smiles);
-            let phenol = sites
-                .into_iter()
-                .find(|s| s.class == "acid.phenol")
-                .expect("the naphthol OH");
+            let phenol = class_site(smiles, "acid.phenol");
             phenol
                 .terms
                 .iter()
