@@ -1344,18 +1344,22 @@ fn hammett(
             }
         }
     }
+    let peri = if ring_n_base {
+        Peri::Crowds
+    } else if class.kind == Kind::Acid && molecule.bond_between(found.atom, anchor).is_some() {
+        Peri::Accepts
+    } else {
+        Peri::Plain
+    };
     ortho_hbond += fused_ring_substituents(
         recognizer,
         (ring, anchor, class.scale),
         &fused_atoms,
         &avoid,
         k,
-        ring_n_base,
+        peri,
         account,
     );
-    if class.kind == Kind::Acid && molecule.bond_between(found.atom, anchor).is_some() {
-        ortho_hbond += peri_acceptors(recognizer, ring, anchor, &fused_atoms, &avoid);
-    }
     if !site_in_ring {
         // The site's own alkyl groups (an N-ethyl on an aniline N): the carbons on their
         // alpha carbons.
@@ -1658,13 +1662,25 @@ fn site_aryl_substituents(
     );
 }
 
+/// What a group on the peri atom of a fused six-ring does to the site.
+#[derive(Clone, Copy, PartialEq, Eq)]
+enum Peri {
+    /// A ring-member base site: the peri group crowds it as an ortho group does.
+    Crowds,
+    /// An acid site bonded to its anchor (a 1-naphthol): a peri acceptor holds its proton.
+    Accepts,
+    /// Neither: the peri group is one of the fused ring's substituents.
+    Plain,
+}
+
 /// The substituents on the aromatic rings fused to the site's ring, in two coefficient
 /// terms: those an even number of bonds from the site's ring atom on their summed sigma_m,
 /// those an odd number away (in conjugation, as from ortho or para) on their summed sigma_p
 /// of the class's scale. Transmission across a ring fusion is weaker than within a ring and
 /// differs by position; each class's fitted coefficients stand for it (common practice:
 /// conjugated positions of naphthalenes and quinolines take sigma_p-type constants, the
-/// others sigma_m-type).
+/// others sigma_m-type). Returns the peri groups that hydrogen-bond the site, for the
+/// class's ortho acceptor count.
 #[allow(clippy::too_many_arguments)]
 fn fused_ring_substituents(
     recognizer: &mut Recognizer<'_, '_>,
@@ -1672,7 +1688,7 @@ fn fused_ring_substituents(
     fused_atoms: &[usize],
     avoid: &[usize],
     k: &Constants,
-    peri: bool,
+    peri: Peri,
     account: &mut Account,
 ) -> usize {
     if fused_atoms.is_empty() {
@@ -1687,18 +1703,17 @@ fn fused_ring_substituents(
         let Some(r) = recognizer.recognize(x, f, &keep_out) else {
             continue;
         };
+        let at_peri = d == 2
+            && molecule
+                .rings()
+                .iter()
+                .any(|rg| rg.len() == 6 && rg.contains(&f) && rg.iter().any(|a| ring.contains(a)));
         // A peri group (8-substituted quinolines): on the fused six-ring atom next to
         // the fusion atom ortho to a ring-member base site, it crowds the site as an
         // ortho group does (8-methylquinoline 4.6, 8-aminoquinoline 3.99 against
         // quinoline 4.90; from memory of Albert, Goldacre and Phillips, J. Chem. Soc.
         // 1948, 2240), and is scored so: sigma_I and the class's ortho term.
-        if peri
-            && d == 2
-            && molecule
-                .rings()
-                .iter()
-                .any(|rg| rg.len() == 6 && rg.contains(&f) && rg.iter().any(|a| ring.contains(a)))
-        {
+        if peri == Peri::Crowds && at_peri {
             // A peri O (hydroxy as well as alkoxy) takes a hydrogen bond from the site's
             // N-H+ (8-hydroxyquinoline 4.91, near quinoline's 4.90; from memory of CRC).
             if r.entry.hbond_acceptor || molecule.atoms()[x].element == 8 {
@@ -1712,6 +1727,13 @@ fn fused_ring_substituents(
                 account.terms.push(term);
             }
             continue;
+        }
+        // A peri acceptor holds an acid site's proton as an ortho acceptor does
+        // (8-hydroxynaphthalene-1-sulfonate far weaker an acid than 1-naphthol, common
+        // practice for peri hydrogen bonds): counted with the ortho acceptors, and the group
+        // itself scored with the fused ring's others.
+        if peri == Peri::Accepts && at_peri && r.entry.hbond_acceptor {
+            peri_hbond += 1;
         }
         groups.add(r.entry, conjugation_distance(molecule, ring, f, d), scale);
     }
@@ -2499,41 +2521,6 @@ fn queue_beyond_group(
             queue.push_back((x, c, depth + d + 1));
         }
     }
-}
-
-/// Hydrogen-bond acceptors on the peri atom of a fused six-ring (C8 of a 1-naphthol), for an
-/// acid site bonded to its anchor: the peri group holds the site's proton as an ortho
-/// acceptor does (8-hydroxynaphthalene-1-sulfonate far weaker an acid than 1-naphthol,
-/// common practice for peri hydrogen bonds). They are counted with the ortho acceptors;
-/// the groups themselves are scored with the fused ring's others.
-fn peri_acceptors(
-    recognizer: &mut Recognizer<'_, '_>,
-    ring: &[usize],
-    anchor: usize,
-    fused_atoms: &[usize],
-    avoid: &[usize],
-) -> usize {
-    if fused_atoms.is_empty() {
-        return 0;
-    }
-    let molecule = recognizer.molecule();
-    let (keep_out, groups) = fused_ring_groups(molecule, ring, anchor, fused_atoms, avoid);
-    let mut count = 0;
-    for (f, x, d) in groups {
-        let peri = d == 2
-            && molecule
-                .rings()
-                .iter()
-                .any(|rg| rg.len() == 6 && rg.contains(&f) && rg.iter().any(|a| ring.contains(a)));
-        if peri
-            && recognizer
-                .recognize(x, f, &keep_out)
-                .is_some_and(|r| r.entry.hbond_acceptor)
-        {
-            count += 1;
-        }
-    }
-    count
 }
 
 /// The groups on the aromatic rings fused to the site's ring, as (fused-ring atom, the
