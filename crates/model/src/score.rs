@@ -836,35 +836,22 @@ fn sulfonyl_aryl_substituents(
             }) else {
                 continue;
             };
-            let mut keep_out: Vec<usize> = Vec::with_capacity(ring.len() + found.matched.len());
-            keep_out.extend_from_slice(ring);
-            keep_out.extend_from_slice(&found.matched);
-            let dist = distances_within(molecule, ipso, |b| ring.contains(&b));
-            for &(r, d) in &dist[1..] {
+            let (keep_out, groups) = ring_groups_seen_from(molecule, ring, ipso, &found.matched);
+            for (r, x, d) in groups {
                 if d < 2 {
                     continue;
                 }
-                for rn in molecule.neighbors(r) {
-                    let x = rn.atom;
-                    if keep_out.contains(&x)
-                        || molecule.bonds()[rn.bond].in_ring
-                        || atoms[x].element == 1
-                    {
-                        continue;
-                    }
-                    let Some(g) = recognizer.recognize(x, r, &keep_out) else {
-                        continue;
-                    };
-                    let Some((sigma, _)) = hammett_sigma(g.entry, position(d), Scale::Hammett)
-                    else {
-                        continue;
-                    };
-                    if g.approximate {
-                        account.approximate += 1;
-                    }
-                    sum += sigma;
-                    push_group(&mut names, &g.entry.name);
+                let Some(g) = recognizer.recognize(x, r, &keep_out) else {
+                    continue;
+                };
+                let Some((sigma, _)) = hammett_sigma(g.entry, position(d), Scale::Hammett) else {
+                    continue;
+                };
+                if g.approximate {
+                    account.approximate += 1;
                 }
+                sum += sigma;
+                push_group(&mut names, &g.entry.name);
             }
         }
     }
@@ -1626,23 +1613,11 @@ fn site_aryl_substituents(
     }) else {
         return;
     };
-    let mut keep_out: Vec<usize> = Vec::with_capacity(ring.len() + found.matched.len());
-    keep_out.extend_from_slice(ring);
-    keep_out.extend_from_slice(&found.matched);
-    let dist = distances_within(molecule, ar, |b| ring.contains(&b));
+    let (keep_out, ring_groups) = ring_groups_seen_from(molecule, ring, ar, &found.matched);
     let mut groups = RingGroups::default();
-    for &(r, d) in &dist[1..] {
-        for nb in molecule.neighbors(r) {
-            let x = nb.atom;
-            if keep_out.contains(&x)
-                || molecule.bonds()[nb.bond].in_ring
-                || molecule.atoms()[x].element == 1
-            {
-                continue;
-            }
-            if let Some(rec) = recognizer.recognize(x, r, &keep_out) {
-                groups.add(rec.entry, d, Scale::Hammett);
-            }
+    for (r, x, d) in ring_groups {
+        if let Some(rec) = recognizer.recognize(x, r, &keep_out) {
+            groups.add(rec.entry, d, Scale::Hammett);
         }
     }
     push_ring_group_sums(
@@ -1660,6 +1635,37 @@ fn site_aryl_substituents(
         ],
         &groups,
     );
+}
+
+/// The groups on the ring `ring` other than at `from`, as (ring atom, the group's first atom,
+/// bonds from `from` within the ring), leaving out fused rings, and the atoms a recognizer
+/// walking them keeps out (the ring and the class pattern's `matched` atoms).
+fn ring_groups_seen_from(
+    molecule: &Molecule,
+    ring: &[usize],
+    from: usize,
+    matched: &[usize],
+) -> (Vec<usize>, Vec<(usize, usize, usize)>) {
+    let mut keep_out: Vec<usize> = Vec::with_capacity(ring.len() + matched.len());
+    keep_out.extend_from_slice(ring);
+    keep_out.extend_from_slice(matched);
+    let mut groups = Vec::new();
+    for (r, d) in distances_within(molecule, from, |b| ring.contains(&b)) {
+        if d == 0 {
+            continue;
+        }
+        for nb in molecule.neighbors(r) {
+            let x = nb.atom;
+            if keep_out.contains(&x)
+                || molecule.bonds()[nb.bond].in_ring
+                || molecule.atoms()[x].element == 1
+            {
+                continue;
+            }
+            groups.push((r, x, d));
+        }
+    }
+    (keep_out, groups)
 }
 
 /// What a group on the peri atom of a fused six-ring does to the site.
