@@ -2553,10 +2553,14 @@ fn fused_ring_groups(
         };
         for nb in molecule.neighbors(f) {
             let x = nb.atom;
+            // A fused ring's own C=O / C=S (pteridinones, lumazines) is no group on it: it
+            // is the ring's lactam, counted with the ring C=O at base sites; recognized as a
+            // group it had been read as an alkoxy O (and at the peri atom as a crowding one).
             if molecule.bonds()[nb.bond].in_ring
                 || ring.contains(&x)
                 || fused_atoms.contains(&x)
                 || molecule.atoms()[x].element == 1
+                || is_oxo(molecule, &nb)
             {
                 continue;
             }
@@ -3681,6 +3685,30 @@ mod tests {
             .flat_map(|s| s.terms.iter())
             .find(|t| t.label.ends_with(label_end))
             .and_then(|t| t.sigma)
+    }
+
+    #[test]
+    fn a_fused_rings_own_c_o_is_counted_as_ring_oxo_not_read_as_a_group() {
+        // 8-methylpteridin-7(8H)-one type with the lactam C=O on the fused ring, beside the
+        // fusion atom (the peri position of the pyrazine N): the C=O is the ring's, not an
+        // alkoxy O crowding the site.
+        let (_, sites) = parent_sites("Cn1ccnc2c(=O)n(C)c(=N)nc1-2");
+        let ring_n = sites
+            .iter()
+            .find(|s| s.kind == Kind::Base && s.atom == 4)
+            .expect("the pyrazine N is a base site");
+        assert!(
+            ring_n
+                .terms
+                .iter()
+                .all(|t| !t.label.contains("OR (alkoxy)")),
+            "{:?}",
+            ring_n.terms.iter().map(|t| &t.label).collect::<Vec<_>>()
+        );
+        assert!(ring_n
+            .terms
+            .iter()
+            .any(|t| t.counted.map(|(w, _)| w) == Some(Counted::RingOxo)));
     }
 
     #[test]
