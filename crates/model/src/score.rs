@@ -2921,6 +2921,19 @@ fn taft(
             }
         }
     }
+    if library.classes[found.class].kind == Kind::Base
+        && anchor == found.atom
+        && molecule.atoms()[anchor].element == 7
+    {
+        let n = beta_hydroxyls(molecule, anchor);
+        push_counted(
+            account,
+            Counted::OrthoHbond,
+            n,
+            k.ortho_hbond_term,
+            "beta-hydroxyl (N-H+...O hydrogen bond)",
+        );
+    }
     if alkyl != 0.0 {
         account.terms.push(Term {
             label: Cow::Borrowed("alkyl branches along the chain"),
@@ -2948,6 +2961,42 @@ fn taft(
             k.alkyl_term,
         );
     }
+}
+
+/// Hydroxyl groups on a carbon beta to an amine N (N-C-C-OH, saturated carbons): in the
+/// ammonium ion the N-H+ can take a hydrogen bond from the O, closing a five-membered ring,
+/// which the O's sigma* does not carry. Counted for a calibrated per-class correction
+/// ([`Counted::OrthoHbond`]): tertiary ammonium ions, the least solvated, are expected to
+/// gain most from it and primary ones least (common practice), so each class fits its own.
+fn beta_hydroxyls(molecule: &Molecule, n: usize) -> usize {
+    let sp3_carbon = |a: usize| {
+        let atom = &molecule.atoms()[a];
+        atom.element == 6 && !atom.aromatic && molecule.total_degree(a) == 4
+    };
+    let mut found: Vec<usize> = Vec::new();
+    for c1 in molecule.neighbors(n) {
+        if !sp3_carbon(c1.atom) {
+            continue;
+        }
+        for c2 in molecule.neighbors(c1.atom) {
+            if c2.atom == n || !sp3_carbon(c2.atom) {
+                continue;
+            }
+            for o in molecule.neighbors(c2.atom) {
+                let x = o.atom;
+                if x != c1.atom
+                    && molecule.atoms()[x].element == 8
+                    && molecule.atoms()[x].charge == 0
+                    && molecule.total_hydrogens(x) == 1
+                    && molecule.degree(x) == 1
+                    && !found.contains(&x)
+                {
+                    found.push(x);
+                }
+            }
+        }
+    }
+    found.len()
 }
 
 /// sigma*(X-C6H4) - sigma*(C6H5) per unit of Hammett sigma of the ring groups X.
@@ -3709,6 +3758,23 @@ mod tests {
             .terms
             .iter()
             .any(|t| t.counted.map(|(w, _)| w) == Some(Counted::RingOxo)));
+    }
+
+    #[test]
+    fn hydroxyls_beta_to_an_amine_n_are_counted_once_each() {
+        let count = |smiles: &str| {
+            let (m, _) = parent_sites(smiles);
+            let n = (0..m.atoms().len())
+                .find(|&a| m.atoms()[a].element == 7)
+                .expect("an N");
+            beta_hydroxyls(&m, n)
+        };
+        // Triethanolamine: three; 3-dimethylaminopropanol and 2-methoxyethylamine: none
+        // (gamma OH, an ether O); trans-2-aminocyclohexanol: one.
+        assert_eq!(count("OCCN(CCO)CCO"), 3);
+        assert_eq!(count("CN(C)CCCO"), 0);
+        assert_eq!(count("COCCN"), 0);
+        assert_eq!(count("NC1CCCCC1O"), 1);
     }
 
     #[test]
