@@ -1399,6 +1399,15 @@ fn hammett(
             n_substituents(library, recognizer, found, k, account);
         }
     }
+    if site_in_ring && class.n_alkyl_counted {
+        push_counted(
+            account,
+            Counted::NAlkyl,
+            amidine_amino_alkyls(molecule, found, ring),
+            k.n_alkyl_group_term,
+            "alkyl on the amidine-type amino N",
+        );
+    }
     // Steric inhibition of resonance: a dialkylamino donor with a group on a neighbouring
     // ring atom turns its lone pair out of the ring plane, and gives the ring N less than
     // its sigma_p says (4-dimethylaminopyridine 9.6, its 3-methyl homologue 8.7, while
@@ -2487,6 +2496,35 @@ fn is_walked_ring_unsaturation(
             .any(|r| r.contains(&anchor) && r.contains(&atom) && r.len() <= 7)
 }
 
+/// The alkyl groups on the exocyclic amino N that a ring-N class names in its pattern (the
+/// NH2 of a 2-aminopyridine class): the parent is the NH2 compound, so an N-alkyl there was
+/// scored nowhere. Alkyls on the N of the amidine-type cation raise it (sigma_p NHCH3 -0.70
+/// and N(CH3)2 -0.83 against NH2 -0.66, Hansch, Leo and Taft 1991, from memory); the classes
+/// that set `n_alkyl_counted` fit the step per alkyl.
+fn amidine_amino_alkyls(molecule: &Molecule, found: &FoundSite, ring: &[usize]) -> usize {
+    found
+        .matched
+        .iter()
+        .filter(|&&a| {
+            let atom = &molecule.atoms()[a];
+            atom.element == 7
+                && !atom.aromatic
+                && !ring.contains(&a)
+                && molecule
+                    .neighbors(a)
+                    .iter()
+                    .any(|nb| ring.contains(&nb.atom))
+        })
+        .map(|&a| {
+            molecule
+                .neighbors(a)
+                .iter()
+                .filter(|nb| !ring.contains(&nb.atom) && is_plain_carbon(molecule, nb.atom))
+                .count()
+        })
+        .sum()
+}
+
 fn is_plain_carbon(molecule: &Molecule, atom: usize) -> bool {
     let a = &molecule.atoms()[atom];
     a.element == 6 && a.charge == 0 && !a.aromatic && a.hybridization == Hybridization::Sp3
@@ -3469,6 +3507,25 @@ mod tests {
         // =NMe against =NH: one alkyl on the site's N, none on the bare imine.
         assert_eq!(count(&amidine_site("CN=c1ncccn1C")), 1.0);
         assert_eq!(count(&amidine_site("Cn1cccnc1=N")), 0.0);
+    }
+
+    #[test]
+    fn a_2_aminopyridine_counts_the_alkyls_on_its_amino_n() {
+        let site = |smiles: &str| class_site(smiles, "base.pyridine.2_amino");
+        let count = |site: &Site| {
+            site.terms
+                .iter()
+                .find_map(|t| match t.counted {
+                    Some((Counted::NAlkyl, n)) => Some(n),
+                    _ => None,
+                })
+                .unwrap_or(0.0)
+        };
+        // The amino N is in the class pattern (part of the parent): its alkyls were scored
+        // nowhere. A ring methyl is no N-alkyl.
+        assert_eq!(count(&site("CN(C)c1ccccn1")), 2.0);
+        assert_eq!(count(&site("CNc1ccccn1")), 1.0);
+        assert_eq!(count(&site("Cc1cccc(N)n1")), 0.0);
     }
 
     #[test]
