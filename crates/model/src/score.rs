@@ -3808,10 +3808,13 @@ mod tests {
                 })
                 .collect()
         };
-        // Phthalic acid: both carboxyls carry it.
-        assert_eq!(carries("OC(=O)c1ccccc1C(O)=O"), [true, true]);
-        // Diethylmalonic acid and a ring C=C diacid: their classes' parents are measured
-        // first constants that hold the bond already (monoanion_hbond_in_parent).
+        // Pyridine-3,4-dicarboxylic acid, outside the benzene-ring phthalic class: both
+        // carboxyls carry it.
+        assert_eq!(carries("OC(=O)c1ccncc1C(O)=O"), [true, true]);
+        // Phthalic and diethylmalonic acids and a ring C=C diacid: their classes' parents
+        // are measured first constants that hold the bond already
+        // (monoanion_hbond_in_parent).
+        assert_eq!(carries("OC(=O)c1ccccc1C(O)=O"), [false, false]);
         assert_eq!(carries("CCC(CC)(C(=O)O)C(=O)O"), [false, false]);
         assert_eq!(carries("OC(=O)C1=C(CCC1)C(O)=O"), [false, false]);
         // Dimethylmalonic acid (malonic acid's spread), malonic and succinic acids,
