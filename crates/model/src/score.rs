@@ -999,14 +999,22 @@ fn fixed_entry(library: &Library, which: Fixed) -> Option<&SubstituentEntry> {
     entry_by_id(library, which.id())
 }
 
-/// Whether the hydrogen bond from the site's H to the ortho group whose first atom is `s`
-/// would close a five-membered ring: that atom is itself the acceptor (an alkoxy O) and
-/// the site sits on the ring (a phenol O-H, an anilinium or ring N-H+). The O-H...O angle of such a ring is far from linear and the bond is weak
-/// (guaiacol 9.98 against phenol 9.99, catechol 9.45; six-ring bonds as in 2-nitrophenol
-/// 7.23 against 4-nitrophenol 7.15 and salicylaldehyde are the strong ones; values from
-/// memory of CRC; the ring-size rule is common practice). Beside a CO2H the same alkoxy O
-/// closes a six-ring and stays counted.
-fn closes_five_ring(
+/// Whether the ortho acceptor group whose first atom is `s` takes no hydrogen bond from
+/// the site's H, for the shape of the ring the bond would close.
+///
+/// - The site sits on the ring (a phenol O-H, an anilinium or ring N-H+) and `s` is
+///   itself the acceptor (an alkoxy O): the bond would close a five-ring, whose O-H...O
+///   angle is far from linear, and is weak (guaiacol 9.98 against phenol 9.99, catechol
+///   9.45; six-ring bonds as in 2-nitrophenol, 7.23 against 4-nitrophenol 7.15, and
+///   salicylaldehyde are the strong ones; values from memory of CRC; the ring-size rule
+///   is common practice).
+/// - The site is two bonds off the ring (a CO2H) and the group is a nitro group: the bond
+///   would close a seven-ring with both groups in the ring plane, which their crowding
+///   forbids (both turn out of it; 2-nitrobenzoic acid 2.17 is stronger than
+///   2-chlorobenzoic 2.94 by about the gap of their sigma values, from memory of CRC).
+///   The alkoxy O beside a CO2H closes a six-ring and stays counted, and so do the
+///   carbonyl groups (2-acylbenzoic acids), for which the same rule measured worse.
+fn no_ortho_hbond(
     molecule: &Molecule,
     found: &FoundSite,
     anchor: usize,
@@ -1014,7 +1022,12 @@ fn closes_five_ring(
     s: usize,
 ) -> bool {
     let site_on_ring = site_in_ring || molecule.bond_between(found.atom, anchor).is_some();
-    site_on_ring && molecule.atoms()[s].element == 8 && molecule.degree(s) == 2
+    let atom = &molecule.atoms()[s];
+    if site_on_ring {
+        atom.element == 8 && molecule.degree(s) == 2
+    } else {
+        atom.element == 7 && molecule.degree(s) == 3
+    }
 }
 
 /// The table entry standing for a heteroatom that is a member of the site's ring.
@@ -1256,7 +1269,7 @@ fn hammett(
                     let ortho = pos == Position::Ortho && !on_ring_n;
                     if ortho
                         && r.entry.hbond_acceptor
-                        && !closes_five_ring(molecule, found, anchor, site_in_ring, s)
+                        && !no_ortho_hbond(molecule, found, anchor, site_in_ring, s)
                     {
                         ortho_hbond += 1;
                     }
@@ -3950,7 +3963,7 @@ mod tests {
     }
 
     #[test]
-    fn an_ortho_alkoxy_holds_a_carboxyl_proton_but_not_a_phenol_one() {
+    fn ortho_hydrogen_bonds_follow_the_ring_they_close() {
         // The O-H...OMe bond of guaiacol closes a five-ring (weak: guaiacol 9.98 against
         // phenol 9.99, from memory of CRC); that of 2-methoxybenzoic acid a six-ring, as
         // the O-H...O2N bond of 2-nitrophenol does.
@@ -3964,6 +3977,11 @@ mod tests {
         assert_eq!(hbonds("COc1ccccc1O", "acid.phenol"), 0);
         assert_eq!(hbonds("Oc1ccccc1[N+](=O)[O-]", "acid.phenol"), 1);
         assert_eq!(hbonds("COc1ccccc1C(=O)O", "acid.carboxylic.aromatic"), 1);
+        // 2-Nitrobenzoic acid: the seven-ring bond to the nitro group is not counted.
+        assert_eq!(
+            hbonds("OC(=O)c1ccccc1[N+](=O)[O-]", "acid.carboxylic.aromatic"),
+            0
+        );
     }
 
     #[test]
