@@ -3655,15 +3655,7 @@ mod tests {
     #[test]
     fn an_iminoazine_counts_the_alkyls_on_its_exocyclic_n() {
         let amidine_site = |smiles: &str| class_site(smiles, "base.imine.cyclic_amidine");
-        let count = |site: &Site| {
-            site.terms
-                .iter()
-                .find_map(|t| match t.counted {
-                    Some((Counted::NAlkyl, n)) => Some(n),
-                    _ => None,
-                })
-                .unwrap_or(0.0)
-        };
+        let count = |site: &Site| count_of(site, Counted::NAlkyl);
         // =NMe against =NH: one alkyl on the site's N, none on the bare imine.
         assert_eq!(count(&amidine_site("CN=c1ncccn1C")), 1.0);
         assert_eq!(count(&amidine_site("Cn1cccnc1=N")), 0.0);
@@ -3672,15 +3664,7 @@ mod tests {
     #[test]
     fn a_2_aminopyridine_counts_the_alkyls_on_its_amino_n() {
         let site = |smiles: &str| class_site(smiles, "base.pyridine.2_amino");
-        let count = |site: &Site| {
-            site.terms
-                .iter()
-                .find_map(|t| match t.counted {
-                    Some((Counted::NAlkyl, n)) => Some(n),
-                    _ => None,
-                })
-                .unwrap_or(0.0)
-        };
+        let count = |site: &Site| count_of(site, Counted::NAlkyl);
         // The amino N is in the class pattern (part of the parent): its alkyls were scored
         // nowhere. A ring methyl is no N-alkyl.
         assert_eq!(count(&site("CN(C)c1ccccn1")), 2.0);
@@ -3898,6 +3882,17 @@ mod tests {
             .into_iter()
             .find(|s| s.class == class)
             .unwrap_or_else(|| panic!("{smiles}: no {class} site"))
+    }
+
+    /// The count a site's term of kind `what` carries, 0 without one.
+    fn count_of(site: &Site, what: Counted) -> f64 {
+        site.terms
+            .iter()
+            .find_map(|t| match t.counted {
+                Some((w, n)) if w == what => Some(n),
+                _ => None,
+            })
+            .unwrap_or(0.0)
     }
 
     /// The built-in substituent entry `id`.
