@@ -3070,7 +3070,9 @@ fn taft(
         && anchor == found.atom
         && molecule.atoms()[anchor].element == 7
     {
-        let n = beta_hydroxyls(molecule, anchor);
+        // One hydrogen bond per N-H of the ammonium ion: a tertiary one takes a single
+        // hydroxyl however many there are.
+        let n = beta_hydroxyls(molecule, anchor).min(molecule.total_hydrogens(anchor) + 1);
         push_counted(
             account,
             Counted::OrthoHbond,
@@ -3952,6 +3954,9 @@ mod tests {
         // Triethanolamine: three; 3-dimethylaminopropanol and 2-methoxyethylamine: none
         // (gamma OH, an ether O); trans-2-aminocyclohexanol: one.
         assert_eq!(count("OCCN(CCO)CCO"), 3);
+        // Scored, a tertiary ammonium ion takes one: it has a single N-H.
+        let site = class_site("OCCN(CCO)CCO", "base.amine.tertiary");
+        assert_eq!(count_of(&site, Counted::OrthoHbond), 1.0);
         assert_eq!(count("CN(C)CCCO"), 0);
         assert_eq!(count("COCCN"), 0);
         assert_eq!(count("NC1CCCCC1O"), 1);
