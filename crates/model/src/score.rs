@@ -1821,7 +1821,8 @@ fn fused_ring_substituents(
         // (8-hydroxynaphthalene-1-sulfonate far weaker an acid than 1-naphthol, common
         // practice for peri hydrogen bonds): counted with the ortho acceptors, and the group
         // itself scored with the fused ring's others.
-        if peri == Peri::Accepts && at_peri && r.entry.hbond_acceptor {
+        if peri == Peri::Accepts && at_peri && (r.entry.hbond_acceptor || azo_enol(molecule, f, x))
+        {
             peri_hbond += 1;
         }
         groups.add(r.entry, conjugation_distance(molecule, ring, f, d), scale);
@@ -1842,6 +1843,24 @@ fn fused_ring_substituents(
         &groups,
     );
     peri_hbond
+}
+
+/// Whether `o`, an O on ring atom `f`, is the hydroxyl of an o-hydroxyazo group (an arylazo
+/// group on a ring atom beside `f`): such azo-enols are mostly the hydrazone tautomer, whose
+/// O is a ring C=O and an acceptor for a peri OH (1-arylazo-2-naphthols and the
+/// 2-arylazo-1,8-dihydroxynaphthalene dyes are hydrazones; common practice).
+fn azo_enol(molecule: &Molecule, f: usize, o: usize) -> bool {
+    molecule.atoms()[o].element == 8
+        && molecule.neighbors(f).iter().any(|c| {
+            molecule.neighbors(c.atom).iter().any(|n| {
+                molecule.atoms()[n.atom].element == 7
+                    && !molecule.bonds()[n.bond].in_ring
+                    && molecule.neighbors(n.atom).iter().any(|m| {
+                        let b = &molecule.bonds()[m.bond];
+                        molecule.atoms()[m.atom].element == 7 && b.order == 2 && !b.aromatic
+                    })
+            })
+        })
 }
 
 /// `fused_atoms` and the atoms of the aromatic rings fused in turn to those fused rings, away
@@ -4245,6 +4264,24 @@ mod tests {
         };
         assert_eq!(hbonds("Oc1cccc2cccc(c12)S(=O)(=O)O"), 1);
         assert_eq!(hbonds("Oc1cccc2ccccc12"), 0);
+    }
+
+    #[test]
+    fn a_peri_azo_enol_holds_a_naphthol_proton() {
+        // 2-Phenylazo-1,8-naphthalenediol: the 1-OH beside the azo group is a hydrazone C=O
+        // and takes a hydrogen bond from the 8-OH; in 1,8-naphthalenediol neither OH is
+        // counted as an acceptor.
+        let peri_hbond = |smiles: &str| {
+            let (_, sites) = parent_sites(smiles);
+            sites.iter().any(|s| {
+                s.kind == Kind::Acid
+                    && s.terms
+                        .iter()
+                        .any(|t| t.label.contains("ortho hydrogen-bond acceptor"))
+            })
+        };
+        assert!(peri_hbond("Oc1cccc2ccc(N=Nc3ccccc3)c(O)c12"));
+        assert!(!peri_hbond("Oc1cccc2cccc(O)c12"));
     }
 
     #[test]
