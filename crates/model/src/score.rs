@@ -167,7 +167,8 @@ pub enum Counted {
     /// crowd the site, turning a carboxyl out of the ring plane and hindering the solvation
     /// of an ortho charged site, which no sigma carries (2-chloro- and 2,6-dichlorobenzoic
     /// acids ran 0.5 and 0.9 too weak an acid on the class's one ortho term, polyfluoro ones
-    /// 0.3 too strong). F, no bigger than an O, stays with the plain ortho term.
+    /// 0.3 too strong). F, no bigger than an O, stays with the plain ortho term. Counted
+    /// for sites off the ring other than a phenol OH (see where it is counted).
     OrthoHalogen,
 }
 
@@ -1293,7 +1294,15 @@ fn hammett(
                     if ortho && r.entry.walk {
                         ortho_alkyl += 1;
                     }
-                    if ortho && matches!(molecule.atoms()[s].element, 17 | 35 | 53) {
+                    // The bulk twists or crowds a site group off the ring (a carboxyl, an
+                    // anilinium N-H3+); a ring-N site has no such group, and a phenol OH, one
+                    // atom, turns towards the halogen and hydrogen-bonds it instead.
+                    if ortho
+                        && !site_in_ring
+                        && !(molecule.atoms()[found.atom].element == 8
+                            && molecule.bond_between(found.atom, anchor).is_some())
+                        && matches!(molecule.atoms()[s].element, 17 | 35 | 53)
+                    {
                         ortho_halogen += 1;
                     }
                     let name = account.texts.numbered(number, r.entry);
