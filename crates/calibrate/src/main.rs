@@ -309,7 +309,7 @@ impl Fit {
 }
 
 /// Number of class corrections the fit sets besides parent and rho.
-const N_CORRECTIONS: usize = 16;
+const N_CORRECTIONS: usize = 17;
 
 /// The class corrections, in column order after parent and rho: what the scorer counts
 /// for each (`None`: the ortho substituents, flagged on their terms) and the field of
@@ -331,6 +331,7 @@ const CORRECTIONS: [(Option<Counted>, &str); N_CORRECTIONS] = [
     (Some(Counted::TwistedDonor), "twisted_donor_term"),
     (Some(Counted::NAlkyl), "n_alkyl_group_term"),
     (Some(Counted::NTertiaryAlkyl), "n_tert_alkyl_term"),
+    (Some(Counted::OrthoHalogen), "ortho_halogen_term"),
 ];
 
 /// The fields of `SiteClass` that hold the class corrections, in [`CORRECTIONS`] order, as
@@ -354,6 +355,7 @@ macro_rules! correction_fields {
             $c.twisted_donor_term,
             $c.n_alkyl_group_term,
             $c.n_tert_alkyl_term,
+            $c.ortho_halogen_term,
         ]
     };
 }

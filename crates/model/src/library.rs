@@ -175,6 +175,10 @@ pub struct SiteClass {
     /// steric inhibition of resonance; set by calibration, 0 when not calibrated).
     #[serde(default)]
     pub n_tert_alkyl_term: f64,
+    /// Correction per ortho Cl, Br or I, atoms far bigger than F or H (set by calibration,
+    /// 0 when not calibrated).
+    #[serde(default)]
+    pub ortho_halogen_term: f64,
     /// The class matches its N both bare and alkylated (a 2-iminopyrimidine's =NH and =NMe),
     /// so the alkyls on the site's N are counted for `n_alkyl_group_term`; the amine and
     /// aniline classes, split by N-substitution, leave it unset.
@@ -353,6 +357,9 @@ pub struct Calibration {
     /// Fitted correction per tertiary alkyl on the site's N.
     #[serde(default)]
     pub n_tert_alkyl_term: Option<f64>,
+    /// Fitted correction per ortho Cl, Br or I.
+    #[serde(default)]
+    pub ortho_halogen_term: Option<f64>,
     /// Number of measurements fitted.
     pub points: usize,
     /// Residual error of the fit (RMS, pKa units).

@@ -130,7 +130,8 @@ pub enum Counted {
     /// Plain alkyl branches along a Taft chain: the count is their summed sigma*.
     AlkylBranch,
     /// Plain hydrocarbon alkyl groups ortho to the site (steric hindrance to solvation of
-    /// the charged form, which sigma_I does not carry).
+    /// the charged form, which sigma_I does not carry). At an acid site each counts by its
+    /// bulk, 1 plus the carbons on its alpha carbon; at a base site 1.
     OrthoAlkyl,
     /// Substituents on an aromatic ring fused to the site's ring (the benzo ring of a
     /// quinoline, the other ring of a naphthol) an even number of bonds from the site's
@@ -162,6 +163,14 @@ pub enum Counted {
     /// site's flanked donor, whose effect has the other sign: one coefficient for both made
     /// the pooled prior of either the wrong one.
     NTertiaryAlkyl,
+    /// Ortho Cl, Br or I (van der Waals radius 1.75-1.98 A against 1.47 for F and 1.20 for
+    /// H; Bondi, J. Phys. Chem. 1964, 68, 441, from memory): besides their polar effect they
+    /// crowd the site, turning a carboxyl out of the ring plane and hindering the solvation
+    /// of an ortho charged site, which no sigma carries (2-chloro- and 2,6-dichlorobenzoic
+    /// acids ran 0.5 and 0.9 too weak an acid on the class's one ortho term, polyfluoro ones
+    /// 0.3 too strong). F, no bigger than an O, stays with the plain ortho term. Counted
+    /// for sites off the ring other than a phenol OH (see where it is counted).
+    OrthoHalogen,
 }
 
 /// A scored site.
@@ -211,6 +220,7 @@ struct Constants<'l> {
     twisted_donor_term: f64,
     n_alkyl_group_term: f64,
     n_tert_alkyl_term: f64,
+    ortho_halogen_term: f64,
     uncertainty: f64,
 }
 
@@ -290,6 +300,7 @@ fn constants(library: &Library, class_index: usize) -> Constants<'_> {
                 twisted_donor_term: fit.twisted_donor_term.unwrap_or(class.twisted_donor_term),
                 n_alkyl_group_term: fit.n_alkyl_group_term.unwrap_or(class.n_alkyl_group_term),
                 n_tert_alkyl_term: fit.n_tert_alkyl_term.unwrap_or(class.n_tert_alkyl_term),
+                ortho_halogen_term: fit.ortho_halogen_term.unwrap_or(class.ortho_halogen_term),
                 // The class's cross-validated error, as a standard deviation (for normal errors
                 // sd = MAE * sqrt(pi / 2)); never below the residual of the fit itself.
                 uncertainty: (fit.cv_mae * 1.2533).max(fit.rmse).max(0.1),
@@ -316,6 +327,7 @@ fn constants(library: &Library, class_index: usize) -> Constants<'_> {
             twisted_donor_term: class.twisted_donor_term,
             n_alkyl_group_term: class.n_alkyl_group_term,
             n_tert_alkyl_term: class.n_tert_alkyl_term,
+            ortho_halogen_term: class.ortho_halogen_term,
             uncertainty: class.uncertainty,
         },
     }
@@ -358,7 +370,7 @@ fn numbered(number: usize, name: &str) -> String {
 const NUMBERED_KEPT: usize = 12;
 
 /// Number of [`Counted`] kinds: slots per class for their sources.
-const COUNTED_KINDS: usize = 15;
+const COUNTED_KINDS: usize = 16;
 
 /// The slot of a [`Counted`] kind among a class's [`COUNTED_KINDS`]. Exhaustive on
 /// purpose: a new kind does not compile until it has a slot of its own (two kinds sharing
@@ -380,6 +392,7 @@ fn counted_slot(what: Counted) -> usize {
         Counted::TwistedDonor => 12,
         Counted::NAlkyl => 13,
         Counted::NTertiaryAlkyl => 14,
+        Counted::OrthoHalogen => 15,
     }
 }
 
@@ -1090,6 +1103,7 @@ fn hammett(
     let mut ortho_field_groups = String::new();
     let mut ortho_hbond = 0usize;
     let mut ortho_alkyl = 0usize;
+    let mut ortho_halogen = 0usize;
     let mut ortho_resonance = 0.0;
     let mut ortho_resonance_groups = String::new();
     // Ring groups flanking a meta or para dialkylamino donor of a ring-N base site.
@@ -1278,8 +1292,34 @@ fn hammett(
                             flanked_dialkylamino(molecule, ring, start + step, s, r.entry);
                     }
                     // `walk` marks the plain hydrocarbon alkyls (methyl ... tert-butyl).
+                    // At an acid site the alkyl's bulk counts: 1 and one more per carbon on its
+                    // alpha carbon (methyl 1, ethyl 2, isopropyl 3, tert-butyl 4), as the
+                    // hindrance to solvation of the anion grows with it (Taft E_s: Me 0.00,
+                    // Et -0.07, iPr -0.47, tBu -1.54, from memory of Taft 1956): 2-isopropyl-
+                    // and 2,6-dipropylphenols ran 0.4-0.9 too acidic on one count per alkyl,
+                    // methyls 0.1-0.3 too weak. Base sites keep one per alkyl (counting bulk
+                    // there raised the base file's CV MAE 0.616 -> 0.631).
                     if ortho && r.entry.walk {
-                        ortho_alkyl += 1;
+                        ortho_alkyl += if class.kind == Kind::Acid {
+                            1 + molecule
+                                .neighbors(s)
+                                .iter()
+                                .filter(|n| n.atom != atom && molecule.atoms()[n.atom].element == 6)
+                                .count()
+                        } else {
+                            1
+                        };
+                    }
+                    // The bulk twists or crowds a site group off the ring (a carboxyl, an
+                    // anilinium N-H3+); a ring-N site has no such group, and a phenol OH, one
+                    // atom, turns towards the halogen and hydrogen-bonds it instead.
+                    if ortho
+                        && !site_in_ring
+                        && !(molecule.atoms()[found.atom].element == 8
+                            && molecule.bond_between(found.atom, anchor).is_some())
+                        && matches!(molecule.atoms()[s].element, 17 | 35 | 53)
+                    {
+                        ortho_halogen += 1;
                     }
                     let name = account.texts.numbered(number, r.entry);
                     if ortho {
@@ -1492,6 +1532,13 @@ fn hammett(
         ortho_hbond,
         k.ortho_hbond_term,
         "ortho hydrogen-bond acceptor (C=O, NO2, OR)",
+    );
+    push_counted(
+        account,
+        Counted::OrthoHalogen,
+        ortho_halogen,
+        k.ortho_halogen_term,
+        "ortho Cl, Br or I (bulk)",
     );
     push_counted(
         account,
@@ -1799,7 +1846,8 @@ fn fused_ring_substituents(
         // (8-hydroxynaphthalene-1-sulfonate far weaker an acid than 1-naphthol, common
         // practice for peri hydrogen bonds): counted with the ortho acceptors, and the group
         // itself scored with the fused ring's others.
-        if peri == Peri::Accepts && at_peri && r.entry.hbond_acceptor {
+        if peri == Peri::Accepts && at_peri && (r.entry.hbond_acceptor || azo_enol(molecule, f, x))
+        {
             peri_hbond += 1;
         }
         groups.add(r.entry, conjugation_distance(molecule, ring, f, d), scale);
@@ -1820,6 +1868,24 @@ fn fused_ring_substituents(
         &groups,
     );
     peri_hbond
+}
+
+/// Whether `o`, an O on ring atom `f`, is the hydroxyl of an o-hydroxyazo group (an arylazo
+/// group on a ring atom beside `f`): such azo-enols are mostly the hydrazone tautomer, whose
+/// O is a ring C=O and an acceptor for a peri OH (1-arylazo-2-naphthols and the
+/// 2-arylazo-1,8-dihydroxynaphthalene dyes are hydrazones; common practice).
+fn azo_enol(molecule: &Molecule, f: usize, o: usize) -> bool {
+    molecule.atoms()[o].element == 8
+        && molecule.neighbors(f).iter().any(|c| {
+            molecule.neighbors(c.atom).iter().any(|n| {
+                molecule.atoms()[n.atom].element == 7
+                    && !molecule.bonds()[n.bond].in_ring
+                    && molecule.neighbors(n.atom).iter().any(|m| {
+                        let b = &molecule.bonds()[m.bond];
+                        molecule.atoms()[m.atom].element == 7 && b.order == 2 && !b.aromatic
+                    })
+            })
+        })
 }
 
 /// `fused_atoms` and the atoms of the aromatic rings fused in turn to those fused rings, away
@@ -3717,6 +3783,41 @@ mod tests {
     }
 
     #[test]
+    fn ortho_chlorines_are_counted_for_their_bulk_and_fluorines_are_not() {
+        let halogens = |smiles: &str| {
+            class_site(smiles, "acid.carboxylic.aromatic")
+                .terms
+                .iter()
+                .find_map(|t| match t.counted {
+                    Some((Counted::OrthoHalogen, n)) => Some(n),
+                    _ => None,
+                })
+        };
+        // 2,6-Dichlorobenzoic acid: two; 4-chlorobenzoic acid (para) and
+        // 2,6-difluorobenzoic acid: none.
+        assert_eq!(halogens("O=C(O)c1c(Cl)cccc1Cl"), Some(2.0));
+        assert_eq!(halogens("O=C(O)c1ccc(Cl)cc1"), None);
+        assert_eq!(halogens("O=C(O)c1c(F)cccc1F"), None);
+    }
+
+    #[test]
+    fn ortho_alkyls_count_by_bulk_at_acid_sites_only() {
+        let count = |site: Site| {
+            site.terms.iter().find_map(|t| match t.counted {
+                Some((Counted::OrthoAlkyl, n)) => Some(n),
+                _ => None,
+            })
+        };
+        assert_eq!(count(class_site("Cc1ccccc1O", "acid.phenol")), Some(1.0));
+        assert_eq!(
+            count(class_site("CC(C)c1ccccc1O", "acid.phenol")),
+            Some(3.0)
+        );
+        // 2-Isopropylaniline: a base site, one per alkyl.
+        assert_eq!(count(base_site("CC(C)c1ccccc1N")), Some(1.0));
+    }
+
+    #[test]
     fn a_tertiary_n_alkyl_is_counted_apart_from_a_flanked_donor() {
         let counted = |site: &Site, what: Counted| {
             site.terms
@@ -4205,6 +4306,24 @@ mod tests {
         };
         assert_eq!(hbonds("Oc1cccc2cccc(c12)S(=O)(=O)O"), 1);
         assert_eq!(hbonds("Oc1cccc2ccccc12"), 0);
+    }
+
+    #[test]
+    fn a_peri_azo_enol_holds_a_naphthol_proton() {
+        // 2-Phenylazo-1,8-naphthalenediol: the 1-OH beside the azo group is a hydrazone C=O
+        // and takes a hydrogen bond from the 8-OH; in 1,8-naphthalenediol neither OH is
+        // counted as an acceptor.
+        let peri_hbond = |smiles: &str| {
+            let (_, sites) = parent_sites(smiles);
+            sites.iter().any(|s| {
+                s.kind == Kind::Acid
+                    && s.terms
+                        .iter()
+                        .any(|t| t.label.contains("ortho hydrogen-bond acceptor"))
+            })
+        };
+        assert!(peri_hbond("Oc1cccc2ccc(N=Nc3ccccc3)c(O)c12"));
+        assert!(!peri_hbond("Oc1cccc2cccc(O)c12"));
     }
 
     #[test]
