@@ -1356,13 +1356,16 @@ fn hammett(
     } else {
         Peri::Plain
     };
+    let from_bridgehead = class.kind == Kind::Base
+        && found.atom == anchor
+        && bridgehead_n_beside(molecule, ring, anchor);
     ortho_hbond += fused_ring_substituents(
         recognizer,
         (ring, anchor, class.scale),
         &fused_atoms,
         &avoid,
         k,
-        peri,
+        (peri, from_bridgehead),
         account,
     );
     if !site_in_ring {
@@ -1721,7 +1724,7 @@ fn fused_ring_substituents(
     fused_atoms: &[usize],
     avoid: &[usize],
     k: &Constants,
-    peri: Peri,
+    (peri, from_bridgehead): (Peri, bool),
     account: &mut Account,
 ) -> usize {
     if fused_atoms.is_empty() {
@@ -1733,6 +1736,14 @@ fn fused_ring_substituents(
     let (keep_out, fused_groups) = fused_ring_groups(molecule, ring, anchor, &with_far, avoid);
     let mut groups = RingGroups::default();
     for (f, x, d) in fused_groups {
+        // A carbon base site beside a bridgehead ring N (indolizine C3): its cation is a
+        // pyridinium on that N, so the fused ring's groups are in conjugation by their
+        // bonds from the N, one fewer than from the site.
+        let d = if from_bridgehead {
+            d.saturating_sub(1)
+        } else {
+            d
+        };
         let Some(r) = recognizer.recognize(x, f, &keep_out) else {
             continue;
         };
@@ -1786,6 +1797,23 @@ fn fused_ring_substituents(
         &groups,
     );
     peri_hbond
+}
+
+/// Whether `anchor`, a carbon of the five-ring `ring`, is bonded to a ring N shared with a
+/// fused ring (the bridgehead N4 of indolizine beside C3). Protonation at such a carbon
+/// leaves a pyridinium ion on the bridgehead N (the 3H-indolizinium ion; Armarego, J. Chem.
+/// Soc. 1964, 4226, from memory), whose charge the fused ring's groups meet ortho and para
+/// to that N, not to the protonated carbon.
+fn bridgehead_n_beside(molecule: &Molecule, ring: &[usize], anchor: usize) -> bool {
+    ring.len() == 5
+        && molecule.atoms()[anchor].element == 6
+        && molecule.neighbors(anchor).iter().any(|nb| {
+            let n = nb.atom;
+            molecule.atoms()[n].element == 7
+                && molecule.atoms()[n].aromatic
+                && ring.contains(&n)
+                && molecule.rings().iter().filter(|rg| rg.contains(&n)).count() >= 2
+        })
 }
 
 /// `fused_atoms` and the atoms of the aromatic rings fused in turn to those fused rings, away
