@@ -1736,14 +1736,6 @@ fn fused_ring_substituents(
     let (keep_out, fused_groups) = fused_ring_groups(molecule, ring, anchor, &with_far, avoid);
     let mut groups = RingGroups::default();
     for (f, x, d) in fused_groups {
-        // A carbon base site beside a bridgehead ring N (indolizine C3): its cation is a
-        // pyridinium on that N, so the fused ring's groups are in conjugation by their
-        // bonds from the N, one fewer than from the site.
-        let d = if from_bridgehead {
-            d.saturating_sub(1)
-        } else {
-            d
-        };
         let Some(r) = recognizer.recognize(x, f, &keep_out) else {
             continue;
         };
@@ -1757,7 +1749,7 @@ fn fused_ring_substituents(
         // ortho group does (8-methylquinoline 4.6, 8-aminoquinoline 3.99 against
         // quinoline 4.90; from memory of Albert, Goldacre and Phillips, J. Chem. Soc.
         // 1948, 2240), and is scored so: sigma_I and the class's ortho term.
-        if peri == Peri::Crowds && at_peri {
+        if peri == Peri::Crowds && at_peri && !from_bridgehead {
             // A peri O (hydroxy as well as alkoxy) takes a hydrogen bond from the site's
             // N-H+ (8-hydroxyquinoline 4.91, near quinoline's 4.90; from memory of CRC).
             if r.entry.hbond_acceptor || molecule.atoms()[x].element == 8 {
@@ -1779,6 +1771,17 @@ fn fused_ring_substituents(
         if peri == Peri::Accepts && at_peri && r.entry.hbond_acceptor {
             peri_hbond += 1;
         }
+        // A carbon base site beside a bridgehead ring N (indolizine C3): its cation is a
+        // pyridinium on that N, so the fused ring's groups are in conjugation by their
+        // bonds from the N, one fewer than from the site. A 5-group is then ortho to that
+        // N, in the pyridinium ring, and is not read as a peri group crowding the site (the
+        // peri test above is skipped for such sites; on the shifted distance it would have
+        // taken the 6- and 8-groups instead).
+        let d = if from_bridgehead {
+            d.saturating_sub(1)
+        } else {
+            d
+        };
         groups.add(r.entry, conjugation_distance(molecule, ring, f, d), scale);
     }
     push_ring_group_sums(
@@ -3913,6 +3916,32 @@ mod tests {
             .flat_map(|s| s.terms.iter())
             .find(|t| t.label.ends_with(label_end))
             .and_then(|t| t.sigma)
+    }
+
+    #[test]
+    fn an_indolizines_six_ring_groups_are_placed_from_the_bridgehead_n() {
+        // 3H-Indolizinium: the charge is on the bridgehead N, so a 7-methyl (para to it) is
+        // in conjugation and a 6-methyl (meta to it) is not, though both are an even and
+        // an odd number of bonds from the protonated C3 the other way round.
+        let labels = |smiles: &str| -> Vec<String> {
+            class_site(smiles, "base.indolizine")
+                .terms
+                .iter()
+                .map(|t| t.label.to_string())
+                .collect()
+        };
+        let para = labels("Cc1ccn2cccc2c1");
+        assert!(
+            para.iter()
+                .any(|l| l.starts_with("conjugated substituents on the fused ring (CH3")),
+            "{para:?}"
+        );
+        let meta = labels("Cc1cn2cccc2cc1");
+        assert!(
+            meta.iter()
+                .any(|l| l.starts_with("substituents on the fused ring (CH3")),
+            "{meta:?}"
+        );
     }
 
     #[test]
