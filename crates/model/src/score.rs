@@ -1428,13 +1428,6 @@ fn hammett(
             k.n_alkyl_group_term,
             "alkyl on the amidine-type amino N",
         );
-        push_counted(
-            account,
-            Counted::NAlkyl,
-            azole_ring_n_substituents(molecule, found, ring),
-            k.n_alkyl_group_term,
-            "substituent on the ring NH position (no N-H tautomer)",
-        );
     }
     // Steric inhibition of resonance: a dialkylamino donor with a group on a neighbouring
     // ring atom turns its lone pair out of the ring plane, and gives the ring N less than
@@ -2624,39 +2617,6 @@ fn amidine_amino_alkyls(molecule: &Molecule, found: &FoundSite, ring: &[usize]) 
                 .count()
         })
         .sum()
-}
-
-/// The substituted pyrrole-type N of the site's five-ring (the N1 of a 1-methylimidazole or
-/// 1-methylpyrazole), for an azole class whose pattern names no exocyclic N (there the count
-/// is the amino N's alkyls). An NH azole is protonated from two tautomers to one cation with
-/// two N-H protons (a statistical factor, common practice) and that cation gives two N-H
-/// hydrogen bonds to water; a substituent on the N takes both away, which no sigma carries
-/// (1-methylimidazole 7.20 against imidazole 6.95, 1-methylpyrazole 2.04 against pyrazole
-/// 2.48, from memory of CRC: the net step differs by ring, so the classes that set
-/// `n_alkyl_counted` fit it).
-fn azole_ring_n_substituents(molecule: &Molecule, found: &FoundSite, ring: &[usize]) -> usize {
-    if ring.len() != 5
-        || found.matched.iter().any(|&a| {
-            molecule.atoms()[a].element == 7 && !molecule.atoms()[a].aromatic && !ring.contains(&a)
-        })
-    {
-        return 0;
-    }
-    ring.iter()
-        .filter(|&&n| {
-            let atom = &molecule.atoms()[n];
-            n != found.atom
-                && atom.element == 7
-                && atom.aromatic
-                && atom.charge == 0
-                && molecule.total_hydrogens(n) == 0
-                && molecule.degree(n) == 3
-                && molecule
-                    .neighbors(n)
-                    .iter()
-                    .any(|nb| !ring.contains(&nb.atom) && !molecule.bonds()[nb.bond].in_ring)
-        })
-        .count()
 }
 
 /// Whether `c` is a plain sp3 carbon whose neighbours besides `from` are all plain sp3
@@ -3956,29 +3916,6 @@ mod tests {
             .flat_map(|s| s.terms.iter())
             .find(|t| t.label.ends_with(label_end))
             .and_then(|t| t.sigma)
-    }
-
-    #[test]
-    fn a_substituent_on_an_azoles_nh_position_is_counted() {
-        let count = |smiles: &str, class: &str| -> usize {
-            let read = mol::parse(smiles).expect("test SMILES parses");
-            let m = mol::standardize(&read)
-                .expect("test SMILES standardizes")
-                .parent;
-            let found = crate::find_sites(Library::builtin(), &m);
-            let lib = Library::builtin();
-            let site = found
-                .iter()
-                .find(|f| lib.classes[f.class].id == class)
-                .unwrap_or_else(|| panic!("{smiles}: no {class} site"));
-            let ring = site_ring(&m, site.atom).expect("the site is in a ring");
-            azole_ring_n_substituents(&m, site, ring)
-        };
-        assert_eq!(count("Cn1ccnc1", "base.azole.imidazole"), 1);
-        assert_eq!(count("c1c[nH]cn1", "base.azole.imidazole"), 0);
-        assert_eq!(count("OCCn1cnc2ccccc21", "base.azole.benzimidazole"), 1);
-        // The bridgehead N of imidazo[1,2-a]pyridine carries no substituent of its own.
-        assert_eq!(count("c1ccn2ccnc2c1", "base.azole.imidazole"), 0);
     }
 
     #[test]
