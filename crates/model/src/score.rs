@@ -1752,7 +1752,12 @@ fn fused_ring_substituents(
         if peri == Peri::Crowds && at_peri && !from_bridgehead {
             // A peri O (hydroxy as well as alkoxy) takes a hydrogen bond from the site's
             // N-H+ (8-hydroxyquinoline 4.91, near quinoline's 4.90; from memory of CRC).
-            if r.entry.hbond_acceptor || molecule.atoms()[x].element == 8 {
+            // So does a peri thioether S, a weaker acceptor (common practice) counted in the
+            // same fitted column: without it 8-(methylthio)quinolines ran 0.3-2 low, their
+            // SCH3 read as sigma_I and crowding only (written after seeing those rows).
+            let divalent_s = molecule.atoms()[x].element == 16
+                && molecule.degree(x) + molecule.total_hydrogens(x) == 2;
+            if r.entry.hbond_acceptor || molecule.atoms()[x].element == 8 || divalent_s {
                 peri_hbond += 1;
             }
             let name = concat(&["peri ", &r.entry.name]);
