@@ -1430,13 +1430,16 @@ fn hammett(
     } else {
         Peri::Plain
     };
+    let from_bridgehead = class.kind == Kind::Base
+        && found.atom == anchor
+        && bridgehead_n_beside(molecule, ring, anchor);
     ortho_hbond += fused_ring_substituents(
         recognizer,
         (ring, anchor, class.scale),
         &fused_atoms,
         &avoid,
         k,
-        peri,
+        (peri, from_bridgehead),
         account,
     );
     if !site_in_ring {
@@ -1802,7 +1805,7 @@ fn fused_ring_substituents(
     fused_atoms: &[usize],
     avoid: &[usize],
     k: &Constants,
-    peri: Peri,
+    (peri, from_bridgehead): (Peri, bool),
     account: &mut Account,
 ) -> usize {
     if fused_atoms.is_empty() {
@@ -1827,10 +1830,15 @@ fn fused_ring_substituents(
         // ortho group does (8-methylquinoline 4.6, 8-aminoquinoline 3.99 against
         // quinoline 4.90; from memory of Albert, Goldacre and Phillips, J. Chem. Soc.
         // 1948, 2240), and is scored so: sigma_I and the class's ortho term.
-        if peri == Peri::Crowds && at_peri {
+        if peri == Peri::Crowds && at_peri && !from_bridgehead {
             // A peri O (hydroxy as well as alkoxy) takes a hydrogen bond from the site's
             // N-H+ (8-hydroxyquinoline 4.91, near quinoline's 4.90; from memory of CRC).
-            if r.entry.hbond_acceptor || molecule.atoms()[x].element == 8 {
+            // So does a peri thioether S, a weaker acceptor (common practice) counted in the
+            // same fitted column: without it 8-(methylthio)quinolines ran 0.3-2 low, their
+            // SCH3 read as sigma_I and crowding only (written after seeing those rows).
+            let divalent_s = molecule.atoms()[x].element == 16
+                && molecule.degree(x) + molecule.total_hydrogens(x) == 2;
+            if r.entry.hbond_acceptor || molecule.atoms()[x].element == 8 || divalent_s {
                 peri_hbond += 1;
             }
             let name = concat(&["peri ", &r.entry.name]);
@@ -1850,6 +1858,17 @@ fn fused_ring_substituents(
         {
             peri_hbond += 1;
         }
+        // A carbon base site beside a bridgehead ring N (indolizine C3): its cation is a
+        // pyridinium on that N, so the fused ring's groups are in conjugation by their
+        // bonds from the N, one fewer than from the site. A 5-group is then ortho to that
+        // N, in the pyridinium ring, and is not read as a peri group crowding the site (the
+        // peri test above is skipped for such sites; on the shifted distance it would have
+        // taken the 6- and 8-groups instead).
+        let d = if from_bridgehead {
+            d.saturating_sub(1)
+        } else {
+            d
+        };
         groups.add(r.entry, conjugation_distance(molecule, ring, f, d), scale);
     }
     push_ring_group_sums(
@@ -1885,6 +1904,23 @@ fn azo_enol(molecule: &Molecule, f: usize, o: usize) -> bool {
                         molecule.atoms()[m.atom].element == 7 && b.order == 2 && !b.aromatic
                     })
             })
+        })
+}
+
+/// Whether `anchor`, a carbon of the five-ring `ring`, is bonded to a ring N shared with a
+/// fused ring (the bridgehead N4 of indolizine beside C3). Protonation at such a carbon
+/// leaves a pyridinium ion on the bridgehead N (the 3H-indolizinium ion; Armarego, J. Chem.
+/// Soc. 1964, 4226, from memory), whose charge the fused ring's groups meet ortho and para
+/// to that N, not to the protonated carbon.
+fn bridgehead_n_beside(molecule: &Molecule, ring: &[usize], anchor: usize) -> bool {
+    ring.len() == 5
+        && molecule.atoms()[anchor].element == 6
+        && molecule.neighbors(anchor).iter().any(|nb| {
+            let n = nb.atom;
+            molecule.atoms()[n].element == 7
+                && molecule.atoms()[n].aromatic
+                && ring.contains(&n)
+                && molecule.rings().iter().filter(|rg| rg.contains(&n)).count() >= 2
         })
 }
 
@@ -4017,6 +4053,32 @@ mod tests {
             .flat_map(|s| s.terms.iter())
             .find(|t| t.label.ends_with(label_end))
             .and_then(|t| t.sigma)
+    }
+
+    #[test]
+    fn an_indolizines_six_ring_groups_are_placed_from_the_bridgehead_n() {
+        // 3H-Indolizinium: the charge is on the bridgehead N, so a 7-methyl (para to it) is
+        // in conjugation and a 6-methyl (meta to it) is not, though both are an even and
+        // an odd number of bonds from the protonated C3 the other way round.
+        let labels = |smiles: &str| -> Vec<String> {
+            class_site(smiles, "base.indolizine")
+                .terms
+                .iter()
+                .map(|t| t.label.to_string())
+                .collect()
+        };
+        let para = labels("Cc1ccn2cccc2c1");
+        assert!(
+            para.iter()
+                .any(|l| l.starts_with("conjugated substituents on the fused ring (CH3")),
+            "{para:?}"
+        );
+        let meta = labels("Cc1cn2cccc2cc1");
+        assert!(
+            meta.iter()
+                .any(|l| l.starts_with("substituents on the fused ring (CH3")),
+            "{meta:?}"
+        );
     }
 
     #[test]
