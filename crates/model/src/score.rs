@@ -1836,6 +1836,10 @@ fn biaryl_remote_groups(
     }) else {
         return;
     };
+    // A far ring the class pattern names is part of the class's parent.
+    if far.iter().any(|a| avoid.contains(a)) {
+        return;
+    }
     // A far ring fused to another ring (naphthyl, quinolyl) is left to the aryl's entry.
     if far.iter().any(|&a| {
         molecule
