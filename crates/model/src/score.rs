@@ -713,6 +713,107 @@ fn cite_star(entry: &SubstituentEntry) -> String {
 
 fn score_one(library: &Library, recognizer: &mut Recognizer<'_, '_>, found: &FoundSite) -> Site {
     let class = &library.classes[found.class];
+    if class.tautomer_pair {
+        if let Some((one, other)) = tautomer_drawings(class, recognizer.molecule(), found) {
+            return score_tautomer_pair(library, recognizer, found, &one, &other);
+        }
+    }
+    score_drawing(library, recognizer, found)
+}
+
+/// For a `tautomer_pair` class (a 2-hydroxytropone): the site as drawn and as the other
+/// tautomer has it, the proton on the O of the ring C=O beside the anchor and that carbon
+/// the anchor. Both drawings name both C-O pairs as matched atoms, so that neither reads
+/// the other O as a ring substituent or a ring C=O. None when the anchor has no such
+/// neighbour.
+fn tautomer_drawings(
+    class: &SiteClass,
+    molecule: &Molecule,
+    found: &FoundSite,
+) -> Option<(FoundSite, FoundSite)> {
+    let anchor_map = class.anchor?;
+    let anchor = found
+        .mapped
+        .iter()
+        .find(|(m, _)| *m == anchor_map)
+        .map(|&(_, a)| a)?;
+    let ring = site_ring(molecule, anchor)?;
+    let (c, o) = molecule
+        .neighbors(anchor)
+        .iter()
+        .filter(|nb| ring.contains(&nb.atom))
+        .find_map(|nb| {
+            molecule
+                .neighbors(nb.atom)
+                .iter()
+                .find(|x| is_oxo(molecule, x) && molecule.atoms()[x.atom].element == 8)
+                .map(|x| (nb.atom, x.atom))
+        })?;
+    let mut one = found.clone();
+    for a in [c, o] {
+        if !one.matched.contains(&a) {
+            one.matched.push(a);
+        }
+    }
+    let mut other = one.clone();
+    other.atom = o;
+    for (m, a) in other.mapped.iter_mut() {
+        if *m == 1 {
+            *a = o;
+        } else if *m == anchor_map {
+            *a = c;
+        }
+    }
+    Some((one, other))
+}
+
+/// The site of a pair of tautomers that share one anion (HA and HB, both giving A-): the
+/// drawing whose O-H holds its proton more firmly (the major tautomer), and a term for the
+/// minor one. The constant of the pair is 1/K = 1/K_A + 1/K_B, so pK = max(pK_A, pK_B) +
+/// log10(1 + 10^-|pK_A - pK_B|); the class parent is the symmetric parent's measured
+/// (macroscopic) constant, where the two drawings are one, so log10(2) comes off.
+///
+/// # Reference
+///
+/// Common practice for tautomeric acids (the macroscopic constant of two microscopic
+/// routes to one anion), e.g. Perrin, Dempsey and Serjeant, "pKa Prediction for Organic
+/// Acids and Bases", 1981, from memory.
+fn score_tautomer_pair(
+    library: &Library,
+    recognizer: &mut Recognizer<'_, '_>,
+    found: &FoundSite,
+    one: &FoundSite,
+    other: &FoundSite,
+) -> Site {
+    let a = score_drawing(library, recognizer, one);
+    let b = score_drawing(library, recognizer, other);
+    let (mut major, minor) = if b.pka > a.pka { (b, a) } else { (a, b) };
+    let gap = major.pka - minor.pka;
+    let shift = (1.0 + 10f64.powf(-gap)).log10() - 2f64.log10();
+    major.terms.push(Term::correction(
+        Cow::Owned(format!(
+            "tautomer pair: the other drawing (C=O and C-OH exchanged) scores {:.2}; both give one anion",
+            minor.pka
+        )),
+        shift,
+        Cow::Borrowed(
+            "1/K = 1/K_A + 1/K_B for two tautomers of one anion, parent taken as the symmetric \
+             parent's macroscopic constant (common practice)",
+        ),
+    ));
+    major.pka += shift;
+    let (low, high) = crate::AQUEOUS_WINDOW;
+    major.in_window = (low..=high).contains(&major.pka);
+    major.atom = found.atom;
+    major
+}
+
+fn score_drawing(
+    library: &Library,
+    recognizer: &mut Recognizer<'_, '_>,
+    found: &FoundSite,
+) -> Site {
+    let class = &library.classes[found.class];
     let k = constants(library, found.class);
     let texts = Texts::new(library, found.class);
     let mut account = Account {
@@ -4079,6 +4180,37 @@ mod tests {
                 .any(|l| l.starts_with("substituents on the fused ring (CH3")),
             "{meta:?}"
         );
+    }
+
+    #[test]
+    fn both_tautomers_of_a_tropolone_give_one_estimate() {
+        // 3-bromo-, 4-bromo-, 5-methyl- and 4-methyl-2-hydroxytropones, each written as both
+        // tautomers (the C=O and C-OH exchanged): a ring group ortho to the OH carbon in one
+        // drawing is meta to it in the other, and the pair has one anion and one constant.
+        let tropolone = |smiles: &str| -> f64 {
+            let (_, sites) = parent_sites(smiles);
+            let found: Vec<&Site> = sites
+                .iter()
+                .filter(|s| s.class == "acid.tropolone")
+                .collect();
+            assert_eq!(found.len(), 1, "{smiles}: one tropolone site");
+            found[0].pka
+        };
+        let plain = tropolone("O=c1cccccc1O");
+        for (one, other) in [
+            ("O=c1ccccc(Br)c1O", "Oc1ccccc(Br)c1=O"),
+            ("O=c1cccc(Br)cc1O", "Oc1cccc(Br)cc1=O"),
+            ("Cc1ccc(O)c(=O)cc1", "Cc1ccc(=O)c(O)cc1"),
+            ("Cc1cccc(=O)c(O)c1", "Cc1cccc(O)c(=O)c1"),
+        ] {
+            let (a, b) = (tropolone(one), tropolone(other));
+            assert!((a - b).abs() < 1e-9, "{one} {a} against {other} {b}");
+            // The group is scored at all: the estimate is not the plain parent's.
+            assert!(
+                (a - plain).abs() > 0.01,
+                "{one} {a} against tropolone {plain}"
+            );
+        }
     }
 
     #[test]
