@@ -1998,6 +1998,11 @@ fn fused_ring_substituents(
         if peri == Peri::Accepts && at_peri && (r.entry.hbond_acceptor || azo_enol(molecule, f, x))
         {
             peri_hbond += 1;
+            // A peri sulfonate cannot turn away from the site either (as one held by a
+            // flanking group, `buttressed_sulfonate`): counted twice.
+            if r.entry.id == "sulfonate" {
+                peri_hbond += 1;
+            }
         }
         // A carbon base site beside a bridgehead ring N (indolizine C3): its cation is a
         // pyridinium on that N, so the fused ring's groups are in conjugation by their
@@ -4240,6 +4245,8 @@ mod tests {
         };
         assert_eq!(hbonds("O=S(=O)(O)c1c(O)ccc2ccccc12"), 2.0);
         assert_eq!(hbonds("O=S(=O)(O)c1ccccc1O"), 1.0);
+        // 8-Hydroxynaphthalene-1-sulfonic acid: the peri sulfonate is held as well.
+        assert_eq!(hbonds("O=S(=O)(O)c1cccc2cccc(O)c12"), 2.0);
     }
 
     #[test]
