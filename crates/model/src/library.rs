@@ -190,6 +190,12 @@ pub struct SiteClass {
     /// central carbon shares, and a group para to that carbon conjugates with it.
     #[serde(default)]
     pub para_to_site_carbon: bool,
+    /// For an O-H site whose anchor carbon sits beside a ring carbon bearing the C=O that
+    /// trades places with it in the other tautomer (a 2-hydroxytropone): the site is scored
+    /// in both drawings and the two are joined as one pair of tautomers sharing one anion,
+    /// so that the estimate does not depend on which tautomer the SMILES is written as.
+    #[serde(default)]
+    pub tautomer_pair: bool,
     /// Statistical factor (number of equivalent protons or positions the class counts);
     /// contributes -log10(factor) for acids and +log10(factor) for bases when not 1.
     #[serde(default = "one")]
@@ -748,6 +754,7 @@ fn validate(
         for (flag, set) in [
             ("n_alkyl_counted", class.n_alkyl_counted),
             ("para_to_site_carbon", class.para_to_site_carbon),
+            ("tautomer_pair", class.tautomer_pair),
         ] {
             if set && !on_ring_scale {
                 return Err(LibraryError::new(format!(
