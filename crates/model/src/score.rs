@@ -3093,7 +3093,7 @@ fn fused_ring_groups(
                 || ring.contains(&x)
                 || fused_atoms.contains(&x)
                 || molecule.atoms()[x].element == 1
-                || is_oxo(molecule, &nb)
+                || is_oxo(molecule, nb)
             {
                 continue;
             }
