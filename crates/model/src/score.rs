@@ -2619,7 +2619,11 @@ fn push_counted(account: &mut Account, what: Counted, count: usize, per: f64, la
 /// sigma-minus takes sigma_n: the anion (phenoxide, amide anion) is itself a strong donor,
 /// so the donor's own resonance with the ring is not felt at the centre (4-methoxyphenol
 /// 10.21 against phenol 9.99, from memory of CRC: sigma -0.10 at rho 2.23, where sigma_p is
-/// -0.27).
+/// -0.27). Not in a tropolone (a `tautomer_pair` class): there the neutral acid holds its
+/// ring C=O, an acceptor every ring carbon conjugates with by one path round the odd ring
+/// (the tropylium-oxide character of tropone), so a donor's resonance stabilizes the acid
+/// and is felt as sigma_p- has it. Written after seeing the 4- and 5-methyl and
+/// 5-methoxytropolones run 0.2-0.8 too acidic on sigma_n.
 ///
 /// # Reference
 ///
@@ -2636,7 +2640,10 @@ fn push_acid_hammett(
     ortho_substituent: bool,
 ) {
     let normal = entry.sigma_p_n.filter(|_| {
-        pos == Position::Para && class.kind == Kind::Acid && class.scale == Scale::HammettMinus
+        pos == Position::Para
+            && class.kind == Kind::Acid
+            && class.scale == Scale::HammettMinus
+            && !class.tautomer_pair
     });
     match normal {
         Some(sigma) => {
@@ -4439,6 +4446,32 @@ mod tests {
                 "{one} {a} against tropolone {plain}"
             );
         }
+    }
+
+    #[test]
+    fn a_para_donor_on_a_tropolone_takes_sigma_p_minus_and_on_a_phenol_sigma_n() {
+        let position_of = |smiles: &str, class: &str| -> String {
+            let (_, sites) = parent_sites(smiles);
+            let site = sites
+                .iter()
+                .find(|s| s.class == class)
+                .unwrap_or_else(|| panic!("{smiles}: no {class} site"));
+            let term = site
+                .terms
+                .iter()
+                .find(|t| t.label.contains("OCH3"))
+                .unwrap_or_else(|| panic!("{smiles}: no OCH3 term"));
+            term.position.as_deref().unwrap_or("").to_string()
+        };
+        // 5-Methoxytropolone: 5 is three bonds from the carbinol carbon in both drawings.
+        assert_eq!(
+            position_of("COc1ccc(O)c(=O)cc1", "acid.tropolone"),
+            "para (sigma_p-)"
+        );
+        assert_eq!(
+            position_of("COc1ccc(O)cc1", "acid.phenol"),
+            "para (sigma_n)"
+        );
     }
 
     #[test]
