@@ -571,6 +571,19 @@ fn calibrate(
     (lib, stats)
 }
 
+/// Whether a fitted class correction goes into `fragments/calibration.toml`: the aromatic
+/// ones on Hammett-scored classes; on Taft's the alkyl one and any other its rows fill (the
+/// beta-hydroxyl count, in the hydrogen-bond column; a benzo ring's groups on a cyclic
+/// amidine). A fitted value left out would be in the cross-validation but not in what ships.
+fn written(scale: Scale, what: Option<Counted>, value: f64) -> bool {
+    let alkyl = what == Some(Counted::AlkylBranch);
+    match scale {
+        Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus => !alkyl,
+        Scale::Taft => alkyl || value.abs() >= 0.0005,
+        Scale::None => false,
+    }
+}
+
 /// Deterministic fold of a molecule: FNV-1a of its SMILES.
 fn fold_of(smiles: &str, folds: usize) -> usize {
     let mut h: u64 = 0xcbf29ce484222325;
@@ -774,14 +787,8 @@ fn main() -> Result<()> {
             writeln!(out, "class = {:?}", c.id)?;
             writeln!(out, "parent_pka = {:.3}", c.parent_pka)?;
             writeln!(out, "rho = {:.3}", c.rho)?;
-            // The aromatic corrections on Hammett-scored classes, the alkyl one on Taft's.
-            let aromatic = matches!(
-                c.scale,
-                Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus
-            );
             for ((what, name), v) in CORRECTIONS.iter().zip(class_corrections(c)) {
-                let alkyl = *what == Some(Counted::AlkylBranch);
-                if (aromatic && !alkyl) || (alkyl && c.scale == Scale::Taft) {
+                if written(c.scale, *what, v) {
                     writeln!(out, "{name} = {v:.3}")?;
                 }
             }
@@ -821,6 +828,18 @@ mod tests {
             rho,
             corrections: [0.0; N_CORRECTIONS],
         }
+    }
+
+    #[test]
+    fn every_correction_a_taft_class_fills_is_written() {
+        // The beta-hydroxyl count of the amine classes sits in the hydrogen-bond column: its
+        // fitted value must ship, not only enter the cross-validation.
+        assert!(written(Scale::Taft, Some(Counted::OrthoHbond), 0.9));
+        assert!(written(Scale::Taft, Some(Counted::AlkylBranch), 0.0));
+        assert!(!written(Scale::Taft, Some(Counted::OrthoHbond), 0.0));
+        assert!(written(Scale::Hammett, Some(Counted::OrthoHbond), 0.0));
+        assert!(!written(Scale::Hammett, Some(Counted::AlkylBranch), 0.3));
+        assert!(!written(Scale::None, Some(Counted::OrthoHbond), 0.9));
     }
 
     #[test]
