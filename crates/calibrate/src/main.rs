@@ -571,16 +571,18 @@ fn calibrate(
     (lib, stats)
 }
 
-/// Whether a fitted class correction goes into `fragments/calibration.toml`: the aromatic
-/// ones on Hammett-scored classes; on Taft's the alkyl one and any other its rows fill (the
-/// beta-hydroxyl count, in the hydrogen-bond column; a benzo ring's groups on a cyclic
-/// amidine). A fitted value left out would be in the cross-validation but not in what ships.
+/// Whether a fitted class correction goes into `fragments/calibration.toml`: the columns a
+/// class's scale uses (the aromatic ones on Hammett-scored classes, the alkyl one on
+/// Taft's) and any other that came out non-zero (on Taft classes the beta-hydroxyl count,
+/// in the hydrogen-bond column, and a benzo ring's groups on a cyclic amidine). A fitted
+/// value left out would be in the cross-validation but not in what ships.
 fn written(scale: Scale, what: Option<Counted>, value: f64) -> bool {
     let alkyl = what == Some(Counted::AlkylBranch);
+    let fitted = value.abs() >= 0.0005;
     match scale {
-        Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus => !alkyl,
-        Scale::Taft => alkyl || value.abs() >= 0.0005,
-        Scale::None => false,
+        Scale::Hammett | Scale::HammettMinus | Scale::HammettPlus => !alkyl || fitted,
+        Scale::Taft => alkyl || fitted,
+        Scale::None => fitted,
     }
 }
 
@@ -838,8 +840,9 @@ mod tests {
         assert!(written(Scale::Taft, Some(Counted::AlkylBranch), 0.0));
         assert!(!written(Scale::Taft, Some(Counted::OrthoHbond), 0.0));
         assert!(written(Scale::Hammett, Some(Counted::OrthoHbond), 0.0));
-        assert!(!written(Scale::Hammett, Some(Counted::AlkylBranch), 0.3));
-        assert!(!written(Scale::None, Some(Counted::OrthoHbond), 0.9));
+        assert!(!written(Scale::Hammett, Some(Counted::AlkylBranch), 0.0));
+        assert!(written(Scale::Hammett, Some(Counted::AlkylBranch), 0.3));
+        assert!(!written(Scale::None, Some(Counted::OrthoHbond), 0.0));
     }
 
     #[test]
