@@ -534,6 +534,10 @@ fn calibrate(
     let mut stats = BTreeMap::new();
     for _ in 0..ROUNDS {
         let pts = points(&lib, data);
+        // Each round fits from the published constants: a class fitted in an earlier round
+        // but short of points in this one (its sites attributed elsewhere) must fall back to
+        // its published values, as the written file has it, not keep the stale fit.
+        lib = published.clone();
         let mut by_class: BTreeMap<usize, Vec<&Point>> = BTreeMap::new();
         for p in &pts {
             by_class.entry(p.class).or_default().push(p);
