@@ -2011,7 +2011,7 @@ fn biaryl_remote_groups(
     let mut keep_out: Vec<usize> = Vec::with_capacity(avoid.len() + far.len());
     keep_out.extend_from_slice(avoid);
     keep_out.extend_from_slice(far);
-    let aza = entry_by_id(library, "ring-aza");
+    let aza = fixed_entry(library, Fixed::RingAza);
     let mut sum = 0.0;
     let mut names = String::new();
     for (a, d) in distances_within(molecule, ipso, |b| far.contains(&b)) {
