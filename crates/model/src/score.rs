@@ -1442,11 +1442,7 @@ fn hammett(
                     // there raised the base file's CV MAE 0.616 -> 0.631).
                     if ortho && r.entry.walk {
                         ortho_alkyl += if class.kind == Kind::Acid {
-                            1 + molecule
-                                .neighbors(s)
-                                .iter()
-                                .filter(|n| n.atom != atom && molecule.atoms()[n.atom].element == 6)
-                                .count()
+                            1 + carbons_beyond(molecule, s, atom)
                         } else {
                             1
                         };
@@ -1594,13 +1590,7 @@ fn hammett(
     if !site_in_ring {
         // The site's own alkyl groups (an N-ethyl on an aniline N): the carbons on their
         // alpha carbons.
-        let alpha_carbons = |n: &mol::Neighbor| {
-            molecule
-                .neighbors(n.atom)
-                .iter()
-                .filter(|m| m.atom != found.atom && molecule.atoms()[m.atom].element == 6)
-                .count()
-        };
+        let alpha_carbons = |n: &mol::Neighbor| carbons_beyond(molecule, n.atom, found.atom);
         let n_alkyls = molecule
             .neighbors(found.atom)
             .iter()
@@ -3015,6 +3005,17 @@ fn amidine_amino_alkyls(molecule: &Molecule, found: &FoundSite, ring: &[usize]) 
                 .count()
         })
         .sum()
+}
+
+/// The carbons bonded to an alkyl's first carbon `c` besides `from`, the atom it hangs on
+/// (methyl 0, ethyl 1, isopropyl 2, tert-butyl 3): how branched the alkyl is where it
+/// meets the site or its ring.
+fn carbons_beyond(molecule: &Molecule, c: usize, from: usize) -> usize {
+    molecule
+        .neighbors(c)
+        .iter()
+        .filter(|n| n.atom != from && molecule.atoms()[n.atom].element == 6)
+        .count()
 }
 
 /// Whether `c` is a plain sp3 carbon whose neighbours besides `from` are all plain sp3
